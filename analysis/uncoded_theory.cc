@@ -1,0 +1,2 @@
+// Placeholder: implementation in progress.
+#include "analysis/uncoded_theory.h"

@@ -1,0 +1,2 @@
+// capgap command-line entry (placeholder until the engine lands).
+int main() { return 0; }
