@@ -1,0 +1,113 @@
+// Uncoded chain: source, mapper, AWGN, demapper, decisions, error counting.
+#include "sim/chain.h"
+
+#include <algorithm>
+
+namespace capgap {
+
+Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
+  Chain chain;
+  chain.scheme_ = scheme;
+  chain.key_ = DeriveKey(seed, scheme.name);
+  chain.unit_frames_ = scheme.ResolvedUnitFrames();
+  auto mapper = Mapper::Create(scheme.modulation);
+  if (!mapper.ok()) return Status::Error("scheme." + scheme.name + ": " + mapper.status().message());
+  chain.mapper_ = std::make_shared<const Mapper>(std::move(mapper).value());
+  auto demapper = Demapper::Create(*chain.mapper_, scheme.demapper);
+  if (!demapper.ok()) return Status::Error("scheme." + scheme.name + ": " + demapper.status().message());
+  chain.demapper_ = std::make_shared<const Demapper>(std::move(demapper).value());
+  chain.real_axis_ = scheme.modulation.order == 2;
+  if (scheme.source != SourceKind::kRandom) {
+    PrbsOrder order = PrbsOrder::k9;
+    switch (scheme.source) {
+      case SourceKind::kPrbs9: order = PrbsOrder::k9; break;
+      case SourceKind::kPrbs15: order = PrbsOrder::k15; break;
+      case SourceKind::kPrbs23: order = PrbsOrder::k23; break;
+      case SourceKind::kPrbs31: order = PrbsOrder::k31; break;
+      case SourceKind::kRandom: break;
+    }
+    auto prbs = PrbsGenerator::Create(order);
+    if (!prbs.ok()) return prbs.status();
+    chain.prbs_ = std::move(prbs).value();
+  }
+  return chain;
+}
+
+ChainWorkspace Chain::MakeWorkspace() const {
+  ChainWorkspace ws;
+  const std::size_t n = scheme_.frame_bits;
+  const std::size_t symbols = n / static_cast<std::size_t>(mapper_->bits_per_symbol());
+  ws.bits.resize(n);
+  ws.decided.resize(n);
+  ws.llrs.resize(n);
+  if (real_axis_) {
+    ws.real_symbols.resize(symbols);
+  } else {
+    ws.symbols.resize(symbols);
+  }
+  return ws;
+}
+
+void Chain::FillSource(std::uint32_t /*point_index*/, std::uint32_t unit_index,
+                       std::uint32_t frame, RngStream& bit_stream, std::span<Bit> bits) const {
+  if (!prbs_) {
+    GenerateRandomBits(bits, bit_stream);
+    return;
+  }
+  // One continuous sequence per point: frame f of unit u starts at bit
+  // (u * unit_frames + f) * frame_bits, whichever thread runs it.
+  const std::uint64_t start =
+      (static_cast<std::uint64_t>(unit_index) * unit_frames_ + frame) * scheme_.frame_bits;
+  PrbsGenerator::State state = prbs_->StateAt(start % prbs_->period());
+  prbs_->Generate(bits, state);
+}
+
+UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
+                          std::uint32_t unit_index, ChainWorkspace& ws) const {
+  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
+  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
+  const float n0 = channel.n0();
+  UnitCounts counts;
+  const std::span<Bit> bits(ws.bits);
+  const std::span<Bit> decided(ws.decided);
+  const std::span<float> llrs(ws.llrs);
+  const bool hard = scheme_.demapper == DemapMethod::kHard;
+  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
+    FillSource(point_index, unit_index, f, bit_stream, bits);
+    if (real_axis_) {
+      // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise.
+      float* x = ws.real_symbols.data();
+      const std::size_t n = ws.real_symbols.size();
+      for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(bits[i]);
+      channel.AddNoiseReal(ws.real_symbols, noise_stream);
+      if (hard) {
+        for (std::size_t i = 0; i < n; ++i) decided[i] = static_cast<Bit>(x[i] < 0.0f);
+      } else {
+        // L = 4 y / N0 (LLR > 0 favours bit 0); decisions from the LLR sign.
+        const float scale = 4.0f / n0;
+        float* l = llrs.data();
+        for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
+        LlrToBits(llrs, decided);
+      }
+    } else {
+      mapper_->Map(bits, ws.symbols);
+      channel.AddNoise(ws.symbols, noise_stream);
+      if (hard) {
+        demapper_->HardDecide(ws.symbols, decided);
+      } else {
+        demapper_->Demap(ws.symbols, n0, llrs);
+        LlrToBits(llrs, decided);
+      }
+    }
+    std::uint64_t errors = 0;
+    const std::size_t n = bits.size();
+    for (std::size_t i = 0; i < n; ++i) errors += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+    counts.bits += n;
+    counts.bit_errors += errors;
+    counts.frames += 1;
+    counts.frame_errors += errors > 0 ? 1 : 0;
+  }
+  return counts;
+}
+
+}  // namespace capgap

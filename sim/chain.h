@@ -1,0 +1,90 @@
+// Chain composer: turns a SchemeConfig into the blocks of one simulated link
+// (bit source -> mapper -> AWGN -> demapper -> decisions) and runs one work
+// unit of frames through them.
+//
+// Polymorphism lives here, once per frame: the chain picks its path (real BPSK
+// or complex) when it is built; the blocks' inner loops see only spans. A
+// Chain is immutable and shared by all threads; each thread owns a
+// ChainWorkspace with every buffer sized once.
+//
+// Randomness of unit u at point p comes only from the streams
+// (key(seed, scheme), p, u, substream), so a unit's counts are a pure function
+// of (seed, scheme, point, unit).
+#ifndef CAPGAP_SIM_CHAIN_H_
+#define CAPGAP_SIM_CHAIN_H_
+
+#include <cstdint>
+#include <memory>
+#include <optional>
+#include <vector>
+
+#include "blocks/channel/awgn_channel.h"
+#include "blocks/core/rng_stream.h"
+#include "blocks/core/status.h"
+#include "blocks/mapping/demapper.h"
+#include "blocks/mapping/mapper.h"
+#include "blocks/source/bit_source.h"
+#include "sim/config.h"
+
+namespace capgap {
+
+struct UnitCounts {
+  std::uint64_t bits = 0;          // information bits
+  std::uint64_t bit_errors = 0;
+  std::uint64_t frames = 0;
+  std::uint64_t frame_errors = 0;
+  UnitCounts& operator+=(const UnitCounts& o) {
+    bits += o.bits;
+    bit_errors += o.bit_errors;
+    frames += o.frames;
+    frame_errors += o.frame_errors;
+    return *this;
+  }
+  bool operator==(const UnitCounts&) const = default;
+};
+
+struct ChainWorkspace {
+  std::vector<Bit> bits;
+  std::vector<Bit> decided;
+  std::vector<cf32> symbols;
+  std::vector<float> real_symbols;
+  std::vector<float> llrs;
+};
+
+class Chain {
+ public:
+  static Result<Chain> Create(const SchemeConfig& scheme, std::uint64_t seed);
+
+  const SchemeConfig& scheme() const { return scheme_; }
+  const Mapper& mapper() const { return *mapper_; }
+  double code_rate() const { return 1.0; }
+  double info_bits_per_symbol() const { return code_rate() * mapper_->bits_per_symbol(); }
+  std::uint32_t unit_frames() const { return unit_frames_; }
+  std::uint64_t unit_bits() const {
+    return static_cast<std::uint64_t>(unit_frames_) * scheme_.frame_bits;
+  }
+
+  ChainWorkspace MakeWorkspace() const;
+
+  // Simulates work unit `unit_index` of sweep point `point_index` at the given
+  // channel. Deterministic in (seed, scheme name, point, unit).
+  UnitCounts RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
+                     std::uint32_t unit_index, ChainWorkspace& ws) const;
+
+ private:
+  Chain() = default;
+  void FillSource(std::uint32_t point_index, std::uint32_t unit_index, std::uint32_t frame,
+                  RngStream& bit_stream, std::span<Bit> bits) const;
+
+  SchemeConfig scheme_;
+  PhiloxKey key_;
+  std::uint32_t unit_frames_ = 1;
+  std::shared_ptr<const Mapper> mapper_;
+  std::shared_ptr<const Demapper> demapper_;
+  std::optional<PrbsGenerator> prbs_;
+  bool real_axis_ = false;  // BPSK: real samples, in-phase noise only
+};
+
+}  // namespace capgap
+
+#endif  // CAPGAP_SIM_CHAIN_H_

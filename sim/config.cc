@@ -1,0 +1,387 @@
+// Config loading: INI text -> (section.key, value) pairs via
+// Boost.Program_options, overrides, then typed validation of every key with
+// messages of the form "FILE: KEY = VALUE: RULE".
+#include "sim/config.h"
+
+#include <algorithm>
+#include <cctype>
+#include <cerrno>
+#include <cmath>
+#include <cstdlib>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+#include <boost/program_options/parsers.hpp>
+#include <boost/program_options/options_description.hpp>
+
+namespace capgap {
+namespace {
+
+namespace po = boost::program_options;
+
+struct KeySpec {
+  const char* key;
+  const char* default_value;  // nullptr: required
+  const char* rule;           // human description used in messages and --help
+};
+
+// The keys of [sweep], with defaults. Order is the order of the resolved text.
+constexpr KeySpec kSweepKeys[] = {
+    {"ebno_db", nullptr, "START:STEP:STOP (inclusive) or a comma list, in dB"},
+    {"target_errors", "100", "integer > 0: bit errors that end a point"},
+    {"max_bits", "100000000", "integer > 0: information bits that end a point"},
+    {"ber_floor", "1e-7", "number in [0, 0.5): the sweep stops after a point below it"},
+    {"target_ber", "1e-5", "number in (0, 0.5): BER at which the summary is taken"},
+    {"seed", "1", "integer >= 0"},
+    {"threads", "0", "integer >= 0 (0: all cores)"},
+};
+
+constexpr KeySpec kSchemeKeys[] = {
+    {"modulation", nullptr, "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam"},
+    {"frame_bits", "1920", "integer in [1, 16777216], a multiple of bits per symbol"},
+    {"demapper", "maxlog", "hard, maxlog, logmap"},
+    {"source", "random", "random, prbs9, prbs15, prbs23, prbs31"},
+    {"unit_frames", "0", "integer >= 0: frames per work unit (0: automatic, ~64 kbit)"},
+    {"code", "none", "none (convolutional and LDPC codes are not built yet)"},
+};
+
+std::string Trim(const std::string& s) {
+  const auto b = s.find_first_not_of(" \t\r\n");
+  if (b == std::string::npos) return "";
+  const auto e = s.find_last_not_of(" \t\r\n");
+  return s.substr(b, e - b + 1);
+}
+
+template <std::size_t N>
+std::string KeyList(const KeySpec (&keys)[N]) {
+  std::string out;
+  for (const auto& k : keys) {
+    if (!out.empty()) out += ", ";
+    out += k.key;
+  }
+  return out;
+}
+
+template <std::size_t N>
+const KeySpec* FindKey(const KeySpec (&keys)[N], const std::string& key) {
+  for (const auto& k : keys) {
+    if (key == k.key) return &k;
+  }
+  return nullptr;
+}
+
+class Validator {
+ public:
+  Validator(const std::string& source, const std::map<std::string, std::string>& values)
+      : source_(source), values_(values) {}
+
+  Status Fail(const std::string& key, const std::string& rule) const {
+    auto it = values_.find(key);
+    const std::string value = it == values_.end() ? "" : it->second;
+    return Status::Error(source_ + ": " + key + " = '" + value + "': " + rule);
+  }
+
+  const std::string& Get(const std::string& key) const { return values_.at(key); }
+
+  Result<double> Number(const std::string& key) const {
+    const std::string& text = Get(key);
+    errno = 0;
+    char* end = nullptr;
+    const double v = std::strtod(text.c_str(), &end);
+    if (text.empty() || end != text.c_str() + text.size() || errno == ERANGE ||
+        !std::isfinite(v)) {
+      return Fail(key, "not a number");
+    }
+    return v;
+  }
+
+  Result<std::uint64_t> Integer(const std::string& key, std::uint64_t min_value,
+                                std::uint64_t max_value, const char* rule) const {
+    const std::string& text = Get(key);
+    if (text.empty() || text[0] == '-') {
+      if (!text.empty()) return Fail(key, std::string("must be ") + rule);
+    }
+    Result<double> v = Number(key);
+    if (!v.ok()) return Fail(key, std::string("not an integer; must be ") + rule);
+    const double d = v.value();
+    if (d < 0 || d != std::floor(d) || d > 9007199254740992.0) {
+      return Fail(key, std::string("must be ") + rule);
+    }
+    const auto u = static_cast<std::uint64_t>(d);
+    if (u < min_value || u > max_value) return Fail(key, std::string("must be ") + rule);
+    return u;
+  }
+
+ private:
+  const std::string& source_;
+  const std::map<std::string, std::string>& values_;
+};
+
+Result<SourceKind> ParseSource(const std::string& word) {
+  if (word == "random") return SourceKind::kRandom;
+  if (word == "prbs9") return SourceKind::kPrbs9;
+  if (word == "prbs15") return SourceKind::kPrbs15;
+  if (word == "prbs23") return SourceKind::kPrbs23;
+  if (word == "prbs31") return SourceKind::kPrbs31;
+  return Status::Error("valid: random, prbs9, prbs15, prbs23, prbs31");
+}
+
+}  // namespace
+
+std::string ToString(SourceKind kind) {
+  switch (kind) {
+    case SourceKind::kRandom: return "random";
+    case SourceKind::kPrbs9: return "prbs9";
+    case SourceKind::kPrbs15: return "prbs15";
+    case SourceKind::kPrbs23: return "prbs23";
+    case SourceKind::kPrbs31: return "prbs31";
+  }
+  return "random";
+}
+
+std::uint32_t SchemeConfig::ResolvedUnitFrames() const {
+  if (unit_frames > 0) return unit_frames;
+  constexpr std::uint32_t kUnitBits = 65536;
+  return std::max<std::uint32_t>(1, (kUnitBits + frame_bits - 1) / std::max<std::uint32_t>(frame_bits, 1));
+}
+
+Result<std::vector<double>> ParseDbList(const std::string& text_in, const std::string& what) {
+  const std::string text = Trim(text_in);
+  auto fail = [&](const std::string& rule) {
+    return Status::Error(what + " = '" + text + "': " + rule);
+  };
+  auto parse_one = [](const std::string& s, double& out) {
+    const std::string t = Trim(s);
+    char* end = nullptr;
+    errno = 0;
+    out = std::strtod(t.c_str(), &end);
+    return !t.empty() && end == t.c_str() + t.size() && errno != ERANGE && std::isfinite(out);
+  };
+  std::vector<double> out;
+  if (text.find(':') != std::string::npos) {
+    std::vector<std::string> parts;
+    std::stringstream ss(text);
+    std::string part;
+    while (std::getline(ss, part, ':')) parts.push_back(part);
+    double start = 0, step = 0, stop = 0;
+    if (parts.size() != 3 || !parse_one(parts[0], start) || !parse_one(parts[1], step) ||
+        !parse_one(parts[2], stop)) {
+      return fail("expected START:STEP:STOP (numbers, in dB) or a comma list");
+    }
+    if (!(step > 0)) return fail("STEP must be > 0");
+    if (stop < start) return fail("STOP must be >= START");
+    const double count = std::floor((stop - start) / step + 1e-9) + 1;
+    if (count > 10000) return fail("more than 10000 points");
+    for (int i = 0; i < static_cast<int>(count); ++i) {
+      // Round to 1e-9 dB so that 0:0.1:1 gives 0.3, not 0.30000000000000004.
+      out.push_back(std::round((start + i * step) * 1e9) / 1e9);
+    }
+  } else {
+    std::stringstream ss(text);
+    std::string part;
+    while (std::getline(ss, part, ',')) {
+      double v = 0;
+      if (!parse_one(part, v)) return fail("'" + Trim(part) + "' is not a number; expected START:STEP:STOP or a comma list");
+      out.push_back(v);
+    }
+    if (out.empty()) return fail("empty list");
+  }
+  for (std::size_t i = 1; i < out.size(); ++i) {
+    if (!(out[i] > out[i - 1])) return fail("points must increase");
+  }
+  return out;
+}
+
+std::string RunConfig::ResolvedText() const {
+  std::string out;
+  std::string section;
+  for (const auto& [key, value] : resolved) {
+    const auto dot = key.rfind('.');
+    const std::string sec = key.substr(0, dot);
+    if (sec != section) {
+      if (!out.empty()) out += "\n";
+      out += "[" + sec + "]\n";
+      section = sec;
+    }
+    out += key.substr(dot + 1) + " = " + value + "\n";
+  }
+  return out;
+}
+
+Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& source,
+                                 const std::vector<std::string>& overrides) {
+  // 1. Raw pairs, in file order.
+  std::vector<std::pair<std::string, std::string>> raw;
+  try {
+    std::istringstream in(text);
+    po::options_description none;
+    po::parsed_options parsed = po::parse_config_file(in, none, /*allow_unregistered=*/true);
+    for (const auto& opt : parsed.options) {
+      raw.emplace_back(opt.string_key, opt.value.empty() ? "" : Trim(opt.value[0]));
+    }
+  } catch (const std::exception& e) {
+    return Status::Error(source + ": " + e.what());
+  }
+
+  // 2. Classify keys, find schemes in order, reject unknown sections and keys.
+  std::map<std::string, std::string> values;
+  std::vector<std::string> scheme_names;
+  auto classify = [&](const std::string& full, bool from_override) -> Status {
+    const std::string where = from_override ? "--set " + full : full;
+    const auto dot = full.rfind('.');
+    if (dot == std::string::npos) {
+      return Status::Error(source + ": key '" + full +
+                           "' is outside a section; sections: [sweep], [scheme.NAME]");
+    }
+    const std::string section = full.substr(0, dot);
+    const std::string key = full.substr(dot + 1);
+    if (section == "sweep") {
+      if (!FindKey(kSweepKeys, key)) {
+        return Status::Error(source + ": unknown key '" + where + "'; [sweep] keys: " +
+                             KeyList(kSweepKeys));
+      }
+      return Status::Ok();
+    }
+    if (section.rfind("scheme.", 0) == 0 && section.size() > 7) {
+      const std::string name = section.substr(7);
+      for (char ch : name) {
+        if (!(std::isalnum(static_cast<unsigned char>(ch)) || ch == '_' || ch == '-')) {
+          return Status::Error(source + ": scheme name '" + name +
+                               "' may contain only letters, digits, '_' and '-'");
+        }
+      }
+      if (!FindKey(kSchemeKeys, key)) {
+        return Status::Error(source + ": unknown key '" + where + "'; [scheme.NAME] keys: " +
+                             KeyList(kSchemeKeys));
+      }
+      if (std::find(scheme_names.begin(), scheme_names.end(), name) == scheme_names.end()) {
+        if (from_override) {
+          std::string list;
+          for (const auto& n : scheme_names) list += (list.empty() ? "" : ", ") + n;
+          return Status::Error("--set " + full + ": no scheme '" + name + "' in " + source +
+                               "; schemes: " + list);
+        }
+        scheme_names.push_back(name);
+      }
+      return Status::Ok();
+    }
+    return Status::Error(source + ": unknown section [" + section +
+                         "]; sections: [sweep], [scheme.NAME]");
+  };
+  for (const auto& [key, value] : raw) {
+    if (Status s = classify(key, false); !s.ok()) return s;
+    if (values.count(key)) return Status::Error(source + ": key '" + key + "' given twice");
+    values[key] = value;
+  }
+  for (const std::string& ov : overrides) {
+    const auto eq = ov.find('=');
+    if (eq == std::string::npos || eq == 0) {
+      return Status::Error("--set '" + ov + "': expected KEY=VALUE, e.g. sweep.target_errors=500");
+    }
+    const std::string key = Trim(ov.substr(0, eq));
+    if (Status s = classify(key, true); !s.ok()) return s;
+    values[key] = Trim(ov.substr(eq + 1));
+  }
+  if (scheme_names.empty()) {
+    return Status::Error(source + ": no [scheme.NAME] section; at least one scheme is required");
+  }
+
+  // 3. Defaults and required keys.
+  RunConfig config;
+  config.source_name = source;
+  for (const auto& k : kSweepKeys) {
+    const std::string full = std::string("sweep.") + k.key;
+    if (!values.count(full)) {
+      if (!k.default_value) {
+        return Status::Error(source + ": missing required key '" + full + "' (" + k.rule + ")");
+      }
+      values[full] = k.default_value;
+    }
+    config.resolved.emplace_back(full, values[full]);
+  }
+  for (const auto& name : scheme_names) {
+    for (const auto& k : kSchemeKeys) {
+      const std::string full = "scheme." + name + "." + k.key;
+      if (!values.count(full)) {
+        if (!k.default_value) {
+          return Status::Error(source + ": missing required key '" + full + "' (" + k.rule + ")");
+        }
+        values[full] = k.default_value;
+      }
+      config.resolved.emplace_back(full, values[full]);
+    }
+  }
+
+  // 4. Typed validation.
+  Validator v(source, values);
+  {
+    auto list = ParseDbList(values["sweep.ebno_db"], source + ": sweep.ebno_db");
+    if (!list.ok()) return list.status();
+    config.sweep.ebno_db = list.value();
+    for (double x : config.sweep.ebno_db) {
+      if (x < -20 || x > 60) return v.Fail("sweep.ebno_db", "points must lie in [-20, 60] dB");
+    }
+    auto te = v.Integer("sweep.target_errors", 1, UINT64_MAX, "an integer > 0");
+    if (!te.ok()) return te.status();
+    config.sweep.target_errors = te.value();
+    auto mb = v.Integer("sweep.max_bits", 1, UINT64_MAX, "an integer > 0");
+    if (!mb.ok()) return mb.status();
+    config.sweep.max_bits = mb.value();
+    auto floor = v.Number("sweep.ber_floor");
+    if (!floor.ok()) return floor.status();
+    if (!(floor.value() >= 0 && floor.value() < 0.5)) return v.Fail("sweep.ber_floor", "must be in [0, 0.5)");
+    config.sweep.ber_floor = floor.value();
+    auto tb = v.Number("sweep.target_ber");
+    if (!tb.ok()) return tb.status();
+    if (!(tb.value() > 0 && tb.value() < 0.5)) return v.Fail("sweep.target_ber", "must be in (0, 0.5)");
+    config.sweep.target_ber = tb.value();
+    auto seed = v.Integer("sweep.seed", 0, UINT64_MAX, "an integer >= 0");
+    if (!seed.ok()) return seed.status();
+    config.sweep.seed = seed.value();
+    auto th = v.Integer("sweep.threads", 0, 4096, "an integer in [0, 4096] (0: all cores)");
+    if (!th.ok()) return th.status();
+    config.sweep.threads = static_cast<int>(th.value());
+  }
+  for (const auto& name : scheme_names) {
+    const std::string p = "scheme." + name + ".";
+    SchemeConfig s;
+    s.name = name;
+    auto mod = ParseModulation(values[p + "modulation"]);
+    if (!mod.ok()) return v.Fail(p + "modulation", mod.status().message());
+    s.modulation = mod.value();
+    auto dm = ParseDemapMethod(values[p + "demapper"]);
+    if (!dm.ok()) return v.Fail(p + "demapper", dm.status().message());
+    s.demapper = dm.value();
+    auto src = ParseSource(values[p + "source"]);
+    if (!src.ok()) return v.Fail(p + "source", src.status().message());
+    s.source = src.value();
+    const int m = s.modulation.bits_per_symbol();
+    auto fb = v.Integer(p + "frame_bits", 1, 16777216, "an integer in [1, 16777216]");
+    if (!fb.ok()) return fb.status();
+    s.frame_bits = static_cast<std::uint32_t>(fb.value());
+    if (s.frame_bits % static_cast<std::uint32_t>(m) != 0) {
+      return v.Fail(p + "frame_bits", "must be a multiple of " + std::to_string(m) +
+                                          " (bits per symbol of " + ToString(s.modulation) + ")");
+    }
+    auto uf = v.Integer(p + "unit_frames", 0, 1u << 20, "an integer in [0, 1048576] (0: automatic)");
+    if (!uf.ok()) return uf.status();
+    s.unit_frames = static_cast<std::uint32_t>(uf.value());
+    if (values[p + "code"] != "none") {
+      return v.Fail(p + "code", "valid: none (convolutional and LDPC codes are not built yet)");
+    }
+    config.schemes.push_back(s);
+  }
+  return config;
+}
+
+Result<RunConfig> LoadRunConfig(const std::string& path, const std::vector<std::string>& overrides) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return Status::Error(path + ": cannot open config file");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  if (in.bad()) return Status::Error(path + ": read error");
+  return ParseRunConfig(ss.str(), path, overrides);
+}
+
+}  // namespace capgap

@@ -1,0 +1,77 @@
+// Run configuration: the INI scheme file (read by Boost.Program_options),
+// command-line overrides, validation of every key before the first frame, and
+// the resolved configuration text stored in every output file.
+//
+// Format: a [sweep] section and one [scheme.NAME] section per scheme, in the
+// order they are simulated. Keys and defaults are listed in kSweepKeys /
+// kSchemeKeys (config.cc) and in the README. Every error names the file, the
+// full key, the value and the rule.
+#ifndef CAPGAP_SIM_CONFIG_H_
+#define CAPGAP_SIM_CONFIG_H_
+
+#include <cstdint>
+#include <map>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "blocks/core/status.h"
+#include "blocks/mapping/demapper.h"
+#include "blocks/mapping/modulation.h"
+
+namespace capgap {
+
+enum class SourceKind { kRandom, kPrbs9, kPrbs15, kPrbs23, kPrbs31 };
+
+struct SweepConfig {
+  std::vector<double> ebno_db;          // points in simulation order
+  std::uint64_t target_errors = 100;    // bit errors that end a point
+  std::uint64_t max_bits = 100000000;   // information bits that end a point
+  double ber_floor = 1e-7;              // a scheme's sweep ends after a point below it
+  double target_ber = 1e-5;             // BER of the summary (Eb/N0 needed, gaps)
+  std::uint64_t seed = 1;
+  int threads = 0;                      // 0: all cores
+};
+
+struct SchemeConfig {
+  std::string name;
+  Modulation modulation;
+  DemapMethod demapper = DemapMethod::kMaxLog;
+  std::uint32_t frame_bits = 0;         // information bits per frame
+  std::uint32_t unit_frames = 0;        // frames per work unit (0 = automatic)
+  SourceKind source = SourceKind::kRandom;
+  std::string code = "none";
+  double code_rate = 1.0;
+  // Frames per work unit after resolving "automatic" (a function of the
+  // scheme only, never of the thread count).
+  std::uint32_t ResolvedUnitFrames() const;
+};
+
+struct RunConfig {
+  std::string source_name;  // file name used in messages
+  SweepConfig sweep;
+  std::vector<SchemeConfig> schemes;
+  // Every key after defaults and overrides, "section.key" -> value.
+  std::vector<std::pair<std::string, std::string>> resolved;
+  // INI text equivalent to `resolved` (stored in output files).
+  std::string ResolvedText() const;
+};
+
+// Parses and validates an INI file; `overrides` are "KEY=VALUE" strings
+// (e.g. "sweep.target_errors=500", "scheme.qpsk.frame_bits=4096") applied
+// after the file, before validation.
+Result<RunConfig> LoadRunConfig(const std::string& path,
+                                const std::vector<std::string>& overrides);
+// Same, from text already in memory (tests); `source_name` is used in messages.
+Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& source_name,
+                                 const std::vector<std::string>& overrides);
+
+// Range syntax shared by config and CLI: "START:STEP:STOP" (inclusive, STEP > 0,
+// STOP >= START) or a comma list "a,b,c". `what` names the key in messages.
+Result<std::vector<double>> ParseDbList(const std::string& text, const std::string& what);
+
+std::string ToString(SourceKind kind);
+
+}  // namespace capgap
+
+#endif  // CAPGAP_SIM_CONFIG_H_

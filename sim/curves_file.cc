@@ -1,0 +1,265 @@
+// HDF5 writer and reader of the curves file (HDF5 C++ API).
+#include "sim/curves_file.h"
+
+#include <unistd.h>
+
+#include <cstdio>
+#include <ctime>
+#include <filesystem>
+
+#include <H5Cpp.h>
+
+#include "sim/build_info.h"
+
+namespace capgap {
+namespace {
+
+void StrAttr(H5::H5Object& obj, const char* name, const std::string& value) {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  type.setCset(H5T_CSET_UTF8);
+  H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+  a.write(type, value);
+}
+
+template <typename T>
+void NumAttr(H5::H5Object& obj, const char* name, const H5::PredType& type, T value) {
+  H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+  a.write(type, &value);
+}
+
+template <typename T>
+void Dataset(H5::Group& g, const char* name, const H5::PredType& type, const std::vector<T>& v) {
+  const hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  if (!v.empty()) ds.write(v.data(), type);
+}
+
+void StringDataset(H5::Group& g, const char* name, const std::vector<std::string>& v) {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  type.setCset(H5T_CSET_UTF8);
+  const hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  std::vector<const char*> ptrs;
+  for (const auto& s : v) ptrs.push_back(s.c_str());
+  if (!ptrs.empty()) ds.write(ptrs.data(), type);
+}
+
+std::string ReadStrAttr(const H5::H5Object& obj, const char* name) {
+  H5::Attribute a = obj.openAttribute(name);
+  H5::StrType type = a.getStrType();
+  std::string out;
+  a.read(type, out);
+  return out;
+}
+
+double ReadDoubleAttr(const H5::H5Object& obj, const char* name) {
+  double v = 0;
+  obj.openAttribute(name).read(H5::PredType::NATIVE_DOUBLE, &v);
+  return v;
+}
+
+template <typename T>
+std::vector<T> ReadDataset(const H5::Group& g, const char* name, const H5::PredType& type) {
+  H5::DataSet ds = g.openDataSet(name);
+  hsize_t dims[1] = {0};
+  ds.getSpace().getSimpleExtentDims(dims);
+  std::vector<T> v(dims[0]);
+  if (!v.empty()) ds.read(v.data(), type);
+  return v;
+}
+
+}  // namespace
+
+std::string UtcNow() {
+  const std::time_t t = std::time(nullptr);
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &tm);
+  return buf;
+}
+
+Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
+                       const std::vector<SchemeResult>& schemes) {
+  namespace fs = std::filesystem;
+  const fs::path final_path(path);
+  std::error_code ec;
+  if (final_path.has_parent_path()) fs::create_directories(final_path.parent_path(), ec);
+  const std::string tmp = path + ".tmp-" + std::to_string(::getpid());
+  H5::Exception::dontPrint();
+  try {
+    H5::H5File file(tmp, H5F_ACC_TRUNC);
+    StrAttr(file, "format", kCurvesFormat);
+    NumAttr(file, "format_version", H5::PredType::NATIVE_INT, kCurvesFormatVersion);
+    StrAttr(file, "program_version", ProgramVersion());
+    StrAttr(file, "git_revision", GitRevision());
+    StrAttr(file, "compiler", CompilerId());
+    StrAttr(file, "build_type", BuildType());
+    StrAttr(file, "created_utc", meta.created_utc);
+    StrAttr(file, "command_line", meta.command_line);
+    StrAttr(file, "config", meta.config_text);
+    NumAttr(file, "threads", H5::PredType::NATIVE_INT, meta.threads);
+    NumAttr(file, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
+    StrAttr(file, "kernel_target", meta.kernel_target);
+    std::string order;
+    for (const SchemeResult& r : schemes) order += (order.empty() ? "" : ",") + r.scheme.name;
+    StrAttr(file, "schemes", order);
+
+    for (const SchemeResult& r : schemes) {
+      H5::Group g = file.createGroup("/" + r.scheme.name);
+      StrAttr(g, "modulation", ToString(r.scheme.modulation));
+      NumAttr(g, "bits_per_symbol", H5::PredType::NATIVE_INT, r.scheme.modulation.bits_per_symbol());
+      StrAttr(g, "code", r.scheme.code);
+      NumAttr(g, "code_rate", H5::PredType::NATIVE_DOUBLE, r.code_rate);
+      NumAttr(g, "info_bits_per_symbol", H5::PredType::NATIVE_DOUBLE, r.info_bits_per_symbol);
+      NumAttr(g, "spectral_efficiency", H5::PredType::NATIVE_DOUBLE, r.spectral_efficiency);
+      StrAttr(g, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
+      NumAttr(g, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
+      NumAttr(g, "target_ber", H5::PredType::NATIVE_DOUBLE, r.target_ber);
+      StrAttr(g, "demapper", ToString(r.scheme.demapper));
+      StrAttr(g, "source", ToString(r.scheme.source));
+      NumAttr(g, "frame_bits", H5::PredType::NATIVE_UINT32, r.scheme.frame_bits);
+      NumAttr(g, "unit_frames", H5::PredType::NATIVE_UINT32, r.scheme.ResolvedUnitFrames());
+
+      std::vector<double> ebno, esno, ber, ber_low, ber_high, fer, fer_low, fer_high, seconds;
+      std::vector<std::uint64_t> bits, bit_errors, frames, frame_errors;
+      std::vector<std::string> stop;
+      for (const PointResult& p : r.points) {
+        ebno.push_back(p.ebno_db);
+        esno.push_back(p.esno_db);
+        bits.push_back(p.counts.bits);
+        bit_errors.push_back(p.counts.bit_errors);
+        frames.push_back(p.counts.frames);
+        frame_errors.push_back(p.counts.frame_errors);
+        ber.push_back(p.ber());
+        ber_low.push_back(p.ber_ci.low);
+        ber_high.push_back(p.ber_ci.high);
+        fer.push_back(p.fer());
+        fer_low.push_back(p.fer_ci.low);
+        fer_high.push_back(p.fer_ci.high);
+        seconds.push_back(p.seconds);
+        stop.push_back(ToString(p.stop_reason));
+      }
+      const auto& F64 = H5::PredType::NATIVE_DOUBLE;
+      const auto& U64 = H5::PredType::NATIVE_UINT64;
+      Dataset(g, "ebno_db", F64, ebno);
+      Dataset(g, "esno_db", F64, esno);
+      Dataset(g, "bits", U64, bits);
+      Dataset(g, "bit_errors", U64, bit_errors);
+      Dataset(g, "frames", U64, frames);
+      Dataset(g, "frame_errors", U64, frame_errors);
+      Dataset(g, "ber", F64, ber);
+      Dataset(g, "ber_low", F64, ber_low);
+      Dataset(g, "ber_high", F64, ber_high);
+      Dataset(g, "fer", F64, fer);
+      Dataset(g, "fer_low", F64, fer_low);
+      Dataset(g, "fer_high", F64, fer_high);
+      Dataset(g, "seconds", F64, seconds);
+      StringDataset(g, "stop_reason", stop);
+
+      H5::Group th = g.createGroup("theory");
+      Dataset(th, "ebno_db", F64, r.theory.ebno_db);
+      Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
+      Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
+
+      H5::Group lim = g.createGroup("limits");
+      NumAttr(lim, "shannon_ebno_db", F64, r.limits.shannon_ebno_db);
+      NumAttr(lim, "constrained_ebno_db", F64, r.limits.constrained_ebno_db);
+      StrAttr(lim, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
+      StrAttr(lim, "notes", r.limits.notes);
+
+      H5::Group sum = g.createGroup("summary");
+      const Summary& s = r.summary;
+      NumAttr(sum, "ebno_at_target_db", F64, s.ebno_at_target_db);
+      NumAttr(sum, "ebno_at_target_low_db", F64, s.ebno_at_target_low_db);
+      NumAttr(sum, "ebno_at_target_high_db", F64, s.ebno_at_target_high_db);
+      NumAttr(sum, "uncoded_ebno_at_target_db", F64, s.uncoded_ebno_at_target_db);
+      NumAttr(sum, "coding_gain_db", F64, s.coding_gain_db);
+      NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
+      NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
+    }
+    file.close();
+  } catch (const H5::Exception& e) {
+    std::remove(tmp.c_str());
+    return Status::Error(path + ": HDF5 write failed: " + e.getDetailMsg());
+  }
+  fs::rename(tmp, final_path, ec);
+  if (ec) {
+    std::remove(tmp.c_str());
+    return Status::Error(path + ": cannot rename temporary file: " + ec.message());
+  }
+  return Status::Ok();
+}
+
+Result<StoredRun> ReadCurvesFile(const std::string& path) {
+  H5::Exception::dontPrint();
+  if (!std::filesystem::exists(path)) return Status::Error(path + ": no such file");
+  try {
+    if (!H5::H5File::isHdf5(path)) return Status::Error(path + ": not an HDF5 file");
+    H5::H5File file(path, H5F_ACC_RDONLY);
+    if (!file.attrExists("format") || ReadStrAttr(file, "format") != kCurvesFormat) {
+      return Status::Error(path + ": not a capgap curves file (attribute format != '" +
+                           std::string(kCurvesFormat) + "')");
+    }
+    int version = 0;
+    file.openAttribute("format_version").read(H5::PredType::NATIVE_INT, &version);
+    if (version != kCurvesFormatVersion) {
+      return Status::Error(path + ": format_version " + std::to_string(version) +
+                           " is not supported (this program reads " +
+                           std::to_string(kCurvesFormatVersion) + ")");
+    }
+    StoredRun run;
+    run.program_version = ReadStrAttr(file, "program_version");
+    run.created_utc = ReadStrAttr(file, "created_utc");
+    file.openAttribute("threads").read(H5::PredType::NATIVE_INT, &run.threads);
+    // HDF5 lists groups by name; the root attribute "schemes" keeps run order.
+    std::vector<std::string> names;
+    if (file.attrExists("schemes")) {
+      const std::string order = ReadStrAttr(file, "schemes");
+      std::size_t start = 0;
+      while (start < order.size()) {
+        std::size_t comma = order.find(',', start);
+        if (comma == std::string::npos) comma = order.size();
+        names.push_back(order.substr(start, comma - start));
+        start = comma + 1;
+      }
+    } else {
+      for (hsize_t i = 0; i < file.getNumObjs(); ++i) names.push_back(file.getObjnameByIdx(i));
+    }
+    for (const std::string& name : names) {
+      H5::Group g = file.openGroup("/" + name);
+      StoredScheme s;
+      s.name = name;
+      s.modulation = ReadStrAttr(g, "modulation");
+      s.demapper = ReadStrAttr(g, "demapper");
+      s.code = ReadStrAttr(g, "code");
+      s.code_rate = ReadDoubleAttr(g, "code_rate");
+      s.info_bits_per_symbol = ReadDoubleAttr(g, "info_bits_per_symbol");
+      s.spectral_efficiency = ReadDoubleAttr(g, "spectral_efficiency");
+      s.target_ber = ReadDoubleAttr(g, "target_ber");
+      s.ebno_db = ReadDataset<double>(g, "ebno_db", H5::PredType::NATIVE_DOUBLE);
+      s.ber = ReadDataset<double>(g, "ber", H5::PredType::NATIVE_DOUBLE);
+      s.bits = ReadDataset<std::uint64_t>(g, "bits", H5::PredType::NATIVE_UINT64);
+      s.bit_errors = ReadDataset<std::uint64_t>(g, "bit_errors", H5::PredType::NATIVE_UINT64);
+      H5::Group lim = g.openGroup("limits");
+      s.shannon_ebno_db = ReadDoubleAttr(lim, "shannon_ebno_db");
+      s.constrained_ebno_db = ReadDoubleAttr(lim, "constrained_ebno_db");
+      H5::Group sum = g.openGroup("summary");
+      s.summary.ebno_at_target_db = ReadDoubleAttr(sum, "ebno_at_target_db");
+      s.summary.ebno_at_target_low_db = ReadDoubleAttr(sum, "ebno_at_target_low_db");
+      s.summary.ebno_at_target_high_db = ReadDoubleAttr(sum, "ebno_at_target_high_db");
+      s.summary.uncoded_ebno_at_target_db = ReadDoubleAttr(sum, "uncoded_ebno_at_target_db");
+      s.summary.coding_gain_db = ReadDoubleAttr(sum, "coding_gain_db");
+      s.summary.gap_to_shannon_db = ReadDoubleAttr(sum, "gap_to_shannon_db");
+      s.summary.gap_to_constrained_db = ReadDoubleAttr(sum, "gap_to_constrained_db");
+      run.schemes.push_back(std::move(s));
+    }
+    return run;
+  } catch (const H5::Exception& e) {
+    return Status::Error(path + ": cannot read curves file: " + e.getDetailMsg());
+  }
+}
+
+}  // namespace capgap

@@ -1,0 +1,58 @@
+// Everything reported for one scheme of a run: the simulated points, uncoded
+// theory on a fine grid, the capacity limits for its information bits per
+// symbol, and the summary at target_ber (Eb/N0 needed with its interval from
+// the CI bounds, coding gain, gaps to the limits).
+#ifndef CAPGAP_SIM_SCHEME_RESULT_H_
+#define CAPGAP_SIM_SCHEME_RESULT_H_
+
+#include <string>
+#include <vector>
+
+#include "sim/chain.h"
+#include "sim/config.h"
+#include "sim/engine.h"
+
+namespace capgap {
+
+struct TheoryCurve {
+  std::vector<double> ebno_db;
+  std::vector<double> ber_uncoded;
+  std::vector<double> ser_uncoded;
+};
+
+struct Limits {
+  double shannon_ebno_db;      // unconstrained Gaussian input at spectral_efficiency
+  double constrained_ebno_db;  // this constellation at rho; +inf when rho = m
+  std::string spectral_efficiency_basis;
+  std::string notes;
+};
+
+struct Summary {
+  double ebno_at_target_db;
+  double ebno_at_target_low_db;   // from the lower CI bound (optimistic)
+  double ebno_at_target_high_db;  // from the upper CI bound (pessimistic)
+  double uncoded_ebno_at_target_db;
+  double coding_gain_db;
+  double gap_to_shannon_db;
+  double gap_to_constrained_db;
+};
+
+struct SchemeResult {
+  SchemeConfig scheme;
+  double code_rate = 1;
+  double info_bits_per_symbol = 1;
+  double spectral_efficiency = 1;
+  double target_ber = 1e-5;
+  std::vector<PointResult> points;
+  TheoryCurve theory;
+  Limits limits;
+  Summary summary;
+};
+
+// Fills theory, limits and summary for simulated points of `chain`.
+SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
+                           std::vector<PointResult> points);
+
+}  // namespace capgap
+
+#endif  // CAPGAP_SIM_SCHEME_RESULT_H_

@@ -1,0 +1,16 @@
+#!/usr/bin/env bash
+# The main job on the demo config: installs what is missing, builds capgap
+# (Release), runs configs/demo.ini, writes results/demo.h5 and
+# results/demo.png (+ .svg), and prints the summary table.
+set -euo pipefail
+cd "$(dirname "$0")/../.."
+bash sim/scripts/setup_debian.sh
+cmake -S . -B build -DCMAKE_BUILD_TYPE=Release -DCAPGAP_BUILD_TESTS=OFF > build-configure.log 2>&1 \
+  || { cat build-configure.log; exit 1; }
+rm -f build-configure.log
+cmake --build build -j"$(nproc)"
+mkdir -p results
+./build/capgap run configs/demo.ini -o results/demo.h5 "$@"
+# Debian's interpreter has the plotting packages (another python3 on PATH may not).
+/usr/bin/python3 analysis/plot_curves.py results/demo.h5 -o results/demo.png
+echo "plot: results/demo.png (and results/demo.svg)"

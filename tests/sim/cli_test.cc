@@ -1,0 +1,143 @@
+// The capgap binary as a user meets it: bad input gives one clear line and a
+// non-zero exit with nothing left behind; --threads 1 and --threads 2 write
+// identical counts; theory --csv is machine-readable; summary reads a file.
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <string>
+
+#include <gtest/gtest.h>
+
+#include "sim/curves_file.h"
+
+namespace capgap {
+namespace {
+
+namespace fs = std::filesystem;
+
+struct Output {
+  int status;
+  std::string text;  // stdout and stderr
+};
+
+Output Capgap(const std::string& args) {
+  const std::string cmd = std::string(CAPGAP_BINARY_DIR) + "/capgap " + args + " 2>&1";
+  FILE* p = popen(cmd.c_str(), "r");
+  Output out{-1, ""};
+  if (!p) return out;
+  char buf[4096];
+  while (std::fgets(buf, sizeof buf, p)) out.text += buf;
+  const int raw = pclose(p);
+  out.status = WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+  return out;
+}
+
+std::string Config(const std::string& name) {
+  return std::string(CAPGAP_SOURCE_DIR) + "/configs/" + name;
+}
+
+fs::path TempDir() {
+  fs::path dir = fs::temp_directory_path() / ("capgap_cli_test_" + std::to_string(::getpid()));
+  fs::create_directories(dir);
+  return dir;
+}
+
+TEST(Cli, BadConfigValueGivesOneLineAndNoFile) {
+  const fs::path out = TempDir() / "bad.h5";
+  const Output o = Capgap("run " + Config("ci_tiny.ini") + " -o " + out.string() +
+                          " --quiet --set sweep.target_errors=-5");
+  EXPECT_EQ(o.status, 1);
+  EXPECT_EQ(o.text, "capgap: " + Config("ci_tiny.ini") +
+                        ": sweep.target_errors = '-5': must be an integer > 0\n");
+  EXPECT_FALSE(fs::exists(out));
+}
+
+TEST(Cli, UnknownModulationListsValidWords) {
+  const Output o = Capgap("theory --modulation 12qam --ebno-db 0:1:2");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--modulation = '12qam'"), std::string::npos) << o.text;
+  EXPECT_NE(o.text.find("256qam"), std::string::npos) << o.text;
+}
+
+TEST(Cli, MalformedRangeAndUnknownCommandAreUsageErrors) {
+  EXPECT_EQ(Capgap("theory --modulation qpsk --ebno-db 0:1").status, 2);
+  const Output o = Capgap("simulate x");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: unknown command 'simulate'; commands: run, theory, summary (capgap --help)\n");
+  EXPECT_EQ(Capgap("run").status, 2);
+}
+
+TEST(Cli, UnreadableFilesAreReported) {
+  const Output o = Capgap("run /nonexistent/x.ini --quiet");
+  EXPECT_EQ(o.status, 1);
+  EXPECT_EQ(o.text, "capgap: /nonexistent/x.ini: cannot open config file\n");
+  const Output s = Capgap("summary " + Config("ci_tiny.ini"));
+  EXPECT_EQ(s.status, 1);
+  EXPECT_NE(s.text.find("not an HDF5 file"), std::string::npos) << s.text;
+}
+
+TEST(Cli, HelpWorksOnEveryCommand) {
+  for (const char* cmd : {"--help", "run --help", "theory --help", "summary --help"}) {
+    const Output o = Capgap(cmd);
+    EXPECT_EQ(o.status, 0) << cmd;
+    EXPECT_NE(o.text.find("capgap"), std::string::npos) << cmd;
+  }
+}
+
+TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
+  const fs::path dir = TempDir();
+  const std::string a = (dir / "t1.h5").string(), b = (dir / "t2.h5").string();
+  ASSERT_EQ(Capgap("run " + Config("ci_tiny.ini") + " -o " + a + " --quiet --threads 1").status, 0);
+  ASSERT_EQ(Capgap("run " + Config("ci_tiny.ini") + " -o " + b + " --quiet --threads 2").status, 0);
+  auto ra = ReadCurvesFile(a);
+  auto rb = ReadCurvesFile(b);
+  ASSERT_TRUE(ra.ok()) << ra.status().message();
+  ASSERT_TRUE(rb.ok()) << rb.status().message();
+  ASSERT_EQ(ra.value().schemes.size(), 2u);
+  EXPECT_EQ(ra.value().threads, 1);
+  EXPECT_EQ(rb.value().threads, 2);
+  for (std::size_t i = 0; i < 2; ++i) {
+    EXPECT_EQ(ra.value().schemes[i].bits, rb.value().schemes[i].bits);
+    EXPECT_EQ(ra.value().schemes[i].bit_errors, rb.value().schemes[i].bit_errors);
+    EXPECT_GT(ra.value().schemes[i].bit_errors.at(0), 0u);
+  }
+  const Output s = Capgap("summary " + a);
+  EXPECT_EQ(s.status, 0);
+  EXPECT_NE(s.text.find("qpsk"), std::string::npos) << s.text;
+  // No temporary files left next to the outputs.
+  int files = 0;
+  for (const auto& e : fs::directory_iterator(dir)) files += e.path().extension() == ".h5";
+  for (const auto& e : fs::directory_iterator(dir)) {
+    EXPECT_EQ(e.path().string().find(".tmp-"), std::string::npos) << e.path();
+  }
+  EXPECT_GE(files, 2);
+}
+
+// BPSK Pb = Q(sqrt(2 Eb/N0)) = 1.2501e-2 at 4 dB (Proakis & Salehi, Digital
+// Communications, 5th ed., ch. 4; evaluated with scipy.special.erfc).
+TEST(Cli, TheoryCsvIsMachineReadable) {
+  const Output o = Capgap("theory --modulation bpsk --ebno-db 0:2:4 --rate 0.5 --csv");
+  ASSERT_EQ(o.status, 0) << o.text;
+  EXPECT_NE(o.text.find("# info_bits_per_symbol = 0.5\n"), std::string::npos) << o.text;
+  EXPECT_NE(o.text.find("# shannon_ebno_db = "), std::string::npos);
+  EXPECT_NE(o.text.find("# constrained_ebno_db = "), std::string::npos);
+  EXPECT_NE(o.text.find("\nebno_db,esno_db,ber,ser\n"), std::string::npos);
+  const auto row = o.text.find("\n4,4,");
+  ASSERT_NE(row, std::string::npos) << o.text;
+  const double ber = std::strtod(o.text.c_str() + row + 5, nullptr);
+  EXPECT_NEAR(ber, 1.2501e-2, 1e-6) << o.text;
+}
+
+// Shannon-Hartley: B = 1 MHz at 20 dB gives 1e6 log2(101) = 6.658 Mbit/s (arithmetic).
+TEST(Cli, TheoryShannonHartley) {
+  const Output o = Capgap("theory --bandwidth 1e6 --snr-db 20");
+  ASSERT_EQ(o.status, 0) << o.text;
+  EXPECT_NE(o.text.find("6.65821e+06 bit/s"), std::string::npos) << o.text;
+}
+
+}  // namespace
+}  // namespace capgap
