@@ -1,0 +1,467 @@
+#!/usr/bin/python3
+"""Plot BER (and FER) versus Eb/N0 from a capgap-curves HDF5 file.
+
+Role: the report-quality figure of a capgap run. Reads the file written by
+the C++ sweep engine (layout "capgap-curves", format_version 1; the full
+layout and its read-back check are in tests/python/check_h5_layout.py) and
+draws, per scheme in one colour:
+  * simulated points with their 95 % Clopper-Pearson interval as asymmetric
+    error bars; a point without errors is drawn as an open downward triangle
+    at its interval's upper end (an upper bound, not a measurement);
+  * the closed-form uncoded theory curve (dashed);
+  * the Shannon limit at the scheme's spectral efficiency (dotted vertical)
+    and the constellation-constrained limit (dash-dot; omitted when it is
+    not finite, as for uncoded schemes);
+  * the target BER (thin horizontal line) and a double-headed arrow from the
+    Shannon limit to the Eb/N0 reached at the target, labelled with the gap.
+--fer adds a FER panel (same markers, intervals and limits; no theory or
+target there) under the BER panel; --fer-only draws FER alone.
+Schemes are ordered by the Eb/N0 they need at the target (left to right, as
+the curves appear) unless --schemes gives an order.
+Uses only Debian's python3-matplotlib (Agg backend), python3-h5py and
+python3-numpy.
+
+Usage:
+  /usr/bin/python3 analysis/plot_curves.py FILE.h5 -o OUT.png [--no-svg]
+      [--title TEXT] [--schemes a,b] [--fer | --fer-only] [--dpi N]
+OUT.svg is written next to OUT.png unless --no-svg. Exit status 1 with a
+message naming the file when it is not a readable capgap-curves file.
+"""
+
+import argparse
+import fractions
+import math
+import pathlib
+import sys
+
+import matplotlib
+
+matplotlib.use("Agg")  # before anything that could pick a GUI backend
+
+import h5py  # noqa: E402
+import numpy as np  # noqa: E402
+from matplotlib.figure import Figure  # noqa: E402
+from matplotlib.lines import Line2D  # noqa: E402
+from matplotlib.ticker import LogLocator, MultipleLocator, NullFormatter  # noqa: E402
+
+FORMAT_NAME = "capgap-curves"
+FORMAT_VERSION = 1
+POINT_DATASETS = ("ebno_db", "bits", "bit_errors", "frames", "frame_errors",
+                  "ber", "ber_low", "ber_high", "fer", "fer_low", "fer_high")
+BER_FLOOR = 1e-9
+
+# Colour-blind-safe qualitative palette (Okabe & Ito, "Color Universal
+# Design", 2008; hex values common practice), yellow dropped for contrast on
+# white; one marker shape per colour so the plot also survives greyscale.
+PALETTE = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
+           "#000000", "#882255")
+MARKERS = ("o", "s", "D", "^", "P", "X", "h", "*")
+GREY = "#4d4d4d"
+
+STYLE = {
+    "font.family": "DejaVu Sans",
+    "font.size": 10.5,
+    "axes.titlesize": 13,
+    "axes.titleweight": "semibold",
+    "axes.labelsize": 11.5,
+    "axes.edgecolor": "#333333",
+    "axes.linewidth": 0.8,
+    "xtick.labelsize": 10,
+    "ytick.labelsize": 10,
+    "xtick.direction": "out",
+    "ytick.direction": "out",
+    "legend.fontsize": 9,
+    "legend.title_fontsize": 9.5,
+    "legend.framealpha": 0.92,
+    "legend.edgecolor": "#bbbbbb",
+    "svg.hashsalt": "capgap",  # reproducible SVG ids
+    "svg.fonttype": "path",    # SVG renders the same without DejaVu installed
+}
+
+
+class FileFormatError(Exception):
+    """The input is not a readable capgap-curves file; message says why."""
+
+
+def _str(value):
+    if isinstance(value, (bytes, np.bytes_)):
+        return bytes(value).decode("utf-8", errors="replace")
+    return str(value)
+
+
+def _attr(obj, name, where, kind=float):
+    if name not in obj.attrs:
+        raise FileFormatError(f"{where}: missing attribute '{name}'")
+    value = obj.attrs[name]
+    try:
+        if kind is str:
+            return _str(value)
+        return kind(value)
+    except (TypeError, ValueError):
+        raise FileFormatError(f"{where}: attribute '{name}' = {value!r} is not {kind.__name__}")
+
+
+class Scheme:
+    """One scheme's curves, read from /<name>/ of a capgap-curves file."""
+
+    def __init__(self, g):
+        name = g.name.lstrip("/")
+        self.name = name
+        where = f"/{name}"
+        self.modulation = _attr(g, "modulation", where, str)
+        self.code = _attr(g, "code", where, str)
+        self.code_rate = _attr(g, "code_rate", where)
+        self.rho = _attr(g, "info_bits_per_symbol", where)
+        self.eta = _attr(g, "spectral_efficiency", where)
+        self.target_ber = _attr(g, "target_ber", where)
+        self.demapper = _attr(g, "demapper", where, str) if "demapper" in g.attrs else ""
+        p = None
+        for n in POINT_DATASETS:
+            if n not in g or not isinstance(g[n], h5py.Dataset):
+                raise FileFormatError(f"{where}: missing dataset '{n}'")
+            v = np.asarray(g[n][()], dtype=np.float64)
+            if v.ndim != 1 or (p is not None and v.shape[0] != p):
+                raise FileFormatError(f"{where}/{n}: shape {v.shape} differs from {where}/ebno_db ({p},)")
+            p = v.shape[0]
+            setattr(self, n, v)
+        order = np.argsort(self.ebno_db, kind="stable")
+        for n in POINT_DATASETS:
+            setattr(self, n, getattr(self, n)[order])
+        self.theory_ebno = self.theory_ber = None
+        if "theory" in g and "ebno_db" in g["theory"] and "ber_uncoded" in g["theory"]:
+            self.theory_ebno = np.asarray(g["theory/ebno_db"][()], dtype=np.float64)
+            self.theory_ber = np.asarray(g["theory/ber_uncoded"][()], dtype=np.float64)
+        lim = g["limits"] if "limits" in g else None
+        if lim is None:
+            raise FileFormatError(f"{where}: missing group 'limits'")
+        self.shannon = _attr(lim, "shannon_ebno_db", f"{where}/limits")
+        self.constrained = _attr(lim, "constrained_ebno_db", f"{where}/limits")
+        summ = g["summary"] if "summary" in g else None
+        if summ is None:
+            raise FileFormatError(f"{where}: missing group 'summary'")
+        self.at_target = _attr(summ, "ebno_at_target_db", f"{where}/summary")
+        self.gap_shannon = _attr(summ, "gap_to_shannon_db", f"{where}/summary")
+
+    def label(self):
+        mod = self.modulation.upper().replace("QAM", "-QAM") if self.modulation[:1].isdigit() \
+            else self.modulation.upper()
+        if self.code == "none":
+            code = "uncoded"
+        else:
+            frac = fractions.Fraction(self.code_rate).limit_denominator(64)
+            rate = f"{frac.numerator}/{frac.denominator}" if abs(float(frac) - self.code_rate) < 1e-9 \
+                else f"{self.code_rate:.3g}"
+            code = f"{self.code}, R = {rate}"
+        demapper = f", {self.demapper} demapper" if self.demapper else ""
+        return f"{self.name}  ({mod}, {code}{demapper}, \u03b7 = {self.eta:g})"
+
+
+def read_file(path, wanted):
+    try:
+        f = h5py.File(path, "r")
+    except OSError as e:
+        raise FileFormatError(f"cannot open as HDF5 ({e})")
+    with f:
+        if "format" not in f.attrs:
+            raise FileFormatError("not a capgap-curves file: root attribute 'format' is missing")
+        fmt = _str(f.attrs["format"])
+        if fmt != FORMAT_NAME:
+            raise FileFormatError(f"not a capgap-curves file: format is {fmt!r}, expected {FORMAT_NAME!r}")
+        version = f.attrs.get("format_version")
+        if version is None:
+            raise FileFormatError("root attribute 'format_version' is missing")
+        if int(version) != FORMAT_VERSION:
+            raise FileFormatError(f"format_version is {int(version)}; this script reads {FORMAT_VERSION}")
+        meta = {k: _str(f.attrs[k]) for k in ("program_version", "git_revision", "created_utc",
+                                              "kernel_target", "threads", "seed") if k in f.attrs}
+        available = [n for n in f if isinstance(f[n], h5py.Group)]
+        if not available:
+            raise FileFormatError("contains no scheme group")
+        if wanted:
+            missing = [n for n in wanted if n not in available]
+            if missing:
+                raise FileFormatError(f"no scheme {', '.join(map(repr, missing))}; "
+                                      f"the file has {', '.join(available)}")
+            names = wanted
+        else:
+            names = available
+        schemes = [Scheme(f[n]) for n in names]
+    if not wanted:  # left-to-right order of the curves, as the eye reads them
+        schemes.sort(key=lambda s: (math.isnan(s.at_target), s.at_target, s.name))
+    return schemes, meta
+
+
+# ---------------------------------------------------------------------------
+def _decade_floor(x):
+    return 10.0 ** math.floor(math.log10(x) + 1e-12)
+
+
+def _y_limits(schemes, rate):
+    lows, highs = [], []
+    for s in schemes:
+        low, high, errs = (getattr(s, f"{rate}_low"), getattr(s, f"{rate}_high"),
+                           s.bit_errors if rate == "ber" else s.frame_errors)
+        lows += list(low[low > 0]) + list(high[(errs == 0) & (high > 0)])
+        highs += list(high[high > 0])
+        if rate == "ber":
+            lows.append(s.target_ber)
+    smallest = min(lows) if lows else 1e-6
+    y_min = max(BER_FLOOR, _decade_floor(smallest) / 10.0)
+    top = max(highs) if highs else 0.5
+    if top > 0.1:
+        # FER reaches 1 at low Eb/N0: leave headroom so those markers and
+        # their intervals are not clipped by the frame.
+        y_max = 1.6 if rate == "fer" and top > 0.5 else 1.0
+    else:
+        y_max = 10.0 ** math.ceil(math.log10(top) + 0.05)
+    return y_min, y_max
+
+
+def _x_limits(schemes):
+    xs = []
+    for s in schemes:
+        xs += list(s.ebno_db)
+        xs += [v for v in (s.shannon, s.constrained, s.at_target) if math.isfinite(v)]
+    lo, hi = min(xs), max(xs)
+    return math.floor(lo - 1.0), math.ceil(hi + 1.0)
+
+
+def _style_axes(ax, x_lim, y_lim, ylabel):
+    ax.set_yscale("log")
+    ax.set_xlim(*x_lim)
+    ax.set_ylim(*y_lim)
+    span = x_lim[1] - x_lim[0]
+    major = 1 if span <= 14 else 2 if span <= 30 else 5
+    ax.xaxis.set_major_locator(MultipleLocator(major))
+    ax.xaxis.set_minor_locator(MultipleLocator(major / 2 if major > 1 else 0.5))
+    ax.yaxis.set_major_locator(LogLocator(base=10, numticks=30))
+    ax.yaxis.set_minor_locator(LogLocator(base=10, subs=np.arange(2, 10), numticks=30))
+    ax.yaxis.set_minor_formatter(NullFormatter())
+    ax.grid(True, which="major", color="#d0d0d0", linewidth=0.7)
+    ax.grid(True, which="minor", axis="y", color="#eeeeee", linewidth=0.5)
+    ax.set_axisbelow(True)
+    ax.set_xlabel(r"$E_b/N_0$ per information bit (dB)")
+    ax.set_ylabel(ylabel)
+    for side in ("top", "right"):
+        ax.spines[side].set_visible(False)
+
+
+def _draw_points(ax, s, rate, colour, marker):
+    x = s.ebno_db
+    y, low, high = getattr(s, rate), getattr(s, f"{rate}_low"), getattr(s, f"{rate}_high")
+    errs = s.bit_errors if rate == "ber" else s.frame_errors
+    hit = errs > 0
+    if np.count_nonzero(hit) > 1:
+        ax.plot(x[hit], y[hit], "-", color=colour, linewidth=1.4, alpha=0.85, zorder=3)
+    if np.any(hit):
+        ax.errorbar(x[hit], y[hit], yerr=[y[hit] - low[hit], high[hit] - y[hit]],
+                    fmt=marker, color=colour, markersize=5.5, markerfacecolor=colour,
+                    markeredgecolor="white", markeredgewidth=0.6, elinewidth=1.0,
+                    capsize=2.5, capthick=1.0, zorder=4)
+    if np.any(~hit):
+        ax.plot(x[~hit], high[~hit], "v", color=colour, markersize=6.5, markerfacecolor="white",
+                markeredgewidth=1.3, linestyle="none", zorder=4)
+
+
+def _draw_limits(ax, s, colour):
+    if math.isfinite(s.shannon):
+        ax.axvline(s.shannon, color=colour, linestyle=(0, (1.2, 2.0)), linewidth=1.5,
+                   alpha=0.9, zorder=2)
+    if math.isfinite(s.constrained):
+        ax.axvline(s.constrained, color=colour, linestyle="-.", linewidth=1.2, alpha=0.9, zorder=2)
+
+
+def _draw_gap(ax, s, colour, y):
+    """Arrow from the Shannon limit to the Eb/N0 reached at target_ber.
+
+    Drawn at height y (the target itself for the first scheme, staggered
+    below it for the others); a thin drop line joins the arrow's right end to
+    the curve's crossing of the target line so the reading stays exact.
+    """
+    if not (math.isfinite(s.at_target) and math.isfinite(s.shannon)):
+        return
+    gap = s.gap_shannon if math.isfinite(s.gap_shannon) else s.at_target - s.shannon
+    if y < s.target_ber:
+        ax.plot([s.at_target, s.at_target], [y, s.target_ber], color=colour, linewidth=0.8,
+                linestyle=(0, (1, 1.5)), zorder=5)
+    ax.plot([s.at_target], [s.target_ber], marker="o", markersize=4.5, color=colour,
+            markerfacecolor="white", markeredgewidth=1.2, zorder=6)
+    ax.annotate("", xy=(s.at_target, y), xytext=(s.shannon, y),
+                arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
+                                shrinkA=0, shrinkB=0, mutation_scale=9),
+                zorder=5)
+    # Label at the arrow's right end, on the side away from the scheme's own
+    # curve: under the arrow when it lies on the target line (the curve runs
+    # up-left from there), over it when staggered below the target.
+    below = y >= s.target_ber
+    ax.annotate(f"gap {gap:.2f} dB", xy=(s.at_target, y), xytext=(-7, -2.5 if below else 2.5),
+                textcoords="offset points", ha="right", va="top" if below else "bottom",
+                fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
+                bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
+                          alpha=0.8))
+
+
+def _key_handles(rate, any_zero, any_constrained, with_theory):
+    h = [Line2D([], [], color=GREY, marker="o", markersize=5, linewidth=1.4,
+                label="simulated, 95 % Clopper\u2013Pearson interval")]
+    if any_zero:
+        h.append(Line2D([], [], color=GREY, marker="v", markersize=6.5, markerfacecolor="white",
+                        linestyle="none", label="no errors: 95 % upper bound"))
+    if with_theory:
+        h.append(Line2D([], [], color=GREY, linestyle=(0, (5, 2.5)), linewidth=1.3,
+                        label="uncoded theory"))
+    h.append(Line2D([], [], color=GREY, linestyle=(0, (1.2, 2.0)), linewidth=1.5,
+                    label="Shannon limit at \u03b7"))
+    if any_constrained:
+        h.append(Line2D([], [], color=GREY, linestyle="-.", linewidth=1.2,
+                        label="constellation-constrained limit"))
+    if rate == "ber":
+        h.append(Line2D([], [], color="#222222", linewidth=0.9, label="target BER"))
+    return h
+
+
+def _any_zero(s, rate):
+    return bool(np.any((s.bit_errors if rate == "ber" else s.frame_errors) == 0))
+
+
+def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
+    """One log-y panel of `rate` ("ber" or "fer") versus Eb/N0."""
+    ylabel = "Bit error rate" if rate == "ber" else "Frame error rate"
+    y_lim = _y_limits(schemes, rate)
+    _style_axes(ax, x_lim, y_lim, ylabel)
+    scheme_handles = []
+    for i, s in enumerate(schemes):
+        colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
+        if rate == "ber" and s.theory_ebno is not None:
+            ok = s.theory_ber > 0
+            ax.plot(s.theory_ebno[ok], s.theory_ber[ok], color=colour, linestyle=(0, (5, 2.5)),
+                    linewidth=1.3, alpha=0.9, zorder=2)
+        _draw_points(ax, s, rate, colour, marker)
+        _draw_limits(ax, s, colour)
+        scheme_handles.append(Line2D([], [], color=colour, marker=marker, markersize=5.5,
+                                     markeredgecolor="white", markeredgewidth=0.6,
+                                     linewidth=1.4, label=s.label()))
+    if rate == "ber":
+        for t in sorted({s.target_ber for s in schemes}):
+            ax.axhline(t, color="#222222", linewidth=0.9, zorder=2.5)
+            # Label at the left end: at low Eb/N0 every curve is still above
+            # the target, so that corner is free.
+            ax.annotate(f"target BER {t:.0e}".replace("e-0", "e-"), xy=(0.0, t),
+                        xycoords=("axes fraction", "data"), xytext=(4, 2.5),
+                        textcoords="offset points", ha="left", va="bottom",
+                        fontsize=8.5, color="#222222",
+                        bbox=dict(boxstyle="square,pad=0.1", facecolor="white",
+                                  edgecolor="none", alpha=0.8))
+        # Stagger the gap arrows so several schemes stay legible: the first
+        # sits on its target line, the others step down by 4.5 % of the axes
+        # height each (the region left of the curves is empty there).
+        step = 0.045 * math.log10(y_lim[1] / y_lim[0])
+        per_target = {}
+        for i, s in enumerate(schemes):
+            k = per_target.get(s.target_ber, 0)
+            per_target[s.target_ber] = k + 1
+            y = s.target_ber * 10.0 ** (-step * k)
+            if y < y_lim[0]:
+                continue
+            _draw_gap(ax, s, PALETTE[i % len(PALETTE)], y)
+    # The key (line styles) is the axes' own legend, below the axes, so that
+    # constrained layout reserves room for it; the scheme legend is an extra
+    # artist placed inside wherever it hides the least data.
+    if scheme_legend:
+        ax.add_artist(ax.legend(handles=scheme_handles, loc="best", title="Scheme",
+                                alignment="left", borderaxespad=0.6, fontsize=8.5))
+    if key_handles:
+        ax.legend(handles=key_handles, loc="upper center", bbox_to_anchor=(0.5, -0.1),
+                  ncol=3, frameon=False, handlelength=2.6, columnspacing=1.8, fontsize=8.5)
+
+
+def provenance(path, meta):
+    parts = [pathlib.Path(path).name]
+    if "program_version" in meta:
+        rev = f" ({meta['git_revision']})" if "git_revision" in meta else ""
+        parts.append(f"capgap {meta['program_version']}{rev}")
+    if "kernel_target" in meta:
+        parts.append(f"kernels {meta['kernel_target']}")
+    if "threads" in meta:
+        parts.append(f"{meta['threads']} thread(s)")
+    if "seed" in meta:
+        parts.append(f"seed {meta['seed']}")
+    if "created_utc" in meta:
+        parts.append(meta["created_utc"])
+    return "  \u00b7  ".join(parts)
+
+
+def make_figure(path, schemes, meta, title, fer_mode, dpi):
+    matplotlib.rcParams.update(STYLE)
+    rates = {"none": ["ber"], "also": ["ber", "fer"], "only": ["fer"]}[fer_mode]
+    height = 6.0 if len(rates) == 1 else 10.5
+    fig = Figure(figsize=(9.0, height), dpi=dpi, layout="constrained")
+    axes = fig.subplots(len(rates), 1, sharex=True, squeeze=False)[:, 0]
+    x_lim = _x_limits(schemes)
+    key = _key_handles(
+        "ber" if "ber" in rates else "fer",
+        any_zero=any(_any_zero(s, r) for s in schemes for r in rates),
+        any_constrained=any(math.isfinite(s.constrained) for s in schemes),
+        with_theory="ber" in rates and any(s.theory_ebno is not None for s in schemes))
+    for k, (ax, rate) in enumerate(zip(axes, rates)):
+        last = k == len(rates) - 1
+        draw_panel(ax, schemes, rate, x_lim, scheme_legend=(k == 0),
+                   key_handles=key if last else None)
+        if not last:
+            ax.set_xlabel("")
+    default = {"none": "Bit error rate versus $E_b/N_0$",
+               "also": "Bit and frame error rates versus $E_b/N_0$",
+               "only": "Frame error rate versus $E_b/N_0$"}[fer_mode]
+    fig.suptitle(title if title is not None else default, fontsize=13.5, fontweight="semibold")
+    fig.text(0.01, 0.004, provenance(path, meta), ha="left", va="bottom", fontsize=7,
+             color="#808080")
+    fig.get_layout_engine().set(h_pad=0.12, w_pad=0.08)
+    return fig
+
+
+def parse_args(argv):
+    ap = argparse.ArgumentParser(
+        prog="plot_curves.py",
+        description="Plot BER/FER versus Eb/N0 from a capgap-curves HDF5 file.")
+    ap.add_argument("file", help="capgap-curves HDF5 file")
+    ap.add_argument("-o", "--output", help="PNG to write (default: FILE with .png)")
+    ap.add_argument("--no-svg", action="store_true", help="do not write the SVG next to the PNG")
+    ap.add_argument("--title", help="figure title (default describes the plot)")
+    ap.add_argument("--schemes", help="comma-separated scheme names to plot, in this order")
+    fer = ap.add_mutually_exclusive_group()
+    fer.add_argument("--fer", action="store_true",
+                     help="add a FER panel under the BER panel (figure 9 x 10.5 in)")
+    fer.add_argument("--fer-only", action="store_true", help="plot FER instead of BER")
+    ap.add_argument("--dpi", type=int, default=150, help="PNG resolution (default 150)")
+    return ap.parse_args(argv)
+
+
+def main(argv):
+    args = parse_args(argv)
+    prog = "plot_curves.py"
+    png = pathlib.Path(args.output) if args.output else pathlib.Path(args.file).with_suffix(".png")
+    if png.suffix.lower() != ".png":
+        print(f"{prog}: error: -o {png}: the output must end in .png "
+              "(the SVG is written beside it)", file=sys.stderr)
+        return 2
+    wanted = [w.strip() for w in args.schemes.split(",") if w.strip()] if args.schemes else None
+    try:
+        schemes, meta = read_file(args.file, wanted)
+    except FileFormatError as e:
+        print(f"{prog}: error: {args.file}: {e}", file=sys.stderr)
+        return 1
+    fer_mode = "only" if args.fer_only else "also" if args.fer else "none"
+    fig = make_figure(args.file, schemes, meta, args.title, fer_mode, args.dpi)
+    png.parent.mkdir(parents=True, exist_ok=True)
+    fig.savefig(png, dpi=args.dpi, metadata={"Software": "capgap analysis/plot_curves.py"})
+    written = [str(png)]
+    if not args.no_svg:
+        svg = png.with_suffix(".svg")
+        fig.savefig(svg, metadata={"Date": None, "Creator": "capgap analysis/plot_curves.py"})
+        written.append(str(svg))
+    print(f"wrote {', '.join(written)}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main(sys.argv[1:]))
