@@ -290,12 +290,11 @@ def _draw_gap(ax, s, colour, y):
                 arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                 shrinkA=0, shrinkB=0, mutation_scale=9),
                 zorder=5)
-    # Label at the arrow's right end, on the side away from the scheme's own
-    # curve: under the arrow when it lies on the target line (the curve runs
-    # up-left from there), over it when staggered below the target.
-    below = y >= s.target_ber
-    ax.annotate(f"gap {gap:.2f} dB", xy=(s.at_target, y), xytext=(-7, -2.5 if below else 2.5),
-                textcoords="offset points", ha="right", va="top" if below else "bottom",
+    # Label centred just above its own arrow: arrows are staggered by more
+    # than a text height, so labels of schemes with similar gaps never collide.
+    mid = 0.5 * (s.shannon + s.at_target)
+    ax.annotate(f"gap {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
+                textcoords="offset points", ha="center", va="bottom",
                 fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
                 bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
                           alpha=0.8))
@@ -364,15 +363,18 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
             if y < y_lim[0]:
                 continue
             _draw_gap(ax, s, PALETTE[i % len(PALETTE)], y)
-    # The key (line styles) is the axes' own legend, below the axes, so that
-    # constrained layout reserves room for it; the scheme legend is an extra
-    # artist placed inside wherever it hides the least data.
-    if scheme_legend:
-        ax.add_artist(ax.legend(handles=scheme_handles, loc="best", title="Scheme",
-                                alignment="left", borderaxespad=0.6, fontsize=8.5))
+    # One legend outside the axes on the right (constrained layout reserves
+    # room for an axes legend): schemes first, then the line-style key. Inside
+    # the axes it would cover the gap annotations or the curves.
+    handles = list(scheme_handles) if scheme_legend else []
     if key_handles:
-        ax.legend(handles=key_handles, loc="upper center", bbox_to_anchor=(0.5, -0.1),
-                  ncol=3, frameon=False, handlelength=2.6, columnspacing=1.8, fontsize=8.5)
+        if handles:
+            handles.append(Line2D([], [], linestyle="none", label=" "))
+        handles.extend(key_handles)
+    if handles:
+        ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.01, 1.0),
+                  title="Scheme" if scheme_legend else None, alignment="left",
+                  borderaxespad=0.0, fontsize=8.5, handlelength=2.6)
 
 
 def provenance(path, meta):
@@ -395,7 +397,7 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
     matplotlib.rcParams.update(STYLE)
     rates = {"none": ["ber"], "also": ["ber", "fer"], "only": ["fer"]}[fer_mode]
     height = 6.0 if len(rates) == 1 else 10.5
-    fig = Figure(figsize=(9.0, height), dpi=dpi, layout="constrained")
+    fig = Figure(figsize=(12.0, height), dpi=dpi, layout="constrained")
     axes = fig.subplots(len(rates), 1, sharex=True, squeeze=False)[:, 0]
     x_lim = _x_limits(schemes)
     key = _key_handles(

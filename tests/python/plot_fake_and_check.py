@@ -5,11 +5,11 @@ Role: end-to-end test of analysis/plot_curves.py that needs no simulator.
 Steps, each reported as PASS/FAIL:
   1. write a synthetic file with tests/python/make_fake_h5.py;
   2. plot it (BER) to WORKDIR/fake_curves.png; the PNG must exist, carry
-     the PNG signature and be 9 x 6 in at 150 dpi (1350 x 900 pixels, read
+     the PNG signature and be 12 x 6 in at 150 dpi (1800 x 900 pixels, read
      from the IHDR chunk), and fake_curves.svg must exist, be non-empty and
      parse as XML with an <svg> root;
   3. plot it again with --fer --schemes --title --no-svg: PNG written,
-     9 x 10.5 in (1350 x 1575), and no SVG;
+     12 x 10.5 in (1800 x 1575), and no SVG;
   4. the plot script must refuse a non-HDF5 file and an HDF5 file without
      the capgap-curves "format" attribute: exit status 1, a message naming
      the file and the reason, and no PNG left behind.
@@ -71,7 +71,7 @@ def main(argv):
     report(r.returncode == 0, "plot_curves.py FILE -o PNG exits 0", log)
     size = png_size(png) if png.exists() else None
     report(png.exists() and png.stat().st_size > 0, f"{png.name} exists and is non-empty")
-    report(size == (1350, 900), f"{png.name} is a PNG of 1350 x 900 pixels (9 x 6 in at 150 dpi)",
+    report(size == (1800, 900), f"{png.name} is a PNG of 1800 x 900 pixels (12 x 6 in at 150 dpi)",
            f"IHDR says {size}")
     svg_ok, detail = False, "missing"
     if svg.exists() and svg.stat().st_size > 0:
@@ -90,15 +90,15 @@ def main(argv):
                        "--title", "Synthetic test data"])
     report(r.returncode == 0 and png2.exists() and png2.stat().st_size > 0,
            "--fer --schemes --title --no-svg writes the PNG", log)
-    report(png2.exists() and png_size(png2) == (1350, 1575),
-           "two-panel PNG is 1350 x 1575 pixels (9 x 10.5 in)",
+    report(png2.exists() and png_size(png2) == (1800, 1575),
+           "two-panel PNG is 1800 x 1575 pixels (12 x 10.5 in)",
            f"IHDR says {png_size(png2) if png2.exists() else None}")
     report(not svg2.exists(), "--no-svg writes no SVG")
     png3 = work / "fake_fer_only.png"
     png3.unlink(missing_ok=True)
     r, log = run(py + [args.plotter, str(fake), "-o", str(png3), "--fer-only", "--no-svg"])
-    report(r.returncode == 0 and png3.exists() and png_size(png3) == (1350, 900),
-           "--fer-only writes a one-panel 1350 x 900 PNG", log)
+    report(r.returncode == 0 and png3.exists() and png_size(png3) == (1800, 900),
+           "--fer-only writes a one-panel 1800 x 900 PNG", log)
 
     r, log = run(py + [args.plotter, str(fake), "-o", str(work / "x.png"), "--schemes", "nosuch"])
     report(r.returncode == 1 and "nosuch" in r.stderr and "qpsk_uncoded" in r.stderr,
