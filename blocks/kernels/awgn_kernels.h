@@ -12,8 +12,10 @@
 //   u2 = (w2 + 1/2) 2^-32             (angle uniform)
 //   z0 = r cos(2 pi u2), z1 = r sin(2 pi u2), r = sqrt(-2 ln u1)
 // (Box & Muller, Ann. Math. Stat. 29, 1958). The 64-bit radius uniform keeps
-// the tail exact out to r_max = sqrt(2 ln 2^64) = 9.42 sigma, far below any
-// BER a sweep can reach (P(|z| > 9.4) ~ 5e-21); w3 is unused.
+// the tail exact out to r_max = sqrt(2 ln 2^65) = 9.49 sigma (the smallest u1
+// is 2^-65). Beyond it the true normal has mass P(|z| > 9.49) ~ 2e-21, so any
+// BER a sweep can reach (even BPSK at 1e-15 needs only 7.9 sigma) is unaffected;
+// w3 is unused.
 #ifndef CAPGAP_BLOCKS_KERNELS_AWGN_KERNELS_H_
 #define CAPGAP_BLOCKS_KERNELS_AWGN_KERNELS_H_
 
