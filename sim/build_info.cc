@@ -4,7 +4,7 @@
 namespace capgap {
 
 const char* ProgramVersion() { return CAPGAP_VERSION; }
-const char* GitRevision() { return CAPGAP_GIT_REVISION; }
+// GitRevision() is generated at build time (sim/git_revision.cmake).
 const char* CompilerId() { return CAPGAP_COMPILER; }
 const char* BuildType() { return CAPGAP_BUILD_TYPE; }
 bool AssertionsEnabled() {

@@ -41,8 +41,13 @@ void AddComplexNoise(std::span<cf32> samples, float sigma_per_dim, RngStream& st
 const char* NoiseKernelTarget();
 
 // Forces the portable scalar path for the rest of the process (CLI --scalar,
-// tests). Returns the previous setting.
+// tests). Returns the previous setting. Applies to every kernel family in
+// blocks/kernels (noise and the fused BPSK kernel alike).
 bool ForceScalarKernels(bool force);
+
+// The current setting of ForceScalarKernels (true also under
+// CAPGAP_FORCE_SCALAR); lets the other kernel families follow it.
+bool ScalarKernelsForced();
 
 }  // namespace capgap
 

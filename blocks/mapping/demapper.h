@@ -1,13 +1,30 @@
 // Demappers for the Mapper's constellations: hard decision, exact log-MAP LLRs
 // (log-sum-exp over the constellation) and max-log LLRs.
 //
-// LLR convention (the whole project): L(b) = ln P(b=0 | y) / P(b=1 | y);
-// L > 0 favours bit 0. For BPSK (0 -> +1) L = 4 y / N0. The hard decision of
-// an LLR is 1 when L < 0, else 0. With complex noise variance n0 (N0) the exact
-// LLR is ln sum_{x: b=0} exp(-|y-x|^2/N0) - ln sum_{x: b=1} exp(-|y-x|^2/N0);
-// max-log keeps the largest term of each sum. Square Gray QAM separates into
-// two L-PAM problems (I bits from Re y, Q bits from Im y), which the fast paths
-// use; the results equal the full 2-D sums.
+// LLR convention (the whole project): L(b) = ln P(b=0 | y) / P(b=1 | y) for
+// equiprobable symbols; L > 0 favours bit 0. For BPSK (0 -> +1) L = 4 y / N0,
+// computed from Re y only. The hard decision of an LLR is 1 when L < 0, else 0.
+// With complex noise variance n0 (N0) the exact LLR is
+//   ln sum_{x: b=0} exp(-|y-x|^2/N0) - ln sum_{x: b=1} exp(-|y-x|^2/N0);
+// max-log keeps the largest term of each sum (common practice; FIELD_NOTES s2).
+// Paths:
+//  * BPSK, QPSK: the exact LLR is linear (L = 4 Re y / N0; QPSK
+//    L(b0) = 2 sqrt2 Im y / N0, L(b1) = 2 sqrt2 Re y / N0), so kMaxLog and
+//    kLogMap give the same, exact, values.
+//  * Square Gray QAM separates into two L-PAM problems (I bits from Re y, Q
+//    bits from Im y: the other axis' factor cancels between the two sums), so
+//    the sums run over the L levels of one axis, not the M points; the results
+//    equal the full 2-D sums.
+//  * M-PSK, M >= 8: the full sums over the M points.
+// Log-MAP evaluates exp and log with branch-free polynomial approximations
+// (errors about 1e-7, see demapper.cc); every sum is shifted by its own
+// largest term, so nothing overflows or underflows for any y, N0.
+// The kernels are auto-vectorised and dispatched once per process to the best
+// of baseline x86-64, AVX2 and AVX-512 (demapper.cc); without FMA contraction,
+// so the outputs are bit-identical whichever version runs.
+// Hard decisions are the label of the nearest point (per-axis slicer for QAM,
+// signs for BPSK/QPSK, the angular sector for M-PSK); ties, which have
+// probability zero under noise, are broken arbitrarily.
 // Immutable after Create(); one instance may be shared by all threads.
 #ifndef CAPGAP_BLOCKS_MAPPING_DEMAPPER_H_
 #define CAPGAP_BLOCKS_MAPPING_DEMAPPER_H_
@@ -24,7 +41,8 @@
 namespace capgap {
 
 enum class DemapMethod { kHard, kMaxLog, kLogMap };
-Result<DemapMethod> ParseDemapMethod(std::string_view word);  // hard, maxlog, logmap
+// Words hard, maxlog, logmap; an error message lists them.
+Result<DemapMethod> ParseDemapMethod(std::string_view word);
 std::string ToString(DemapMethod method);
 std::string DemapMethodChoices();
 
@@ -37,7 +55,9 @@ class Demapper {
 
   // Soft output with the configured method (kHard gives +-1 "LLRs" of the
   // nearest point's label: +1 for bit 0, -1 for bit 1).
-  // REQUIRES: llrs.size() == bits_per_symbol() * received.size(); n0 > 0.
+  // LLRs of symbol s go to llrs[m s .. m s + m - 1] (bit b[0] first).
+  // REQUIRES: llrs.size() == bits_per_symbol() * received.size(); n0 > 0 and a
+  // normal float (1 / n0 finite).
   void Demap(std::span<const cf32> received, float n0, std::span<float> llrs) const;
 
   // Nearest-point (minimum distance) decisions, label bits of that point.
@@ -45,12 +65,22 @@ class Demapper {
   void HardDecide(std::span<const cf32> received, std::span<Bit> bits) const;
 
  private:
+  // Which closed form / kernel family the modulation uses (chosen in Create).
+  enum class Path { kBpsk, kQpsk, kPam, kPsk };
+
   Demapper() = default;
   DemapMethod method_ = DemapMethod::kMaxLog;
   Modulation modulation_;
   int bits_per_symbol_ = 1;
   std::vector<cf32> points_;
   std::vector<float> pam_levels_;
+  Path path_ = Path::kBpsk;
+  int axis_bits_ = 0;         // p = m / 2 for square QAM
+  float level_scale_ = 1.0f;  // s: the QAM levels are s (L - 1 - 2j)
+  // M-PSK (M >= 8): points by label split into Re and Im, and the directions
+  // of the M/2 sector boundary lines 2 pi i / M.
+  std::vector<float> point_re_, point_im_;
+  std::vector<float> boundary_cos_, boundary_sin_;
 };
 
 // Hard decisions of LLRs: bit = (llr < 0). REQUIRES equal sizes.

@@ -2,15 +2,22 @@
 //
 // Labels: a symbol's m = log2(M) bits b[0..m-1] form the label
 // l = b[0] 2^(m-1) + ... + b[m-1] (b[0] is the most significant bit), and
-// points()[l] is its constellation point.
+// points()[l] is its constellation point. Gray(k) = k XOR (k >> 1) is the
+// binary-reflected Gray code.
 //  * BPSK: bit 0 -> +1, bit 1 -> -1 on the real axis.
-//  * M-PSK (M >= 4): point k = exp(j (2 pi k / M + pi / M)) ... rotated so that
-//    QPSK is (+-1 +-j)/sqrt 2; label of point k is the binary-reflected Gray
-//    code of k, so neighbours on the circle differ in one bit.
-//  * Square M-QAM, L = sqrt(M): the first m/2 bits Gray-label the in-phase
-//    L-PAM level, the last m/2 the quadrature level; levels are
-//    (2i - L + 1) / sqrt(2 (M - 1) / 3), bit value 0 on the positive side of
-//    each axis for the most significant bit.
+//  * M-PSK (M >= 4): point k = 0..M-1, counted counter-clockwise, is
+//    exp(j (2 pi k / M + pi / M)) and carries label Gray(k), so neighbours on
+//    the circle differ in one bit. QPSK is (+-1 +-j)/sqrt 2 with labels 00, 01,
+//    11, 10 at 45, 135, 225, 315 degrees: b[0] = 1 iff Im x < 0 and b[1] = 1
+//    iff Re x < 0. 8-PSK sits at odd multiples of pi/8.
+//  * Square M-QAM, L = sqrt(M), p = m/2: the first p bits are the axis label of
+//    the in-phase level, the last p bits that of the quadrature level. On each
+//    axis level j = 0..L-1, counted from the most positive, is
+//    (L - 1 - 2j) / sqrt(2 (M - 1) / 3) and carries axis label Gray(j), so the
+//    most significant axis bit is 0 on the positive side and neighbouring
+//    levels differ in one bit. 4-QAM: b[0] = 1 iff Re x < 0, b[1] = 1 iff
+//    Im x < 0.
+// All constellations have E|x|^2 = 1 over equiprobable labels.
 // Immutable after Create(); one instance may be shared by all threads.
 #ifndef CAPGAP_BLOCKS_MAPPING_MAPPER_H_
 #define CAPGAP_BLOCKS_MAPPING_MAPPER_H_
@@ -34,10 +41,13 @@ class Mapper {
   // Constellation points indexed by label.
   std::span<const cf32> points() const { return points_; }
   // For square QAM: the L-PAM levels of one axis indexed by the axis label
-  // (m/2 bits, MSB first); empty for PSK.
+  // (m/2 bits, MSB first), so points()[l] = pam_levels()[l >> p] +
+  // j pam_levels()[l & (L - 1)]; empty for PSK.
   std::span<const float> pam_levels() const { return pam_levels_; }
 
-  // REQUIRES: bits.size() == bits_per_symbol() * symbols.size(); bits are 0/1.
+  // Symbol s takes bits[m s .. m s + m - 1] (b[0] first).
+  // REQUIRES: bits.size() == bits_per_symbol() * symbols.size(); bits are 0/1
+  // (only the lowest bit of each byte is read).
   void Map(std::span<const Bit> bits, std::span<cf32> symbols) const;
 
  private:
