@@ -46,8 +46,11 @@
 #pragma GCC optimize("fp-contract=off")
 #endif
 
+// ThreadSanitizer builds get the baseline only: the ifunc resolvers of
+// target_clones run during relocation, before the TSan runtime is ready, and
+// crash there.
 #if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) && defined(__ELF__) && \
-    !defined(CAPGAP_FORCE_SCALAR)
+    !defined(CAPGAP_FORCE_SCALAR) && !defined(__SANITIZE_THREAD__)
 #define CAPGAP_DEMAP_CLONES __attribute__((target_clones("default", "avx2", "arch=x86-64-v4")))
 #else
 #define CAPGAP_DEMAP_CLONES
