@@ -3,9 +3,15 @@
 
 #include <algorithm>
 
+#include "blocks/kernels/bpsk_kernels.h"
+
 namespace capgap {
 
 Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
+  if (scheme.code != "none") {
+    return Status::Error("scheme." + scheme.name + ".code = '" + scheme.code +
+                         "': convolutional codes are not wired into the chain yet");
+  }
   Chain chain;
   chain.scheme_ = scheme;
   chain.key_ = DeriveKey(seed, scheme.name);
@@ -72,23 +78,29 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
   const std::span<Bit> decided(ws.decided);
   const std::span<float> llrs(ws.llrs);
   const bool hard = scheme_.demapper == DemapMethod::kHard;
+  // Uncoded BPSK with hard decisions runs fused (blocks/kernels/bpsk_kernels.h):
+  // bit 0 -> +1, bit 1 -> -1, I noise (sigma as in AddNoiseReal), y < 0 and the
+  // error count in registers, random bits drawn inside; the same counts and
+  // stream use as doing those steps one at a time.
+  const bool fused = real_axis_ && hard && scheme_.code == "none";
   for (std::uint32_t f = 0; f < unit_frames_; ++f) {
-    FillSource(point_index, unit_index, f, bit_stream, bits);
-    if (real_axis_) {
+    if (!fused || prbs_) FillSource(point_index, unit_index, f, bit_stream, bits);
+    std::uint64_t errors = 0;
+    if (fused) {
+      const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
+      errors = prbs_ ? CountBpskHardErrors(bits, sigma, noise_stream)
+                     : CountBpskHardErrorsOfRandomBits(bits.size(), bit_stream, sigma, noise_stream);
+    } else if (real_axis_) {
       // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise.
       float* x = ws.real_symbols.data();
       const std::size_t n = ws.real_symbols.size();
       for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(bits[i]);
       channel.AddNoiseReal(ws.real_symbols, noise_stream);
-      if (hard) {
-        for (std::size_t i = 0; i < n; ++i) decided[i] = static_cast<Bit>(x[i] < 0.0f);
-      } else {
-        // L = 4 y / N0 (LLR > 0 favours bit 0); decisions from the LLR sign.
-        const float scale = 4.0f / n0;
-        float* l = llrs.data();
-        for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
-        LlrToBits(llrs, decided);
-      }
+      // L = 4 y / N0 (LLR > 0 favours bit 0); decisions from the LLR sign.
+      const float scale = 4.0f / n0;
+      float* l = llrs.data();
+      for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
+      LlrToBits(llrs, decided);
     } else {
       mapper_->Map(bits, ws.symbols);
       channel.AddNoise(ws.symbols, noise_stream);
@@ -99,9 +111,10 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
         LlrToBits(llrs, decided);
       }
     }
-    std::uint64_t errors = 0;
     const std::size_t n = bits.size();
-    for (std::size_t i = 0; i < n; ++i) errors += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+    if (!fused) {
+      for (std::size_t i = 0; i < n; ++i) errors += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+    }
     counts.bits += n;
     counts.bit_errors += errors;
     counts.frames += 1;

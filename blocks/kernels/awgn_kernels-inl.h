@@ -4,6 +4,21 @@
 // capgap::HWY_NAMESPACE::NormalKernel directly. Implements exactly the
 // block-to-sample mapping of awgn_kernels.h; awgn_reference.h is the oracle.
 //
+// Shared with the fused BPSK kernel (bpsk_kernels-inl.h includes this file),
+// so that there is one copy of Philox, log and sincos: the Philox and
+// Box-Muller helpers, the sample loop ForEachNormalGroup (FillStandardNormal
+// and AddRealNoise are two of its sinks), the noisy-sample operation
+// NoisySample, and PhiloxBlockWords (all four words of consecutive blocks, for
+// random bits drawn in a kernel).
+//
+// Tails. The last partial group is generated whole and its first samples are
+// used, with the same vector operations as a full group. Before the fused
+// BPSK kernel the add tail was the scalar x += sigma z, which GCC contracts to
+// one FMA on the AVX2/AVX3 targets and leaves as multiply-then-add on
+// SSE4/SSSE3, i.e. the per-target MulAdd semantics now written out: every
+// sample of lengths 1..399 (fill and add) and of 3840, 3841, 4999 hashed
+// identically before and after on every target, so no simulated number moved.
+//
 // Layout.
 //  * Philox4x32-10 runs one block per lane with consecutive counters, in
 //    64-bit lanes: each u64 lane holds one 32-bit Philox word in its low half.
@@ -37,6 +52,14 @@
 // other. The four state vectors take 16 registers, so the AVX2/SSE4 targets
 // (16 registers) spill a little; a one-batch variant for them that does not
 // spill measured ~10% slower on AVX2, so all targets share this loop.
+// Also measured slower on AVX3 (same machine, bit-identical
+// variants): issuing the next iteration's Philox before this one's Box-Muller
+// (software pipelining, -10%) and four batches per iteration (-7%); both
+// spill. The loop is bound by vector-pipe throughput rather than latency:
+// ~390 vector instructions per 64 samples, ~60% of them Philox (per 8 blocks
+// 18 multiplies, 18 shifts and 19 xors, the minimum for this layout; a 32-bit
+// lane layout needs as many), so cutting single instructions from Box-Muller
+// gains ~0.6% each.
 //
 // Approximations (float; bounds of the polynomials in exact arithmetic with
 // the float coefficients below, measured on a 2e6-point grid with numpy;
@@ -244,6 +267,55 @@ HWY_INLINE void PhiloxTwoBatches(DF /*df*/, const PhiloxSchedule& s, std::uint32
   w2_1 = PackLow(du32, c2, d2);
 }
 
+// All four words of Philox blocks base .. base + count - 1 of the stream
+// whose schedule is s, in block order: out[4 k + w] = word w of block
+// base + k (block indices wrap modulo 2^32 like RngStream's). For the random
+// bits of the fused BPSK kernel (bpsk_kernels-inl.h), which need one block
+// per 128 bits, 1/64 of the noise's blocks: two state vectors at a time, the
+// words leave through a small aligned buffer.
+template <class DF>
+HWY_INLINE void PhiloxBlockWords(DF /*df*/, const PhiloxSchedule& s, std::uint32_t base,
+                                 std::size_t count, std::uint32_t* HWY_RESTRICT out) {
+  const hn::RebindToUnsigned<DF> du32;
+  const hn::Repartition<std::uint64_t, DF> du64;
+  const std::size_t lanes64 = hn::Lanes(du64);
+  const auto m0 = hn::Set(du32, kM0);
+  const auto m1 = hn::Set(du32, kM1);
+  const auto iota = hn::Iota(du64, 0);
+  HWY_ALIGN std::uint64_t words[8][kMaxLanes64];
+  for (std::size_t k = 0; k < count; k += 2 * lanes64) {
+    const std::uint32_t first = base + static_cast<std::uint32_t>(k);
+    auto a0 = hn::Add(hn::Set(du64, first), iota), a1 = a0, a2 = a0, a3 = a0;
+    auto b0 = hn::Add(a0, hn::Set(du64, static_cast<std::uint64_t>(lanes64)));
+    auto b1 = b0, b2 = b0, b3 = b0;
+    FirstRounds(du64, s, m0, m1, a0, a1, a2, a3);
+    FirstRounds(du64, s, m0, m1, b0, b1, b2, b3);
+    for (int r = 3; r < 10; ++r) {
+      const auto k0 = hn::Set(du64, s.k0[r]);
+      const auto k1 = hn::Set(du64, s.k1[r]);
+      Round(du64, m0, m1, k0, k1, a0, a1, a2, a3);
+      Round(du64, m0, m1, k0, k1, b0, b1, b2, b3);
+    }
+    hn::Store(a0, du64, words[0]);
+    hn::Store(a1, du64, words[1]);
+    hn::Store(a2, du64, words[2]);
+    hn::Store(a3, du64, words[3]);
+    hn::Store(b0, du64, words[4]);
+    hn::Store(b1, du64, words[5]);
+    hn::Store(b2, du64, words[6]);
+    hn::Store(b3, du64, words[7]);
+    const std::size_t todo = count - k < 2 * lanes64 ? count - k : 2 * lanes64;
+    for (std::size_t j = 0; j < todo; ++j) {
+      const std::size_t v = j < lanes64 ? 0 : 4;  // state vector a or b
+      const std::size_t lane = j < lanes64 ? j : j - lanes64;
+      for (std::size_t w = 0; w < 4; ++w) {
+        // Each word is the low half of its u64 lane (the upper half is garbage).
+        out[4 * (k + j) + w] = static_cast<std::uint32_t>(words[v + w][lane]);
+      }
+    }
+  }
+}
+
 // yes where the sign bit of v is set, else no. Highway 1.0.3's
 // IfNegativeThenElse relies on blendv reading only the sign bit, but its
 // SSSE3 target (no blendv) selects with and/andnot, which needs all-ones
@@ -360,55 +432,122 @@ HWY_INLINE void TwoBatches(DF df, const PhiloxSchedule& s, std::uint32_t base, h
   s3 = hn::InterleaveUpper(df, z0b, z1b);
 }
 
-template <bool kAdd, class DF>
-HWY_INLINE void Emit(DF df, hn::Vec<DF> z, hn::Vec<DF> sigma, float* HWY_RESTRICT x) {
-  if constexpr (kAdd) {
-    hn::StoreU(hn::MulAdd(sigma, z, hn::LoadU(df, x)), df, x);
-  } else {
-    (void)sigma;
-    hn::StoreU(z, df, x);
-  }
+// The one noisy-sample operation of every target: x + sigma z as
+// MulAdd(sigma, z, x), i.e. one rounding where the target has FMA (AVX2,
+// AVX3) and a rounded product plus a rounded sum where it has not (SSE4,
+// SSSE3: Highway emulates MulAdd). AddRealNoise and the fused BPSK kernel of
+// bpsk_kernels-inl.h both go through it, on whole groups and tails alike, so
+// their samples are bit-identical on each target.
+template <class V>
+HWY_INLINE V NoisySample(V sigma, V z, V x) {
+  return hn::MulAdd(sigma, z, x);
 }
 
-template <bool kAdd>
-HWY_NOINLINE void NormalLoop(float* HWY_RESTRICT x, std::size_t n, float sigma, PhiloxKey key,
-                             const PhiloxCounter& counter) {
-  using DF = hn::ScalableTag<float>;
-  const DF df;
+// The loop shared by every kernel that consumes the normals of a stream in
+// order (awgn_kernels.h mapping). Groups of G = 4 Lanes(df) consecutive
+// normals (two batches, NoiseBatchSamples()) are generated in registers and
+// handed to the sink:
+//   sink.Full(i, s0, s1, s2, s3)         for each group i, i + G <= n: normals
+//                                        i .. i + G - 1, Lanes(df) per vector;
+//   sink.Tail(i, count, s0, s1, s2, s3)  once if G does not divide n: the last
+//                                        count = n - i < G normals are the
+//                                        first count lanes of s0..s3.
+// The tail's extra blocks are evaluated but not consumed: the caller advances
+// the stream by ceil(n / 2) blocks only. Sinks are structs (not lambdas) so
+// that their members are compiled for this target like everything else
+// between HWY_BEFORE_NAMESPACE and HWY_AFTER_NAMESPACE.
+template <class DF, class Sink>
+HWY_INLINE void ForEachNormalGroup(DF df, std::size_t n, PhiloxKey key,
+                                   const PhiloxCounter& counter, Sink& sink) {
   PhiloxSchedule s;
   MakeSchedule(df, key, counter, s);
   const std::size_t lanes = hn::Lanes(df);
   const std::size_t step = 4 * lanes;  // samples per iteration (two batches)
-  const auto vsigma = hn::Set(df, sigma);
   std::uint32_t base = counter[0];
   std::size_t i = 0;
   for (; i + step <= n; i += step) {
     hn::Vec<DF> s0, s1, s2, s3;
     TwoBatches(df, s, base, s0, s1, s2, s3);
     base += static_cast<std::uint32_t>(2 * lanes);
-    Emit<kAdd>(df, s0, vsigma, x + i);
-    Emit<kAdd>(df, s1, vsigma, x + i + lanes);
-    Emit<kAdd>(df, s2, vsigma, x + i + 2 * lanes);
-    Emit<kAdd>(df, s3, vsigma, x + i + 3 * lanes);
+    sink.Full(i, s0, s1, s2, s3);
   }
   if (i < n) {
-    // Tail (fewer than 4 Lanes(df) samples): compute two whole batches and
-    // use the first n - i samples. The extra blocks are evaluated but not
-    // consumed: the caller advances the stream by ceil(n / 2) blocks only.
-    HWY_ALIGN float buf[4 * hn::MaxLanes(df)];
     hn::Vec<DF> s0, s1, s2, s3;
     TwoBatches(df, s, base, s0, s1, s2, s3);
+    sink.Tail(i, n - i, s0, s1, s2, s3);
+  }
+}
+
+// x[i] = z_i.
+template <class DF>
+struct FillSink {
+  DF df;
+  float* HWY_RESTRICT x;
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) const {
+    const std::size_t lanes = hn::Lanes(df);
+    hn::StoreU(s0, df, x + i);
+    hn::StoreU(s1, df, x + i + lanes);
+    hn::StoreU(s2, df, x + i + 2 * lanes);
+    hn::StoreU(s3, df, x + i + 3 * lanes);
+  }
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) const {
+    const std::size_t lanes = hn::Lanes(df);
+    HWY_ALIGN float buf[4 * hn::MaxLanes(DF())];
     hn::Store(s0, df, buf);
     hn::Store(s1, df, buf + lanes);
     hn::Store(s2, df, buf + 2 * lanes);
     hn::Store(s3, df, buf + 3 * lanes);
-    for (std::size_t k = 0; i + k < n; ++k) {
-      if constexpr (kAdd) {
-        x[i + k] += sigma * buf[k];
-      } else {
-        x[i + k] = buf[k];
-      }
-    }
+    for (std::size_t k = 0; k < count; ++k) x[i + k] = buf[k];
+  }
+};
+
+// x[i] = NoisySample(sigma, z_i, x[i]).
+template <class DF>
+struct AddSink {
+  DF df;
+  float sigma;  // a scalar: sizeless vector types cannot be members on every target
+  float* HWY_RESTRICT x;
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) const {
+    const std::size_t lanes = hn::Lanes(df);
+    const auto vs = hn::Set(df, sigma);
+    float* HWY_RESTRICT p = x + i;
+    hn::StoreU(NoisySample(vs, s0, hn::LoadU(df, p)), df, p);
+    hn::StoreU(NoisySample(vs, s1, hn::LoadU(df, p + lanes)), df, p + lanes);
+    hn::StoreU(NoisySample(vs, s2, hn::LoadU(df, p + 2 * lanes)), df, p + 2 * lanes);
+    hn::StoreU(NoisySample(vs, s3, hn::LoadU(df, p + 3 * lanes)), df, p + 3 * lanes);
+  }
+  // The same vector operation as Full on a zero-padded copy of the last
+  // count samples (a scalar x + sigma z here would be contracted to FMA or
+  // not at the compiler's discretion).
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) const {
+    const std::size_t lanes = hn::Lanes(df);
+    const auto vs = hn::Set(df, sigma);
+    HWY_ALIGN float buf[4 * hn::MaxLanes(DF())] = {};
+    for (std::size_t k = 0; k < count; ++k) buf[k] = x[i + k];
+    hn::Store(NoisySample(vs, s0, hn::Load(df, buf)), df, buf);
+    hn::Store(NoisySample(vs, s1, hn::Load(df, buf + lanes)), df, buf + lanes);
+    hn::Store(NoisySample(vs, s2, hn::Load(df, buf + 2 * lanes)), df, buf + 2 * lanes);
+    hn::Store(NoisySample(vs, s3, hn::Load(df, buf + 3 * lanes)), df, buf + 3 * lanes);
+    for (std::size_t k = 0; k < count; ++k) x[i + k] = buf[k];
+  }
+};
+
+template <bool kAdd>
+HWY_NOINLINE void NormalLoop(float* HWY_RESTRICT x, std::size_t n, float sigma, PhiloxKey key,
+                             const PhiloxCounter& counter) {
+  using DF = hn::ScalableTag<float>;
+  const DF df;
+  if constexpr (kAdd) {
+    AddSink<DF> sink{df, sigma, x};
+    ForEachNormalGroup(df, n, key, counter, sink);
+  } else {
+    (void)sigma;
+    FillSink<DF> sink{df, x};
+    ForEachNormalGroup(df, n, key, counter, sink);
   }
 }
 

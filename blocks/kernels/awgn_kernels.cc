@@ -122,5 +122,13 @@ const char* NoiseKernelTarget() {
 
 bool ForceScalarKernels(bool force) { return g_force_scalar.exchange(force); }
 
+bool ScalarKernelsForced() {
+#ifdef CAPGAP_FORCE_SCALAR
+  return true;
+#else
+  return UseScalar();
+#endif
+}
+
 }  // namespace capgap
 #endif  // CAPGAP_FORCE_SCALAR || HWY_ONCE

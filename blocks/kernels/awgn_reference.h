@@ -111,10 +111,17 @@ inline void FillStandardNormal(std::span<float> out, RngStream& stream) {
                            [&](std::size_t i, double z) { out[i] = static_cast<float>(z); });
 }
 
+// The scalar path's noisy sample x + sigma z: evaluated in double, one
+// rounding to float. AddRealNoise and the fused BPSK oracle of
+// bpsk_reference.h both use it.
+inline float NoisySample(float x, double sigma, double z) {
+  return static_cast<float>(static_cast<double>(x) + sigma * z);
+}
+
 inline void AddRealNoise(std::span<float> samples, float sigma, RngStream& stream) {
   const double s = sigma;
   reference::ForEachNormal(samples.size(), stream, [&](std::size_t i, double z) {
-    samples[i] = static_cast<float>(static_cast<double>(samples[i]) + s * z);
+    samples[i] = reference::NoisySample(samples[i], s, z);
   });
 }
 
