@@ -24,6 +24,7 @@ struct KeySpec {
   const char* key;
   const char* default_value;  // nullptr: required
   const char* rule;           // human description used in messages and --help
+  const char* code = nullptr;  // only valid with this `code` value (nullptr: always)
 };
 
 // The keys of [sweep], with defaults. Order is the order of the resolved text.
@@ -43,7 +44,13 @@ constexpr KeySpec kSchemeKeys[] = {
     {"demapper", "maxlog", "hard, maxlog, logmap"},
     {"source", "random", "random, prbs9, prbs15, prbs23, prbs31"},
     {"unit_frames", "0", "integer >= 0: frames per work unit (0: automatic, ~64 kbit)"},
-    {"code", "none", "none (convolutional and LDPC codes are not built yet)"},
+    {"code", "none", "none, conv"},
+    {"generators", "133,171", "octal generator list, one per coded output, e.g. 133,171", "conv"},
+    {"constraint_length", "7", "integer in [3, 9]", "conv"},
+    {"puncture", "none", "none, or pattern rows separated by ',' (one row of 0/1 per generator), e.g. 110,101", "conv"},
+    {"termination", "tail", "tail, tailbiting", "conv"},
+    {"decoder", "viterbi_soft", "viterbi_soft, viterbi_hard, bcjr", "conv"},
+    {"traceback", "0", "integer >= 0: Viterbi traceback depth in trellis steps (0: automatic)", "conv"},
 };
 
 std::string Trim(const std::string& s) {
@@ -301,8 +308,17 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     config.resolved.emplace_back(full, values[full]);
   }
   for (const auto& name : scheme_names) {
+    const std::string code_key = "scheme." + name + ".code";
+    const std::string code = values.count(code_key) ? values[code_key] : "none";
     for (const auto& k : kSchemeKeys) {
       const std::string full = "scheme." + name + "." + k.key;
+      if (k.code && code != k.code) {
+        if (values.count(full)) {
+          return Status::Error(source + ": " + full + " applies only with code = " + k.code +
+                               " (this scheme has code = " + code + ")");
+        }
+        continue;
+      }
       if (!values.count(full)) {
         if (!k.default_value) {
           return Status::Error(source + ": missing required key '" + full + "' (" + k.rule + ")");
@@ -367,8 +383,27 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     auto uf = v.Integer(p + "unit_frames", 0, 1u << 20, "an integer in [0, 1048576] (0: automatic)");
     if (!uf.ok()) return uf.status();
     s.unit_frames = static_cast<std::uint32_t>(uf.value());
-    if (values[p + "code"] != "none") {
-      return v.Fail(p + "code", "valid: none (convolutional and LDPC codes are not built yet)");
+    s.code = values[p + "code"];
+    if (s.code == "conv") {
+      ConvSchemeConfig& c = s.conv;
+      c.generators = values[p + "generators"];
+      auto k = v.Integer(p + "constraint_length", 3, 9, "an integer in [3, 9]");
+      if (!k.ok()) return k.status();
+      c.constraint_length = static_cast<int>(k.value());
+      c.puncture = values[p + "puncture"];
+      c.termination = values[p + "termination"];
+      if (c.termination != "tail" && c.termination != "tailbiting") {
+        return v.Fail(p + "termination", "valid: tail, tailbiting");
+      }
+      c.decoder = values[p + "decoder"];
+      if (c.decoder != "viterbi_soft" && c.decoder != "viterbi_hard" && c.decoder != "bcjr") {
+        return v.Fail(p + "decoder", "valid: viterbi_soft, viterbi_hard, bcjr");
+      }
+      auto tb = v.Integer(p + "traceback", 0, 100000, "an integer in [0, 100000] (0: automatic)");
+      if (!tb.ok()) return tb.status();
+      c.traceback = static_cast<int>(tb.value());
+    } else if (s.code != "none") {
+      return v.Fail(p + "code", "valid: none, conv");
     }
     config.schemes.push_back(s);
   }

@@ -33,6 +33,18 @@ struct SweepConfig {
   int threads = 0;                      // 0: all cores
 };
 
+// Convolutional-code keys of a scheme (code = conv). Generators and puncture
+// pattern are kept as text here and parsed by the code block itself, whose
+// messages the chain prefixes with the key.
+struct ConvSchemeConfig {
+  std::string generators = "133,171";
+  int constraint_length = 7;
+  std::string puncture = "none";
+  std::string termination = "tail";    // tail, tailbiting
+  std::string decoder = "viterbi_soft";  // viterbi_soft, viterbi_hard, bcjr
+  int traceback = 0;                   // 0: automatic
+};
+
 struct SchemeConfig {
   std::string name;
   Modulation modulation;
@@ -40,8 +52,8 @@ struct SchemeConfig {
   std::uint32_t frame_bits = 0;         // information bits per frame
   std::uint32_t unit_frames = 0;        // frames per work unit (0 = automatic)
   SourceKind source = SourceKind::kRandom;
-  std::string code = "none";
-  double code_rate = 1.0;
+  std::string code = "none";  // none, conv
+  ConvSchemeConfig conv;
   // Frames per work unit after resolving "automatic" (a function of the
   // scheme only, never of the thread count).
   std::uint32_t ResolvedUnitFrames() const;

@@ -89,7 +89,8 @@ TEST(Config, UnknownModulationListsValidWords) {
 TEST(Config, UnknownKeysAndSectionsAreRejected) {
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nrolloff = 0.3\n"),
             "test.ini: unknown key 'scheme.qpsk.rolloff'; [scheme.NAME] keys: modulation, "
-            "frame_bits, demapper, source, unit_frames, code");
+            "frame_bits, demapper, source, unit_frames, code, generators, constraint_length, "
+            "puncture, termination, decoder, traceback");
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
             "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
@@ -110,6 +111,34 @@ TEST(Config, MissingRequiredKeysAreNamed) {
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nframe_bits = 8\n"),
             "test.ini: missing required key 'scheme.a.modulation' (bpsk, qpsk, 8psk, 16qam, "
             "64qam, 256qam, <M>psk, <M>qam)");
+}
+
+TEST(Config, CodeKeysApplyOnlyToTheirCode) {
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.generators=5,7"}),
+            "test.ini: scheme.qpsk.generators applies only with code = conv (this scheme has "
+            "code = none)");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=turbo"}),
+            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv");
+  auto r = ParseRunConfig(kGood, "test.ini",
+                          {"scheme.qpsk.code=conv", "scheme.qpsk.generators=5,7",
+                           "scheme.qpsk.constraint_length=3"});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().schemes[0].conv.generators, "5,7");
+  EXPECT_EQ(r.value().schemes[0].conv.constraint_length, 3);
+  EXPECT_EQ(r.value().schemes[0].conv.decoder, "viterbi_soft");  // default
+  // Uncoded schemes carry no code keys in the resolved text.
+  int q16_code_keys = 0, qpsk_code_keys = 0;
+  for (const auto& [key, value] : r.value().resolved) {
+    q16_code_keys += key == "scheme.q16.generators" || key == "scheme.q16.decoder";
+    qpsk_code_keys += key == "scheme.qpsk.generators" || key == "scheme.qpsk.decoder";
+  }
+  EXPECT_EQ(q16_code_keys, 0);
+  EXPECT_EQ(qpsk_code_keys, 2);
+  EXPECT_NE(r.value().ResolvedText().find("generators = 5,7"), std::string::npos);
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=conv", "scheme.qpsk.constraint_length=12"}),
+            "test.ini: scheme.qpsk.constraint_length = '12': must be an integer in [3, 9]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=conv", "scheme.qpsk.decoder=fano"}),
+            "test.ini: scheme.qpsk.decoder = 'fano': valid: viterbi_soft, viterbi_hard, bcjr");
 }
 
 TEST(Config, DuplicateKeysAreRejected) {
