@@ -23,6 +23,8 @@
 #include "blocks/core/status.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
+#include "blocks/shaping/fir_filter.h"
+#include "blocks/shaping/impairments.h"
 #include "blocks/source/bit_source.h"
 #include "sim/config.h"
 
@@ -44,6 +46,14 @@ struct UnitCounts {
 };
 
 struct ChainWorkspace {
+  // Shaped chains: transmitter and receiver filter state, the frame plus its
+  // trailing guard symbols at symbol rate and at S samples per symbol.
+  FirWorkspace tx, rx;
+  CarrierOffset::State carrier;
+  std::vector<Bit> guard_bits;
+  std::vector<cf32> block_symbols;  // [frame symbols | guard symbols]
+  std::vector<cf32> samples;
+  std::vector<cf32> received;      // receiver output for one block
   std::vector<Bit> bits;
   std::vector<Bit> decided;
   std::vector<cf32> symbols;
@@ -59,6 +69,10 @@ class Chain {
   const Mapper& mapper() const { return *mapper_; }
   double code_rate() const { return 1.0; }
   double info_bits_per_symbol() const { return code_rate() * mapper_->bits_per_symbol(); }
+  bool shaped() const { return tx_.has_value(); }
+  int samples_per_symbol() const { return shaped() ? scheme_.samples_per_symbol : 1; }
+  // Transmitter of a shaped chain (REQUIRES shaped()).
+  const Transmitter& transmitter() const { return *tx_; }
   std::uint32_t unit_frames() const { return unit_frames_; }
   std::uint64_t unit_bits() const {
     return static_cast<std::uint64_t>(unit_frames_) * scheme_.frame_bits;
@@ -83,6 +97,15 @@ class Chain {
   std::shared_ptr<const Demapper> demapper_;
   std::optional<PrbsGenerator> prbs_;
   bool real_axis_ = false;  // BPSK: real samples, in-phase noise only
+  // Shaped chains: transmit pulse, matched filter (with any timing offset),
+  // carrier offset (also used without shaping when set), and the receiver's
+  // delay in symbols (= guard symbols sent after every frame).
+  std::optional<Transmitter> tx_;
+  std::optional<Receiver> rx_;
+  std::optional<CarrierOffset> carrier_;
+  int guard_symbols_ = 0;
+  void ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream, RngStream& noise_stream,
+                   ChainWorkspace& ws) const;
 };
 
 }  // namespace capgap

@@ -25,6 +25,7 @@ struct KeySpec {
   const char* default_value;  // nullptr: required
   const char* rule;           // human description used in messages and --help
   const char* code = nullptr;  // only valid with this `code` value (nullptr: always)
+  bool shaped = false;         // only valid with shaping = rc or rrc
 };
 
 // The keys of [sweep], with defaults. Order is the order of the resolved text.
@@ -44,6 +45,13 @@ constexpr KeySpec kSchemeKeys[] = {
     {"demapper", "maxlog", "hard, maxlog, logmap"},
     {"source", "random", "random, prbs9, prbs15, prbs23, prbs31"},
     {"unit_frames", "0", "integer >= 0: frames per work unit (0: automatic, ~64 kbit)"},
+    {"shaping", "none", "none, rc, rrc"},
+    {"rolloff", "0.35", "number in (0, 1]", nullptr, true},
+    {"span", "16", "integer in [1, 256]: filter length in symbols", nullptr, true},
+    {"samples_per_symbol", "8", "integer in [2, 64]", nullptr, true},
+    {"timing_offset", "0", "number in [-0.5, 0.5]: receiver sampling offset in symbols", nullptr, true},
+    {"phase_offset_deg", "0", "finite number: carrier phase offset in degrees"},
+    {"frequency_offset", "0", "number in [-0.5, 0.5]: carrier frequency offset in cycles per symbol"},
     {"code", "none", "none, conv"},
     {"generators", "133,171", "octal generator list, one per coded output, e.g. 133,171", "conv"},
     {"constraint_length", "7", "integer in [3, 9]", "conv"},
@@ -310,8 +318,18 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
   for (const auto& name : scheme_names) {
     const std::string code_key = "scheme." + name + ".code";
     const std::string code = values.count(code_key) ? values[code_key] : "none";
+    const std::string shaping_key = "scheme." + name + ".shaping";
+    const std::string shaping = values.count(shaping_key) ? values[shaping_key] : "none";
     for (const auto& k : kSchemeKeys) {
       const std::string full = "scheme." + name + "." + k.key;
+      if (k.shaped && shaping == "none") {
+        if (values.count(full)) {
+          return Status::Error(source + ": " + full +
+                               " applies only with shaping = rc or rrc (this scheme has shaping = "
+                               "none)");
+        }
+        continue;
+      }
       if (k.code && code != k.code) {
         if (values.count(full)) {
           return Status::Error(source + ": " + full + " applies only with code = " + k.code +
@@ -383,6 +401,36 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     auto uf = v.Integer(p + "unit_frames", 0, 1u << 20, "an integer in [0, 1048576] (0: automatic)");
     if (!uf.ok()) return uf.status();
     s.unit_frames = static_cast<std::uint32_t>(uf.value());
+    auto shape = ParsePulseShape(values[p + "shaping"]);
+    if (!shape.ok()) return v.Fail(p + "shaping", "valid: none, rc, rrc");
+    s.shaping = shape.value();
+    if (s.shaping != PulseShape::kNone) {
+      auto a = v.Number(p + "rolloff");
+      if (!a.ok()) return a.status();
+      if (!(a.value() > 0 && a.value() <= 1)) return v.Fail(p + "rolloff", "must be in (0, 1]");
+      s.rolloff = a.value();
+      auto span = v.Integer(p + "span", 1, 256, "an integer in [1, 256]");
+      if (!span.ok()) return span.status();
+      s.span = static_cast<int>(span.value());
+      auto sps = v.Integer(p + "samples_per_symbol", 2, 64, "an integer in [2, 64]");
+      if (!sps.ok()) return sps.status();
+      s.samples_per_symbol = static_cast<int>(sps.value());
+      auto to = v.Number(p + "timing_offset");
+      if (!to.ok()) return to.status();
+      if (!(to.value() >= -0.5 && to.value() <= 0.5)) {
+        return v.Fail(p + "timing_offset", "must be in [-0.5, 0.5] symbols");
+      }
+      s.timing_offset = to.value();
+    }
+    auto ph = v.Number(p + "phase_offset_deg");
+    if (!ph.ok()) return ph.status();
+    s.phase_offset_deg = ph.value();
+    auto fo = v.Number(p + "frequency_offset");
+    if (!fo.ok()) return fo.status();
+    if (!(fo.value() >= -0.5 && fo.value() <= 0.5)) {
+      return v.Fail(p + "frequency_offset", "must be in [-0.5, 0.5] cycles per symbol");
+    }
+    s.frequency_offset = fo.value();
     s.code = values[p + "code"];
     if (s.code == "conv") {
       ConvSchemeConfig& c = s.conv;

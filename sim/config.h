@@ -18,6 +18,7 @@
 #include "blocks/core/status.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/modulation.h"
+#include "blocks/shaping/pulse.h"
 
 namespace capgap {
 
@@ -52,6 +53,14 @@ struct SchemeConfig {
   std::uint32_t frame_bits = 0;         // information bits per frame
   std::uint32_t unit_frames = 0;        // frames per work unit (0 = automatic)
   SourceKind source = SourceKind::kRandom;
+  // Pulse shaping (shaping = none: one sample per symbol, ideal Nyquist).
+  PulseShape shaping = PulseShape::kNone;
+  double rolloff = 0.35;
+  int span = 16;                 // filter length in symbols
+  int samples_per_symbol = 8;
+  double timing_offset = 0;      // receiver sampling offset, symbols
+  double phase_offset_deg = 0;   // carrier phase offset
+  double frequency_offset = 0;   // carrier frequency offset, cycles per symbol
   std::string code = "none";  // none, conv
   ConvSchemeConfig conv;
   // Frames per work unit after resolving "automatic" (a function of the

@@ -116,6 +116,18 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(g, "info_bits_per_symbol", H5::PredType::NATIVE_DOUBLE, r.info_bits_per_symbol);
       NumAttr(g, "spectral_efficiency", H5::PredType::NATIVE_DOUBLE, r.spectral_efficiency);
       StrAttr(g, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
+      NumAttr(g, "spectral_efficiency_ideal", H5::PredType::NATIVE_DOUBLE,
+              r.spectral_efficiency_ideal);
+      StrAttr(g, "shaping", ToString(r.scheme.shaping));
+      NumAttr(g, "samples_per_symbol", H5::PredType::NATIVE_INT,
+              r.scheme.shaping == PulseShape::kNone ? 1 : r.scheme.samples_per_symbol);
+      if (r.scheme.shaping != PulseShape::kNone) {
+        NumAttr(g, "rolloff", H5::PredType::NATIVE_DOUBLE, r.scheme.rolloff);
+        NumAttr(g, "span", H5::PredType::NATIVE_INT, r.scheme.span);
+        NumAttr(g, "timing_offset", H5::PredType::NATIVE_DOUBLE, r.scheme.timing_offset);
+      }
+      NumAttr(g, "phase_offset_deg", H5::PredType::NATIVE_DOUBLE, r.scheme.phase_offset_deg);
+      NumAttr(g, "frequency_offset", H5::PredType::NATIVE_DOUBLE, r.scheme.frequency_offset);
       NumAttr(g, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
       NumAttr(g, "target_ber", H5::PredType::NATIVE_DOUBLE, r.target_ber);
       StrAttr(g, "demapper", ToString(r.scheme.demapper));
@@ -163,6 +175,15 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(th, "ebno_db", F64, r.theory.ebno_db);
       Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
       Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
+
+      if (r.spectrum.present) {
+        H5::Group sp = g.createGroup("spectrum");
+        Dataset(sp, "frequency", F64, r.spectrum.frequency);
+        Dataset(sp, "psd_db", F64, r.spectrum.psd_db);
+        NumAttr(sp, "occupied_bandwidth_99", F64, r.spectrum.occupied_bandwidth_99);
+        NumAttr(sp, "bandwidth_3db", F64, r.spectrum.bandwidth_3db);
+        StrAttr(sp, "method", "Welch, Hann window, 50 % overlap; frequency in symbol rates");
+      }
 
       H5::Group lim = g.createGroup("limits");
       NumAttr(lim, "shannon_ebno_db", F64, r.limits.shannon_ebno_db);
@@ -238,6 +259,9 @@ Result<StoredRun> ReadCurvesFile(const std::string& path) {
       s.code_rate = ReadDoubleAttr(g, "code_rate");
       s.info_bits_per_symbol = ReadDoubleAttr(g, "info_bits_per_symbol");
       s.spectral_efficiency = ReadDoubleAttr(g, "spectral_efficiency");
+      s.spectral_efficiency_ideal = g.attrExists("spectral_efficiency_ideal")
+                                        ? ReadDoubleAttr(g, "spectral_efficiency_ideal")
+                                        : s.spectral_efficiency;
       s.target_ber = ReadDoubleAttr(g, "target_ber");
       s.ebno_db = ReadDataset<double>(g, "ebno_db", H5::PredType::NATIVE_DOUBLE);
       s.ber = ReadDataset<double>(g, "ber", H5::PredType::NATIVE_DOUBLE);

@@ -38,6 +38,7 @@ struct StoredScheme {
   double code_rate = 1;
   double info_bits_per_symbol = 1;
   double spectral_efficiency = 1;
+  double spectral_efficiency_ideal = 1;
   double target_ber = 0;
   std::vector<double> ebno_db;
   std::vector<std::uint64_t> bits, bit_errors;

@@ -55,7 +55,7 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
   spec.ebn0_db = ebno_db;
   spec.code_rate = chain.code_rate();
   spec.bits_per_symbol = chain.mapper().bits_per_symbol();
-  spec.samples_per_symbol = 1;
+  spec.samples_per_symbol = chain.samples_per_symbol();
   const AwgnChannel channel(spec);
 
   PointState st;

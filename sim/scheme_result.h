@@ -37,11 +37,23 @@ struct Summary {
   double gap_to_constrained_db;
 };
 
+// Power spectral density of the transmitted signal of a shaped scheme
+// (Welch's method), frequency in units of the symbol rate.
+struct SpectrumResult {
+  bool present = false;
+  std::vector<double> frequency;
+  std::vector<double> psd_db;
+  double occupied_bandwidth_99 = 0;  // symbol rates
+  double bandwidth_3db = 0;          // symbol rates
+};
+
 struct SchemeResult {
   SchemeConfig scheme;
   double code_rate = 1;
   double info_bits_per_symbol = 1;
-  double spectral_efficiency = 1;
+  double spectral_efficiency = 1;        // what the Shannon gap uses
+  double spectral_efficiency_ideal = 1;  // rho / (1 + rolloff); rho without shaping
+  SpectrumResult spectrum;
   double target_ber = 1e-5;
   std::vector<PointResult> points;
   TheoryCurve theory;

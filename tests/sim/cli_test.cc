@@ -97,10 +97,10 @@ TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
   auto rb = ReadCurvesFile(b);
   ASSERT_TRUE(ra.ok()) << ra.status().message();
   ASSERT_TRUE(rb.ok()) << rb.status().message();
-  ASSERT_EQ(ra.value().schemes.size(), 2u);
+  ASSERT_EQ(ra.value().schemes.size(), 3u);
   EXPECT_EQ(ra.value().threads, 1);
   EXPECT_EQ(rb.value().threads, 2);
-  for (std::size_t i = 0; i < 2; ++i) {
+  for (std::size_t i = 0; i < 3; ++i) {
     EXPECT_EQ(ra.value().schemes[i].bits, rb.value().schemes[i].bits);
     EXPECT_EQ(ra.value().schemes[i].bit_errors, rb.value().schemes[i].bit_errors);
     EXPECT_GT(ra.value().schemes[i].bit_errors.at(0), 0u);

@@ -87,10 +87,11 @@ TEST(Config, UnknownModulationListsValidWords) {
 }
 
 TEST(Config, UnknownKeysAndSectionsAreRejected) {
-  EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nrolloff = 0.3\n"),
-            "test.ini: unknown key 'scheme.qpsk.rolloff'; [scheme.NAME] keys: modulation, "
-            "frame_bits, demapper, source, unit_frames, code, generators, constraint_length, "
-            "puncture, termination, decoder, traceback");
+  EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nroll_off = 0.3\n"),
+            "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
+            "frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
+            "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
+            "constraint_length, puncture, termination, decoder, traceback");
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
             "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
@@ -139,6 +140,27 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
             "test.ini: scheme.qpsk.constraint_length = '12': must be an integer in [3, 9]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=conv", "scheme.qpsk.decoder=fano"}),
             "test.ini: scheme.qpsk.decoder = 'fano': valid: viterbi_soft, viterbi_hard, bcjr");
+}
+
+TEST(Config, ShapingKeysApplyOnlyToShapedSchemes) {
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.rolloff=0.2"}),
+            "test.ini: scheme.qpsk.rolloff applies only with shaping = rc or rrc (this scheme "
+            "has shaping = none)");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=rrc", "scheme.qpsk.rolloff=1.5"}),
+            "test.ini: scheme.qpsk.rolloff = '1.5': must be in (0, 1]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=rrc", "scheme.qpsk.samples_per_symbol=1"}),
+            "test.ini: scheme.qpsk.samples_per_symbol = '1': must be an integer in [2, 64]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=gauss"}),
+            "test.ini: scheme.qpsk.shaping = 'gauss': valid: none, rc, rrc");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.frequency_offset=0.7"}),
+            "test.ini: scheme.qpsk.frequency_offset = '0.7': must be in [-0.5, 0.5] cycles per "
+            "symbol");
+  auto r = ParseRunConfig(kGood, "test.ini", {"scheme.qpsk.shaping=rrc", "scheme.qpsk.span=10"});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().schemes[0].shaping, PulseShape::kRootRaisedCosine);
+  EXPECT_EQ(r.value().schemes[0].span, 10);
+  EXPECT_EQ(r.value().schemes[0].samples_per_symbol, 8);  // default
+  EXPECT_DOUBLE_EQ(r.value().schemes[0].rolloff, 0.35);    // default
 }
 
 TEST(Config, DuplicateKeysAreRejected) {
