@@ -131,6 +131,10 @@ class Scheme:
         if "theory" in g and "ebno_db" in g["theory"] and "ber_uncoded" in g["theory"]:
             self.theory_ebno = np.asarray(g["theory/ebno_db"][()], dtype=np.float64)
             self.theory_ber = np.asarray(g["theory/ber_uncoded"][()], dtype=np.float64)
+        self.bound_ber = None
+        if "theory" in g and "ber_bound" in g["theory"]:
+            self.bound_ber = np.asarray(g["theory/ber_bound"][()], dtype=np.float64)
+        self.coded = self.code != "none"
         lim = g["limits"] if "limits" in g else None
         if lim is None:
             raise FileFormatError(f"{where}: missing group 'limits'")
@@ -153,7 +157,7 @@ class Scheme:
                 else f"{self.code_rate:.3g}"
             code = f"{self.code}, R = {rate}"
         demapper = f", {self.demapper} demapper" if self.demapper else ""
-        return f"{self.name}  ({mod}, {code}{demapper}, \u03b7 = {self.eta:g})"
+        return f"{self.name}  ({mod}, {code}{demapper}, \u03b7 = {self.eta:.3g})"
 
 
 def read_file(path, wanted):
@@ -300,7 +304,7 @@ def _draw_gap(ax, s, colour, y):
                           alpha=0.8))
 
 
-def _key_handles(rate, any_zero, any_constrained, with_theory):
+def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False):
     h = [Line2D([], [], color=GREY, marker="o", markersize=5, linewidth=1.4,
                 label="simulated, 95 % Clopper\u2013Pearson interval")]
     if any_zero:
@@ -314,6 +318,9 @@ def _key_handles(rate, any_zero, any_constrained, with_theory):
     if any_constrained:
         h.append(Line2D([], [], color=GREY, linestyle="-.", linewidth=1.2,
                         label="constellation-constrained limit"))
+    if rate == "ber" and any_bound:
+        h.append(Line2D([], [], color=GREY, linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)),
+                        linewidth=1.2, label="union bound (coded, soft decisions)"))
     if rate == "ber":
         h.append(Line2D([], [], color="#222222", linewidth=0.9, label="target BER"))
     return h
@@ -331,10 +338,16 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
     scheme_handles = []
     for i, s in enumerate(schemes):
         colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
-        if rate == "ber" and s.theory_ebno is not None:
+        if rate == "ber" and s.theory_ebno is not None and not s.coded:
             ok = s.theory_ber > 0
             ax.plot(s.theory_ebno[ok], s.theory_ber[ok], color=colour, linestyle=(0, (5, 2.5)),
                     linewidth=1.3, alpha=0.9, zorder=2)
+        if rate == "ber" and s.theory_ebno is not None and s.bound_ber is not None:
+            # Union bound of a coded scheme (its uncoded curve is not drawn:
+            # it would duplicate the uncoded scheme of the same modulation).
+            ok = (s.bound_ber > 0) & (s.bound_ber < 0.5)
+            ax.plot(s.theory_ebno[ok], s.bound_ber[ok], color=colour,
+                    linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)), linewidth=1.2, alpha=0.9, zorder=2)
         _draw_points(ax, s, rate, colour, marker)
         _draw_limits(ax, s, colour)
         scheme_handles.append(Line2D([], [], color=colour, marker=marker, markersize=5.5,
@@ -404,7 +417,8 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
         "ber" if "ber" in rates else "fer",
         any_zero=any(_any_zero(s, r) for s in schemes for r in rates),
         any_constrained=any(math.isfinite(s.constrained) for s in schemes),
-        with_theory="ber" in rates and any(s.theory_ebno is not None for s in schemes))
+        with_theory="ber" in rates and any(s.theory_ebno is not None for s in schemes),
+        any_bound="ber" in rates and any(s.bound_ber is not None for s in schemes))
     for k, (ax, rate) in enumerate(zip(axes, rates)):
         last = k == len(rates) - 1
         draw_panel(ax, schemes, rate, x_lim, scheme_legend=(k == 0),

@@ -8,12 +8,56 @@
 namespace capgap {
 
 Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
-  if (scheme.code != "none") {
-    return Status::Error("scheme." + scheme.name + ".code = '" + scheme.code +
-                         "': convolutional codes are not wired into the chain yet");
-  }
   Chain chain;
   chain.scheme_ = scheme;
+  chain.coded_bits_ = scheme.frame_bits;
+  const std::string p = "scheme." + scheme.name + ".";
+  if (scheme.code == "conv") {
+    const ConvSchemeConfig& c = scheme.conv;
+    ConvCodeSpec spec;
+    auto gens = ParseGenerators(c.generators);
+    if (!gens.ok()) {
+      return Status::Error(p + "generators = '" + c.generators + "': " + gens.status().message());
+    }
+    spec.generators = gens.value();
+    spec.constraint_length = c.constraint_length;
+    if (c.puncture != "none") {
+      auto pat = ParsePuncturePattern(c.puncture);
+      if (!pat.ok()) {
+        return Status::Error(p + "puncture = '" + c.puncture + "': " + pat.status().message());
+      }
+      spec.puncture = pat.value();
+    }
+    spec.termination = c.termination == "tailbiting" ? Termination::kTailBiting
+                                                     : Termination::kTerminated;
+    auto code = ConvCode::Create(spec);
+    if (!code.ok()) return Status::Error(p + "generators/puncture: " + code.status().message());
+    chain.conv_ = std::move(code).value();
+    if (c.decoder == "bcjr") {
+      auto dec = BcjrDecoder::Create(*chain.conv_);
+      if (!dec.ok()) return Status::Error(p + "decoder = 'bcjr': " + dec.status().message());
+      chain.bcjr_ = std::move(dec).value();
+    } else {
+      ViterbiOptions opt;
+      opt.traceback_length = c.traceback == 0 ? -1 : c.traceback;
+      auto dec = ViterbiDecoder::Create(*chain.conv_, opt);
+      if (!dec.ok()) return Status::Error(p + "decoder = '" + c.decoder + "': " + dec.status().message());
+      chain.viterbi_ = std::move(dec).value();
+      chain.hard_decoding_ = c.decoder == "viterbi_hard";
+    }
+    chain.coded_bits_ = chain.conv_->CodedLength(scheme.frame_bits);
+    chain.code_rate_ = chain.conv_->EffectiveRate(scheme.frame_bits);
+    const auto m = static_cast<std::size_t>(scheme.modulation.bits_per_symbol());
+    if (chain.coded_bits_ % m != 0) {
+      return Status::Error(p + "frame_bits = " + std::to_string(scheme.frame_bits) + ": gives " +
+                           std::to_string(chain.coded_bits_) +
+                           " coded bits, not a multiple of " + std::to_string(m) +
+                           " bits per symbol of " + ToString(scheme.modulation) +
+                           "; choose frame_bits so that the coded length is");
+    }
+  } else if (scheme.code != "none") {
+    return Status::Error(p + "code = '" + scheme.code + "': valid: none, conv");
+  }
   chain.key_ = DeriveKey(seed, scheme.name);
   chain.unit_frames_ = scheme.ResolvedUnitFrames();
   auto mapper = Mapper::Create(scheme.modulation);
@@ -64,10 +108,19 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
 ChainWorkspace Chain::MakeWorkspace() const {
   ChainWorkspace ws;
   const std::size_t n = scheme_.frame_bits;
-  const std::size_t symbols = n / static_cast<std::size_t>(mapper_->bits_per_symbol());
+  const std::size_t symbols = coded_bits_ / static_cast<std::size_t>(mapper_->bits_per_symbol());
   ws.bits.resize(n);
   ws.decided.resize(n);
-  ws.llrs.resize(n);
+  ws.llrs.resize(coded_bits_);
+  if (coded()) {
+    ws.coded.resize(coded_bits_);
+    ws.coded_hard.resize(coded_bits_);
+    if (viterbi_) ws.viterbi = viterbi_->MakeWorkspace(n);
+    if (bcjr_) {
+      ws.bcjr = bcjr_->MakeWorkspace(n);
+      ws.info_llrs.resize(n);
+    }
+  }
   if (real_axis_) {
     ws.real_symbols.resize(symbols);
   } else {
@@ -138,7 +191,7 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
   // bit 0 -> +1, bit 1 -> -1, I noise (sigma as in AddNoiseReal), y < 0 and the
   // error count in registers, random bits drawn inside; the same counts and
   // stream use as doing those steps one at a time.
-  const bool fused = real_axis_ && hard && scheme_.code == "none";
+  const bool fused = real_axis_ && hard && !coded();
   RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
   if (shaped()) {
     // Prime: one guard block (D symbols) whose outputs are discarded.
@@ -160,6 +213,12 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
   }
   for (std::uint32_t f = 0; f < unit_frames_; ++f) {
     if (!fused || prbs_) FillSource(point_index, unit_index, f, bit_stream, bits);
+    // What goes on the channel: the information bits, or their codeword.
+    std::span<const Bit> tx_bits = bits;
+    if (coded()) {
+      conv_->Encode(bits, ws.coded);
+      tx_bits = ws.coded;
+    }
     std::uint64_t errors = 0;
     if (fused) {
       const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
@@ -169,26 +228,40 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
       // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise.
       float* x = ws.real_symbols.data();
       const std::size_t n = ws.real_symbols.size();
-      for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(bits[i]);
+      for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
       channel.AddNoiseReal(ws.real_symbols, noise_stream);
       // L = 4 y / N0 (LLR > 0 favours bit 0); decisions from the LLR sign.
       const float scale = 4.0f / n0;
       float* l = llrs.data();
       for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
-      LlrToBits(llrs, decided);
+      if (!coded()) LlrToBits(llrs, decided);
     } else {
-      mapper_->Map(bits, ws.symbols);
+      mapper_->Map(tx_bits, ws.symbols);
       if (shaped()) {
         ShapedFrame(channel, guard_stream, noise_stream, ws);
       } else {
         if (carrier_) carrier_->Apply(ws.symbols, ws.carrier);
         channel.AddNoise(ws.symbols, noise_stream);
       }
-      if (hard) {
+      if (coded()) {
+        // The decoder takes the demapper's LLRs (a hard demapper gives +-1).
+        demapper_->Demap(ws.symbols, n0, llrs);
+      } else if (hard) {
         demapper_->HardDecide(ws.symbols, decided);
       } else {
         demapper_->Demap(ws.symbols, n0, llrs);
         LlrToBits(llrs, decided);
+      }
+    }
+    if (coded()) {
+      if (bcjr_) {
+        bcjr_->Decode(llrs, ws.info_llrs, ws.bcjr);
+        LlrToBits(ws.info_llrs, decided);
+      } else if (hard_decoding_) {
+        LlrToBits(llrs, ws.coded_hard);
+        viterbi_->DecodeHard(ws.coded_hard, decided, ws.viterbi);
+      } else {
+        viterbi_->Decode(llrs, decided, ws.viterbi);
       }
     }
     const std::size_t n = bits.size();

@@ -21,6 +21,10 @@
 #include "blocks/channel/awgn_channel.h"
 #include "blocks/core/rng_stream.h"
 #include "blocks/core/status.h"
+#include "blocks/fec/bcjr_decoder.h"
+#include "blocks/fec/conv_code.h"
+#include "blocks/fec/distance_spectrum.h"
+#include "blocks/fec/viterbi_decoder.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
 #include "blocks/shaping/fir_filter.h"
@@ -54,6 +58,12 @@ struct ChainWorkspace {
   std::vector<cf32> block_symbols;  // [frame symbols | guard symbols]
   std::vector<cf32> samples;
   std::vector<cf32> received;      // receiver output for one block
+  // Coded chains: coded bits of a frame, their LLRs, decoder state.
+  std::vector<Bit> coded;
+  std::vector<Bit> coded_hard;
+  std::vector<float> info_llrs;
+  ViterbiDecoder::Workspace viterbi;
+  BcjrDecoder::Workspace bcjr;
   std::vector<Bit> bits;
   std::vector<Bit> decided;
   std::vector<cf32> symbols;
@@ -67,7 +77,12 @@ class Chain {
 
   const SchemeConfig& scheme() const { return scheme_; }
   const Mapper& mapper() const { return *mapper_; }
-  double code_rate() const { return 1.0; }
+  // Effective code rate: tail bits and puncturing included (1 uncoded).
+  double code_rate() const { return code_rate_; }
+  bool coded() const { return conv_.has_value(); }
+  const ConvCode& conv_code() const { return *conv_; }
+  // Coded bits per frame (frame_bits when uncoded).
+  std::size_t coded_bits() const { return coded_bits_; }
   double info_bits_per_symbol() const { return code_rate() * mapper_->bits_per_symbol(); }
   bool shaped() const { return tx_.has_value(); }
   int samples_per_symbol() const { return shaped() ? scheme_.samples_per_symbol : 1; }
@@ -103,6 +118,13 @@ class Chain {
   std::optional<Transmitter> tx_;
   std::optional<Receiver> rx_;
   std::optional<CarrierOffset> carrier_;
+  // Convolutional code and its decoder (viterbi_soft/viterbi_hard or bcjr).
+  std::optional<ConvCode> conv_;
+  std::optional<ViterbiDecoder> viterbi_;
+  std::optional<BcjrDecoder> bcjr_;
+  bool hard_decoding_ = false;
+  double code_rate_ = 1.0;
+  std::size_t coded_bits_ = 0;
   int guard_symbols_ = 0;
   void ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream, RngStream& noise_stream,
                    ChainWorkspace& ws) const;

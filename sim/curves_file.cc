@@ -175,6 +175,29 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(th, "ebno_db", F64, r.theory.ebno_db);
       Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
       Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
+      if (!r.theory.ber_bound.empty()) {
+        Dataset(th, "ber_bound", F64, r.theory.ber_bound);
+        StrAttr(th, "ber_bound_channel", r.theory.bound_channel);
+      }
+
+      if (r.code.present) {
+        const ConvSchemeConfig& c = r.scheme.conv;
+        H5::Group code = g.createGroup("code");
+        NumAttr(code, "free_distance", H5::PredType::NATIVE_INT, r.code.free_distance);
+        StrAttr(code, "generators", c.generators);
+        NumAttr(code, "constraint_length", H5::PredType::NATIVE_INT, c.constraint_length);
+        StrAttr(code, "puncture", c.puncture);
+        StrAttr(code, "termination", c.termination);
+        StrAttr(code, "decoder", c.decoder);
+        NumAttr(code, "traceback", H5::PredType::NATIVE_INT, c.traceback);
+        StrAttr(code, "code_rate_basis",
+                "effective rate: information bits / transmitted coded bits per frame, tail bits "
+                "and puncturing included");
+        std::vector<std::int32_t> dist(r.code.spectrum_distance.begin(), r.code.spectrum_distance.end());
+        Dataset(code, "spectrum_distance", H5::PredType::NATIVE_INT32, dist);
+        Dataset(code, "spectrum_info_weight", U64, r.code.spectrum_info_weight);
+        Dataset(code, "spectrum_events", U64, r.code.spectrum_events);
+      }
 
       if (r.spectrum.present) {
         H5::Group sp = g.createGroup("spectrum");

@@ -86,6 +86,29 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     r.theory.ser_uncoded.push_back(analysis::UncodedSer(mod, x));
   }
 
+  if (chain.coded()) {
+    auto spectrum = ComputeDistanceSpectrum(chain.conv_code(), 10);
+    if (spectrum.ok()) {
+      const DistanceSpectrum& d = spectrum.value();
+      r.code.present = true;
+      r.code.free_distance = d.free_distance;
+      r.code.spectrum_distance = d.distances;
+      r.code.spectrum_info_weight = d.info_weight;
+      r.code.spectrum_events = d.num_events;
+      // The bound assumes binary antipodal signalling per coded bit: BPSK, or
+      // Gray QPSK (two independent BPSK channels). Other mappers: omitted.
+      const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
+      if (binary) {
+        r.theory.bound_channel =
+            "soft-decision union bound, 10 terms, BPSK/QPSK on AWGN, effective rate (tail "
+            "and puncturing included)";
+        for (double x : r.theory.ebno_db) {
+          r.theory.ber_bound.push_back(std::min(0.5, UnionBoundBer(d, x, r.code_rate)));
+        }
+      }
+    }
+  }
+
   r.limits.shannon_ebno_db = analysis::ShannonMinEbn0Db(r.spectral_efficiency);
   r.limits.constrained_ebno_db =
       analysis::ConstrainedMinEbn0Db(chain.mapper().points(), r.info_bits_per_symbol);

@@ -18,6 +18,19 @@ struct TheoryCurve {
   std::vector<double> ebno_db;
   std::vector<double> ber_uncoded;
   std::vector<double> ser_uncoded;
+  // Soft-decision union bound of a convolutional code (empty when it does not
+  // apply: uncoded, or a mapper other than BPSK/QPSK).
+  std::vector<double> ber_bound;
+  std::string bound_channel;
+};
+
+// What the output records of a convolutional code.
+struct CodeResult {
+  bool present = false;
+  int free_distance = 0;
+  std::vector<int> spectrum_distance;
+  std::vector<std::uint64_t> spectrum_info_weight;
+  std::vector<std::uint64_t> spectrum_events;
 };
 
 struct Limits {
@@ -54,6 +67,7 @@ struct SchemeResult {
   double spectral_efficiency = 1;        // what the Shannon gap uses
   double spectral_efficiency_ideal = 1;  // rho / (1 + rolloff); rho without shaping
   SpectrumResult spectrum;
+  CodeResult code;
   double target_ber = 1e-5;
   std::vector<PointResult> points;
   TheoryCurve theory;
