@@ -91,7 +91,8 @@ TEST(Engine, StopsAtFirstPrefixReachingTargetErrors) {
 }
 
 TEST(Engine, StopsAtMaxBitsAndSweepEndsAfterAnErrorFreePoint) {
-  // QPSK at 20 dB: BER ~ 1e-45, no error in 1e5 bits; the sweep must stop there.
+  // QPSK at 20 dB: Q(sqrt(200)) ~ 1e-45 (same formula; arithmetic), so no
+  // error in 1e5 bits; the sweep must stop there.
   const RunConfig cfg = MakeConfig("qpsk", "hard", "0,20,25", 1000000, 100000);
   const auto points = RunAll(cfg, 2);
   ASSERT_EQ(points.size(), 2u);
@@ -104,7 +105,10 @@ TEST(Engine, StopsAtMaxBitsAndSweepEndsAfterAnErrorFreePoint) {
 
 TEST(Engine, SweepEndsAfterFirstPointBelowBerFloor) {
   RunConfig cfg = MakeConfig("bpsk", "hard", "0:2:10", 50, 2000000);
-  cfg.sweep.ber_floor = 1e-2;  // BPSK: 7.9e-2 at 0 dB, 1.25e-2 at 4 dB, 2.4e-3 at 6 dB
+  // BPSK Pb = Q(sqrt(2 Eb/N0)): 7.9e-2 at 0 dB, 1.25e-2 at 4 dB, 2.4e-3 at 6 dB
+  // (Proakis & Salehi, Digital Communications, 5th ed., ch. 4; evaluated with
+  // scipy.special.erfc), so the first point below 1e-2 is 6 dB.
+  cfg.sweep.ber_floor = 1e-2;
   const auto points = RunAll(cfg, 2);
   ASSERT_EQ(points.size(), 4u);
   EXPECT_LT(points.back().ber(), 1e-2);
