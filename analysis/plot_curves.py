@@ -16,6 +16,10 @@ draws, per scheme in one colour:
     Shannon limit to the Eb/N0 reached at the target, labelled with the gap.
 --fer adds a FER panel (same markers, intervals and limits; no theory or
 target there) under the BER panel; --fer-only draws FER alone.
+Next to OUT.png it writes OUT-plane.png, the power-bandwidth comparison
+chart (analysis/plot_plane.py), and, when the file holds signal views,
+OUT-signal.png: measured spectrum against the ideal pulse spectrum, eye and
+constellation after the matched filter (analysis/plot_signal.py).
 Schemes are ordered by the Eb/N0 they need at the target (left to right, as
 the curves appear) unless --schemes gives an order.
 Uses only Debian's python3-matplotlib (Agg backend), python3-h5py and
@@ -24,6 +28,7 @@ python3-numpy.
 Usage:
   /usr/bin/python3 analysis/plot_curves.py FILE.h5 -o OUT.png [--no-svg]
       [--title TEXT] [--schemes a,b] [--fer | --fer-only] [--dpi N]
+      [--no-plane] [--no-signal]
 OUT.svg is written next to OUT.png unless --no-svg. Exit status 1 with a
 message naming the file when it is not a readable capgap-curves file.
 """
@@ -44,39 +49,16 @@ from matplotlib.figure import Figure  # noqa: E402
 from matplotlib.lines import Line2D  # noqa: E402
 from matplotlib.ticker import LogLocator, MultipleLocator, NullFormatter  # noqa: E402
 
+import plot_plane  # noqa: E402  (analysis/, next to this script)
+import plot_signal  # noqa: E402
+
 FORMAT_NAME = "capgap-curves"
 FORMAT_VERSION = 1
 POINT_DATASETS = ("ebno_db", "bits", "bit_errors", "frames", "frame_errors",
                   "ber", "ber_low", "ber_high", "fer", "fer_low", "fer_high")
 BER_FLOOR = 1e-9
 
-# Colour-blind-safe qualitative palette (Okabe & Ito, "Color Universal
-# Design", 2008; hex values common practice), yellow dropped for contrast on
-# white; one marker shape per colour so the plot also survives greyscale.
-PALETTE = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
-           "#000000", "#882255")
-MARKERS = ("o", "s", "D", "^", "P", "X", "h", "*")
-GREY = "#4d4d4d"
-
-STYLE = {
-    "font.family": "DejaVu Sans",
-    "font.size": 10.5,
-    "axes.titlesize": 13,
-    "axes.titleweight": "semibold",
-    "axes.labelsize": 11.5,
-    "axes.edgecolor": "#333333",
-    "axes.linewidth": 0.8,
-    "xtick.labelsize": 10,
-    "ytick.labelsize": 10,
-    "xtick.direction": "out",
-    "ytick.direction": "out",
-    "legend.fontsize": 9,
-    "legend.title_fontsize": 9.5,
-    "legend.framealpha": 0.92,
-    "legend.edgecolor": "#bbbbbb",
-    "svg.hashsalt": "capgap",  # reproducible SVG ids
-    "svg.fonttype": "path",    # SVG renders the same without DejaVu installed
-}
+from plot_style import GREY, MARKERS, PALETTE, STYLE, provenance  # noqa: E402,F401
 
 
 class FileFormatError(Exception):
@@ -145,6 +127,31 @@ class Scheme:
             raise FileFormatError(f"{where}: missing group 'summary'")
         self.at_target = _attr(summ, "ebno_at_target_db", f"{where}/summary")
         self.gap_shannon = _attr(summ, "gap_to_shannon_db", f"{where}/summary")
+        # Optional parts (older or synthetic files may lack them).
+        self.shaping = _str(g.attrs["shaping"]) if "shaping" in g.attrs else "none"
+        self.rolloff = float(g.attrs["rolloff"]) if "rolloff" in g.attrs else None
+        self.timing_offset = float(g.attrs.get("timing_offset", 0.0))
+        self.curve_rho = self.curve_ebno = None
+        if "constrained_curve_rho" in lim and "constrained_curve_ebno_db" in lim:
+            self.curve_rho = np.asarray(lim["constrained_curve_rho"][()], dtype=np.float64)
+            self.curve_ebno = np.asarray(lim["constrained_curve_ebno_db"][()], dtype=np.float64)
+        self.psd_f = self.psd_db = None
+        self.b99 = None
+        if "spectrum" in g and "frequency" in g["spectrum"] and "psd_db" in g["spectrum"]:
+            self.psd_f = np.asarray(g["spectrum/frequency"][()], dtype=np.float64)
+            self.psd_db = np.asarray(g["spectrum/psd_db"][()], dtype=np.float64)
+            self.b99 = float(g["spectrum"].attrs.get("occupied_bandwidth_99", float("nan")))
+        self.const_i = self.const_q = self.eye = self.eye_time = None
+        self.const_ebno = float("nan")
+        if "signal" in g:
+            sg = g["signal"]
+            if "constellation_i" in sg and "constellation_q" in sg:
+                self.const_i = np.asarray(sg["constellation_i"][()], dtype=np.float64)
+                self.const_q = np.asarray(sg["constellation_q"][()], dtype=np.float64)
+                self.const_ebno = float(sg.attrs.get("constellation_ebno_db", float("nan")))
+            if "eye" in sg and "eye_time" in sg:
+                self.eye = np.asarray(sg["eye"][()], dtype=np.float64)
+                self.eye_time = np.asarray(sg["eye_time"][()], dtype=np.float64)
 
     def label(self):
         mod = self.modulation.upper().replace("QAM", "-QAM") if self.modulation[:1].isdigit() \
@@ -390,22 +397,6 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
                   borderaxespad=0.0, fontsize=8.5, handlelength=2.6)
 
 
-def provenance(path, meta):
-    parts = [pathlib.Path(path).name]
-    if "program_version" in meta:
-        rev = f" ({meta['git_revision']})" if "git_revision" in meta else ""
-        parts.append(f"capgap {meta['program_version']}{rev}")
-    if "kernel_target" in meta:
-        parts.append(f"kernels {meta['kernel_target']}")
-    if "threads" in meta:
-        parts.append(f"{meta['threads']} thread(s)")
-    if "seed" in meta:
-        parts.append(f"seed {meta['seed']}")
-    if "created_utc" in meta:
-        parts.append(meta["created_utc"])
-    return "  \u00b7  ".join(parts)
-
-
 def make_figure(path, schemes, meta, title, fer_mode, dpi):
     matplotlib.rcParams.update(STYLE)
     rates = {"none": ["ber"], "also": ["ber", "fer"], "only": ["fer"]}[fer_mode]
@@ -449,6 +440,10 @@ def parse_args(argv):
                      help="add a FER panel under the BER panel (figure 9 x 10.5 in)")
     fer.add_argument("--fer-only", action="store_true", help="plot FER instead of BER")
     ap.add_argument("--dpi", type=int, default=150, help="PNG resolution (default 150)")
+    ap.add_argument("--no-plane", action="store_true",
+                    help="do not write OUT-plane.png (the power-bandwidth comparison chart)")
+    ap.add_argument("--no-signal", action="store_true",
+                    help="do not write OUT-signal.png (spectrum, eye and constellation)")
     return ap.parse_args(argv)
 
 
@@ -475,6 +470,20 @@ def main(argv):
         svg = png.with_suffix(".svg")
         fig.savefig(svg, metadata={"Date": None, "Creator": "capgap analysis/plot_curves.py"})
         written.append(str(svg))
+    # Companion figures next to the BER figure: OUT-plane.png, OUT-signal.png.
+    extra = []
+    if not args.no_plane:
+        extra.append(("plane", plot_plane.make_figure(args.file, schemes, meta, args.dpi)))
+    if not args.no_signal and any(s.const_i is not None for s in schemes):
+        extra.append(("signal", plot_signal.make_figure(args.file, schemes, meta, args.dpi)))
+    for suffix, figure in extra:
+        out = png.with_name(f"{png.stem}-{suffix}.png")
+        figure.savefig(out, dpi=args.dpi, metadata={"Software": "capgap analysis/plot_curves.py"})
+        written.append(str(out))
+        if not args.no_svg:
+            svg = out.with_suffix(".svg")
+            figure.savefig(svg, metadata={"Date": None, "Creator": "capgap analysis/plot_curves.py"})
+            written.append(str(svg))
     print(f"wrote {', '.join(written)}")
     return 0
 

@@ -177,24 +177,12 @@ void Chain::ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream,
             ws.symbols.begin());
 }
 
-UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
-                          std::uint32_t unit_index, ChainWorkspace& ws) const {
-  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
-  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
-  const float n0 = channel.n0();
-  UnitCounts counts;
-  const std::span<Bit> bits(ws.bits);
-  const std::span<Bit> decided(ws.decided);
-  const std::span<float> llrs(ws.llrs);
-  const bool hard = scheme_.demapper == DemapMethod::kHard;
-  // Uncoded BPSK with hard decisions runs fused (blocks/kernels/bpsk_kernels.h):
-  // bit 0 -> +1, bit 1 -> -1, I noise (sigma as in AddNoiseReal), y < 0 and the
-  // error count in registers, random bits drawn inside; the same counts and
-  // stream use as doing those steps one at a time.
-  const bool fused = real_axis_ && hard && !coded();
-  RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
+// Shaped chains: one guard block (D symbols) whose outputs are discarded, so
+// the filters hold a steady state when the first frame arrives. Carrier
+// offset: the phase ramp restarts with every unit.
+void Chain::PrimeUnit(const AwgnChannel& channel, RngStream& guard_stream,
+                      RngStream& noise_stream, ChainWorkspace& ws) const {
   if (shaped()) {
-    // Prime: one guard block (D symbols) whose outputs are discarded.
     ws.tx.Reset();
     ws.rx.Reset();
     ws.carrier.Reset();
@@ -211,6 +199,78 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
   } else if (carrier_) {
     ws.carrier.Reset();
   }
+}
+
+// Complex path: map, then the shaped channel or carrier offset + noise at
+// one sample per symbol; ws.symbols ends as the demapper's input.
+void Chain::TransmitComplex(std::span<const Bit> tx_bits, const AwgnChannel& channel,
+                            RngStream& guard_stream, RngStream& noise_stream,
+                            ChainWorkspace& ws) const {
+  mapper_->Map(tx_bits, ws.symbols);
+  if (shaped()) {
+    ShapedFrame(channel, guard_stream, noise_stream, ws);
+  } else {
+    if (carrier_) carrier_->Apply(ws.symbols, ws.carrier);
+    channel.AddNoise(ws.symbols, noise_stream);
+  }
+}
+
+std::vector<cf32> Chain::CaptureDemapperInput(const AwgnChannel& channel,
+                                              std::size_t max_symbols) const {
+  // Point index 0xFFFFFFFE is never a sweep point: the display draws its own
+  // streams and never touches a counted unit's.
+  constexpr std::uint32_t kDisplayPoint = 0xFFFFFFFEu;
+  ChainWorkspace ws = MakeWorkspace();
+  RngStream bit_stream(key_, kDisplayPoint, 0, Substream::kBits);
+  RngStream noise_stream(key_, kDisplayPoint, 0, Substream::kNoise);
+  RngStream guard_stream(key_, kDisplayPoint, 0, Substream::kChannel);
+  PrimeUnit(channel, guard_stream, noise_stream, ws);
+  std::vector<cf32> out;
+  out.reserve(max_symbols);
+  while (out.size() < max_symbols) {
+    GenerateRandomBits(ws.bits, bit_stream);
+    std::span<const Bit> tx_bits = ws.bits;
+    if (coded()) {
+      conv_->Encode(ws.bits, ws.coded);
+      tx_bits = ws.coded;
+    }
+    if (real_axis_) {
+      for (std::size_t i = 0; i < ws.real_symbols.size(); ++i) {
+        ws.real_symbols[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
+      }
+      channel.AddNoiseReal(ws.real_symbols, noise_stream);
+      for (float x : ws.real_symbols) {
+        if (out.size() == max_symbols) break;
+        out.emplace_back(x, 0.0f);
+      }
+    } else {
+      TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
+      for (const cf32& z : ws.symbols) {
+        if (out.size() == max_symbols) break;
+        out.push_back(z);
+      }
+    }
+  }
+  return out;
+}
+
+UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
+                          std::uint32_t unit_index, ChainWorkspace& ws) const {
+  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
+  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
+  const float n0 = channel.n0();
+  UnitCounts counts;
+  const std::span<Bit> bits(ws.bits);
+  const std::span<Bit> decided(ws.decided);
+  const std::span<float> llrs(ws.llrs);
+  const bool hard = scheme_.demapper == DemapMethod::kHard;
+  // Uncoded BPSK with hard decisions runs fused (blocks/kernels/bpsk_kernels.h):
+  // bit 0 -> +1, bit 1 -> -1, I noise (sigma as in AddNoiseReal), y < 0 and the
+  // error count in registers, random bits drawn inside; the same counts and
+  // stream use as doing those steps one at a time.
+  const bool fused = real_axis_ && hard && !coded();
+  RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
+  PrimeUnit(channel, guard_stream, noise_stream, ws);
   for (std::uint32_t f = 0; f < unit_frames_; ++f) {
     if (!fused || prbs_) FillSource(point_index, unit_index, f, bit_stream, bits);
     // What goes on the channel: the information bits, or their codeword.
@@ -236,13 +296,7 @@ UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
       for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
       if (!coded()) LlrToBits(llrs, decided);
     } else {
-      mapper_->Map(tx_bits, ws.symbols);
-      if (shaped()) {
-        ShapedFrame(channel, guard_stream, noise_stream, ws);
-      } else {
-        if (carrier_) carrier_->Apply(ws.symbols, ws.carrier);
-        channel.AddNoise(ws.symbols, noise_stream);
-      }
+      TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
       if (coded()) {
         // The decoder takes the demapper's LLRs (a hard demapper gives +-1).
         demapper_->Demap(ws.symbols, n0, llrs);

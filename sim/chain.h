@@ -13,6 +13,7 @@
 #ifndef CAPGAP_SIM_CHAIN_H_
 #define CAPGAP_SIM_CHAIN_H_
 
+#include <algorithm>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -39,11 +40,20 @@ struct UnitCounts {
   std::uint64_t bit_errors = 0;
   std::uint64_t frames = 0;
   std::uint64_t frame_errors = 0;
+  // Iterative decoders (LDPC): iterations summed over frames, the largest
+  // count of one frame, and frames that converged to a wrong codeword (zero
+  // syndrome, info bits wrong). Zero for other schemes.
+  std::uint64_t decoder_iterations = 0;
+  std::uint32_t max_decoder_iterations = 0;
+  std::uint64_t undetected_frame_errors = 0;
   UnitCounts& operator+=(const UnitCounts& o) {
     bits += o.bits;
     bit_errors += o.bit_errors;
     frames += o.frames;
     frame_errors += o.frame_errors;
+    decoder_iterations += o.decoder_iterations;
+    max_decoder_iterations = std::max(max_decoder_iterations, o.max_decoder_iterations);
+    undetected_frame_errors += o.undetected_frame_errors;
     return *this;
   }
   bool operator==(const UnitCounts&) const = default;
@@ -95,6 +105,11 @@ class Chain {
 
   ChainWorkspace MakeWorkspace() const;
 
+  // For plots, not for counting: up to max_symbols demapper inputs (matched
+  // filter output at the symbol instants, impairments and noise included)
+  // from streams no sweep point uses. Allocates; not for hot loops.
+  std::vector<cf32> CaptureDemapperInput(const AwgnChannel& channel, std::size_t max_symbols) const;
+
   // Simulates work unit `unit_index` of sweep point `point_index` at the given
   // channel. Deterministic in (seed, scheme name, point, unit).
   UnitCounts RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
@@ -128,6 +143,10 @@ class Chain {
   int guard_symbols_ = 0;
   void ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream, RngStream& noise_stream,
                    ChainWorkspace& ws) const;
+  void PrimeUnit(const AwgnChannel& channel, RngStream& guard_stream, RngStream& noise_stream,
+                 ChainWorkspace& ws) const;
+  void TransmitComplex(std::span<const Bit> tx_bits, const AwgnChannel& channel,
+                       RngStream& guard_stream, RngStream& noise_stream, ChainWorkspace& ws) const;
 };
 
 }  // namespace capgap

@@ -9,6 +9,7 @@
 
 #include <H5Cpp.h>
 
+#include "sim/atomic_file.h"
 #include "sim/build_info.h"
 
 namespace capgap {
@@ -31,6 +32,15 @@ template <typename T>
 void Dataset(H5::Group& g, const char* name, const H5::PredType& type, const std::vector<T>& v) {
   const hsize_t dims[1] = {v.size()};
   H5::DataSpace space(1, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  if (!v.empty()) ds.write(v.data(), type);
+}
+
+// Row-major rows x cols matrix.
+void Matrix(H5::Group& g, const char* name, const H5::PredType& type, const std::vector<double>& v,
+            hsize_t rows, hsize_t cols) {
+  const hsize_t dims[2] = {rows, cols};
+  H5::DataSpace space(2, dims);
   H5::DataSet ds = g.createDataSet(name, type, space);
   if (!v.empty()) ds.write(v.data(), type);
 }
@@ -208,11 +218,31 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
         StrAttr(sp, "method", "Welch, Hann window, 50 % overlap; frequency in symbol rates");
       }
 
+      if (r.signal.present) {
+        H5::Group sg = g.createGroup("signal");
+        Dataset(sg, "constellation_i", F64, r.signal.constellation_i);
+        Dataset(sg, "constellation_q", F64, r.signal.constellation_q);
+        NumAttr(sg, "constellation_ebno_db", F64, r.signal.constellation_ebno_db);
+        StrAttr(sg, "constellation_basis",
+                "demapper input: matched-filter output at the symbol instants, impairments and "
+                "noise included, at the Eb/N0 needed for target_ber (else the last point)");
+        if (r.signal.eye_traces > 0) {
+          Dataset(sg, "eye_time", F64, r.signal.eye_time);
+          Matrix(sg, "eye", F64, r.signal.eye, static_cast<hsize_t>(r.signal.eye_traces),
+                 static_cast<hsize_t>(r.signal.eye_time.size()));
+          StrAttr(sg, "eye_basis",
+                  "in-phase matched-filter output, noise-free, no impairments; time in symbol "
+                  "periods around the ideal sampling instant");
+        }
+      }
+
       H5::Group lim = g.createGroup("limits");
       NumAttr(lim, "shannon_ebno_db", F64, r.limits.shannon_ebno_db);
       NumAttr(lim, "constrained_ebno_db", F64, r.limits.constrained_ebno_db);
       StrAttr(lim, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
       StrAttr(lim, "notes", r.limits.notes);
+      Dataset(lim, "constrained_curve_rho", F64, r.limits.constrained_curve_rho);
+      Dataset(lim, "constrained_curve_ebno_db", F64, r.limits.constrained_curve_ebno_db);
 
       H5::Group sum = g.createGroup("summary");
       const Summary& s = r.summary;
@@ -229,12 +259,9 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
     std::remove(tmp.c_str());
     return Status::Error(path + ": HDF5 write failed: " + e.getDetailMsg());
   }
-  fs::rename(tmp, final_path, ec);
-  if (ec) {
-    std::remove(tmp.c_str());
-    return Status::Error(path + ": cannot rename temporary file: " + ec.message());
-  }
-  return Status::Ok();
+  // fsync, rename, fsync of the directory: a kill or power loss at any
+  // instant leaves the previous file or the new one, both complete.
+  return CommitFile(tmp, final_path.string());
 }
 
 Result<StoredRun> ReadCurvesFile(const std::string& path) {

@@ -7,6 +7,7 @@
 
 #include "analysis/capacity.h"
 #include "analysis/uncoded_theory.h"
+#include "blocks/shaping/pulse.h"
 #include "blocks/shaping/spectrum.h"
 
 namespace capgap {
@@ -48,6 +49,54 @@ SpectrumResult MeasureSpectrum(const Chain& chain, std::uint64_t seed) {
   out.occupied_bandwidth_99 = OccupiedBandwidth(psd, welch.value().bin_width(), 0.99);
   out.bandwidth_3db = HalfPowerBandwidth(psd, welch.value().bin_width());
   return out;
+}
+
+// Noise-free eye of a shaped scheme: the scheme's transmit pulse and matched
+// filter (no timing offset) designed at max(S, 16) samples per symbol, so the
+// traces are smooth whatever S the chain runs at; the pulses are the same
+// continuous functions (pulse.h) sampled more finely. With the tap centring of
+// pulse.h the cascade h_tx * h_rx peaks span * S' samples after a symbol
+// enters, so symbol k's ideal instant is sample (k + span) * S'.
+void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
+  PulseSpec spec = chain.transmitter().spec();
+  spec.samples_per_symbol = std::max(spec.samples_per_symbol, 16);
+  const int sps = spec.samples_per_symbol;
+  auto taps = DesignPulseTaps(spec);
+  if (!taps.ok()) return;
+  const std::vector<float>& h = taps.value();
+  std::vector<double> cascade(2 * h.size() - 1, 0.0);
+  for (std::size_t i = 0; i < h.size(); ++i) {
+    for (std::size_t j = 0; j < h.size(); ++j) {
+      cascade[i + j] += static_cast<double>(h[i]) * static_cast<double>(h[j]);
+    }
+  }
+  constexpr int kSymbols = 320;
+  const auto m = static_cast<std::size_t>(chain.mapper().bits_per_symbol());
+  RngStream stream(DeriveKey(seed, chain.scheme().name), 0xFFFFFFFDu, 0, Substream::kChannel);
+  std::vector<Bit> bits(static_cast<std::size_t>(kSymbols) * m);
+  GenerateRandomBits(bits, stream);
+  std::vector<cf32> symbols(static_cast<std::size_t>(kSymbols));
+  chain.mapper().Map(bits, symbols);
+  const long len = static_cast<long>(cascade.size());
+  auto filtered = [&](long n) {  // in-phase matched-filter output at sample n
+    double acc = 0;
+    for (long k = 0; k < kSymbols; ++k) {
+      const long i = n - k * sps;
+      if (i >= 0 && i < len) {
+        acc += cascade[static_cast<std::size_t>(i)] *
+               static_cast<double>(symbols[static_cast<std::size_t>(k)].real());
+      }
+    }
+    return acc;
+  };
+  for (int j = -sps; j <= sps; ++j) out.eye_time.push_back(static_cast<double>(j) / sps);
+  // Traces whose +-span neighbourhood is inside the symbol block (full ISI).
+  const int span = spec.span_symbols;
+  for (int k = 2 * span; k + 2 * span < kSymbols; ++k) {
+    const long centre = static_cast<long>(k + span) * sps;
+    for (int j = -sps; j <= sps; ++j) out.eye.push_back(filtered(centre + j));
+    ++out.eye_traces;
+  }
 }
 
 }  // namespace
@@ -117,6 +166,15 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
           ? "measured: eta = rho / B99, B99 the 99 % power bandwidth of the transmitted "
             "signal (Welch PSD) in symbol rates"
           : "ideal Nyquist signalling (no pulse shaping): eta = rho = R m bit/s/Hz";
+  {
+    const double m = chain.mapper().bits_per_symbol();
+    for (int i = 0; i <= 23; ++i) {
+      const double rho = m * (0.05 + 0.04 * i);
+      r.limits.constrained_curve_rho.push_back(rho);
+      r.limits.constrained_curve_ebno_db.push_back(
+          analysis::ConstrainedMinEbn0Db(chain.mapper().points(), rho));
+    }
+  }
   if (std::isinf(r.limits.constrained_ebno_db)) {
     r.limits.notes =
         "constrained limit is infinite: an uncoded constellation carries its m bits per symbol "
@@ -142,6 +200,25 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   s.gap_to_constrained_db = std::isfinite(r.limits.constrained_ebno_db)
                                 ? s.ebno_at_target_db - r.limits.constrained_ebno_db
                                 : nan;
+
+  // Signal views at the operating point: the Eb/N0 needed for target_ber if
+  // the curve crosses it, else the last simulated point.
+  if (!r.points.empty()) {
+    SignalViews& v = r.signal;
+    v.present = true;
+    v.constellation_ebno_db =
+        std::isfinite(s.ebno_at_target_db) ? s.ebno_at_target_db : r.points.back().ebno_db;
+    NoiseSpec spec;
+    spec.ebn0_db = v.constellation_ebno_db;
+    spec.code_rate = chain.code_rate();
+    spec.bits_per_symbol = chain.mapper().bits_per_symbol();
+    spec.samples_per_symbol = chain.samples_per_symbol();
+    for (const cf32& z : chain.CaptureDemapperInput(AwgnChannel(spec), 2000)) {
+      v.constellation_i.push_back(z.real());
+      v.constellation_q.push_back(z.imag());
+    }
+    if (chain.shaped()) MeasureEye(chain, sweep.seed, v);
+  }
   return r;
 }
 

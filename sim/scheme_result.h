@@ -38,6 +38,11 @@ struct Limits {
   double constrained_ebno_db;  // this constellation at rho; +inf when rho = m
   std::string spectral_efficiency_basis;
   std::string notes;
+  // The constellation's constrained-capacity curve on the power-bandwidth
+  // plane at ideal Nyquist signalling: rho from 0.05 m to 0.97 m bits per
+  // symbol and the Eb/N0 it needs (for the comparison chart).
+  std::vector<double> constrained_curve_rho;
+  std::vector<double> constrained_curve_ebno_db;
 };
 
 struct Summary {
@@ -60,6 +65,22 @@ struct SpectrumResult {
   double bandwidth_3db = 0;          // symbol rates
 };
 
+// Pictures of the signal for the plots: the demapper's input at the
+// operating point (constellation after the matched filter, impairments and
+// noise included) and, for shaped schemes, the noise-free eye of the
+// matched-filter output at S samples per symbol.
+struct SignalViews {
+  bool present = false;
+  double constellation_ebno_db = 0;
+  std::vector<double> constellation_i, constellation_q;
+  // Eye: eye_traces rows of eye_time.size() samples each (row-major), the
+  // in-phase matched-filter output over [-1, 1] symbol periods around each
+  // ideal sampling instant (t = 0), noise-free and without impairments.
+  int eye_traces = 0;
+  std::vector<double> eye_time;
+  std::vector<double> eye;
+};
+
 struct SchemeResult {
   SchemeConfig scheme;
   double code_rate = 1;
@@ -67,6 +88,7 @@ struct SchemeResult {
   double spectral_efficiency = 1;        // what the Shannon gap uses
   double spectral_efficiency_ideal = 1;  // rho / (1 + rolloff); rho without shaping
   SpectrumResult spectrum;
+  SignalViews signal;
   CodeResult code;
   double target_ber = 1e-5;
   std::vector<PointResult> points;

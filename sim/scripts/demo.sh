@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # The main job on the demo config: installs what is missing, builds capgap
 # (Release), runs configs/demo.ini, writes results/demo.h5 and
-# results/demo.png (+ .svg), and prints the summary table.
+# results/demo.png (+ .svg) with the power-bandwidth chart demo-plane.png and
+# the signal views demo-signal.png, and prints the summary table.
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 bash sim/scripts/setup_debian.sh
@@ -13,4 +14,5 @@ mkdir -p results
 ./build/capgap run configs/demo.ini -o results/demo.h5 "$@"
 # Debian's interpreter has the plotting packages (another python3 on PATH may not).
 /usr/bin/python3 analysis/plot_curves.py results/demo.h5 -o results/demo.png
-echo "plot: results/demo.png (and results/demo.svg)"
+echo "plots: results/demo.png (BER), results/demo-plane.png (power-bandwidth plane),"
+echo "       results/demo-signal.png (spectrum, eye, constellation); SVG beside each"

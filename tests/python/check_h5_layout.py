@@ -24,7 +24,10 @@ Layout (format_version 1):
                     bits, bit_errors, frames, frame_errors (uint64);
                     stop_reason (variable-length strings)
   /<scheme>/theory  1-D float64 datasets ebno_db, ber_uncoded, ser_uncoded
-  /<scheme>/limits  attrs shannon_ebno_db, constrained_ebno_db (float64)
+  /<scheme>/limits  attrs shannon_ebno_db, constrained_ebno_db (float64);
+                    optional 1-D constrained_curve_rho, constrained_curve_ebno_db
+  /<scheme>/signal  optional: constellation_i, constellation_q (1-D float64),
+                    attr constellation_ebno_db; eye (2-D) with eye_time
   /<scheme>/summary attrs ebno_at_target_db, ebno_at_target_low_db,
                     ebno_at_target_high_db, uncoded_ebno_at_target_db,
                     coding_gain_db, gap_to_shannon_db, gap_to_constrained_db
@@ -472,6 +475,38 @@ def crossing_from_grid(x, y, target):
     return math.nan, math.nan
 
 
+def check_optional_views(c, g, lim, m):
+    """Constrained-capacity curve and signal views, checked when present."""
+    if "constrained_curve_rho" in lim or "constrained_curve_ebno_db" in lim:
+        rho = c.dataset_float64(lim, "constrained_curve_rho")
+        ebno = c.dataset_float64(lim, "constrained_curve_ebno_db")
+        if rho.shape != ebno.shape:
+            c.fail(f"{lim.name}/constrained_curve_ebno_db",
+                   f"shape {ebno.shape} differs from constrained_curve_rho {rho.shape}")
+        if not (np.all(np.diff(rho) > 0) and np.all(rho > 0) and np.all(rho < m)):
+            c.fail(f"{lim.name}/constrained_curve_rho", f"expected increasing within (0, {m})")
+        # Capacity: the constellation needs more Eb/N0 for more bits, and never
+        # less than the unconstrained bound (2^rho - 1)/rho (Shannon 1949).
+        bound = 10.0 * np.log10((2.0 ** rho - 1.0) / rho)
+        if not np.all(np.diff(ebno) > 0) or np.any(ebno < bound - 1e-6):
+            c.fail(f"{lim.name}/constrained_curve_ebno_db",
+                   "expected increasing and at or above the Shannon bound at eta = rho")
+        c.ok(lim.name, "constrained curve increasing, above the Shannon bound")
+    if "signal" in g:
+        sg = c.group(g, "signal")
+        ci = c.dataset_float64(sg, "constellation_i")
+        cq = c.dataset_float64(sg, "constellation_q")
+        if ci.shape != cq.shape:
+            c.fail(f"{sg.name}/constellation_q", f"shape {cq.shape} differs from constellation_i")
+        c.attr_float64(sg, "constellation_ebno_db")
+        if "eye" in sg:
+            t = c.dataset_float64(sg, "eye_time")
+            eye = sg["eye"]
+            if eye.ndim != 2 or eye.shape[1] != t.shape[0] or eye.shape[0] < 1:
+                c.fail(f"{sg.name}/eye", f"shape {eye.shape}, expected (traces, {t.shape[0]})")
+            c.ok(f"{sg.name}/eye", f"{eye.shape[0]} traces of {eye.shape[1]} samples")
+
+
 def check_scheme(c, f, name):
     g = f[name]
     base = g.name
@@ -568,6 +603,8 @@ def check_scheme(c, f, name):
                f"target_ber {target:g}")
     else:
         c.ok(sb, "ebno_at_target_db is NaN and no adjacent points straddle target_ber")
+
+    check_optional_views(c, g, lim, m)
 
     grid_at, step = crossing_from_grid(theory["ebno_db"], theory["ber_uncoded"], target)
     if math.isnan(grid_at):

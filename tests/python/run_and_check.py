@@ -8,7 +8,7 @@ run (not synthetic data). Three steps, stopping at the first failure:
      must exit 0 and leave a non-empty OUT.h5;
   2. check_h5_layout.py OUT.h5             must exit 0;
   3. plot_curves.py OUT.h5 -o OUT.png      must exit 0 and leave non-empty
-     OUT.png and OUT.svg.
+     OUT.png and OUT.svg, OUT-plane.png and OUT-signal.png.
 Each step's command and outcome are printed; exit status 1 on failure.
 
 Usage: run_and_check.py --capgap BIN --config INI --out OUT.h5
@@ -64,7 +64,8 @@ def main(argv):
     out = pathlib.Path(args.out)
     png, svg = out.with_suffix(".png"), out.with_suffix(".svg")
     out.parent.mkdir(parents=True, exist_ok=True)
-    for p in (out, png, svg):
+    for p in (out, png, svg, png.with_name(png.stem + "-plane.png"),
+              png.with_name(png.stem + "-signal.png")):
         p.unlink(missing_ok=True)
     py = [sys.executable, "-B"]
 
@@ -78,7 +79,11 @@ def main(argv):
           and non_empty(out)
           and step(2, "check the HDF5 layout", py + [args.checker, out], args.timeout)
           and step(3, "plot", py + [args.plotter, out, "-o", png], args.timeout)
-          and non_empty(png) and non_empty(svg))
+          and non_empty(png) and non_empty(svg)
+          # The companion figures: the power-bandwidth chart always, the
+          # signal views because the config has a shaped scheme.
+          and non_empty(png.with_name(png.stem + "-plane.png"))
+          and non_empty(png.with_name(png.stem + "-signal.png")))
     print("run_and_check: " + ("PASS" if ok else "FAIL"))
     return 0 if ok else 1
 

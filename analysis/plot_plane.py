@@ -1,0 +1,138 @@
+"""The power-bandwidth comparison chart of a capgap run.
+
+Role: every scheme of a run as a point at (Eb/N0 it needs for its target
+BER, spectral efficiency eta) on one plane, against
+  * the unconstrained Shannon bound Eb/N0 = (2^eta - 1) / eta (Shannon,
+    "Communication in the Presence of Noise", Proc. IRE, 1949), with the
+    unreachable region to its left shaded;
+  * the constellation-constrained capacity curve of every constellation in
+    the run, as the C++ side computed it (/<scheme>/limits/
+    constrained_curve_rho and constrained_curve_ebno_db, ideal Nyquist
+    signalling: eta = rho);
+  * a horizontal arrow from the bound to each point, labelled with the
+    distance in dB (the scheme's gap_to_shannon_db).
+Called by analysis/plot_curves.py, which writes OUT-plane.png beside OUT.png;
+reads the Scheme objects plot_curves.py built.
+"""
+
+import math
+
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.lines import Line2D
+from matplotlib.ticker import MultipleLocator
+
+from plot_style import GREY, MARKERS, PALETTE, STYLE, provenance
+
+import matplotlib
+
+
+def shannon_ebno_db(eta):
+    """10 log10((2^eta - 1) / eta), eta > 0 (numpy array)."""
+    eta = np.asarray(eta, dtype=np.float64)
+    return 10.0 * np.log10(np.expm1(eta * math.log(2.0)) / eta)
+
+
+def _modulation_label(mod):
+    return mod.upper().replace("QAM", "-QAM") if mod[:1].isdigit() else mod.upper()
+
+
+def make_figure(path, schemes, meta, dpi):
+    matplotlib.rcParams.update(STYLE)
+    fig = Figure(figsize=(12.0, 6.5), dpi=dpi, layout="constrained")
+    ax = fig.subplots()
+    reached = [s for s in schemes if math.isfinite(s.at_target)]
+    etas = [s.eta for s in schemes] + [1.0]
+    y_max = max(2.0, math.ceil(max(etas) * 1.15 + 0.5))
+    xs = [s.at_target for s in reached] + [-1.6]
+    x_lo = math.floor(min(xs) - 1.0)
+    x_hi = math.ceil(max(xs + [shannon_ebno_db(y_max)]) + 3.0)  # room for the names
+
+    # Shannon bound and the unreachable region left of it.
+    eta = np.linspace(0.01, y_max, 400)
+    bound = shannon_ebno_db(eta)
+    ax.fill_betweenx(eta, x_lo, bound, color="#f2f2f2", zorder=0)
+    ax.plot(bound, eta, color="#222222", linewidth=1.8, zorder=3)
+    ax.axvline(10.0 * math.log10(math.log(2.0)), color="#222222", linestyle=(0, (1, 2)),
+               linewidth=0.9, zorder=2)
+    ax.text(-1.3, y_max * 0.93, "unreachable at any\nerror rate (Shannon)", fontsize=8.5,
+            color="#666666", ha="left", va="top")
+
+    # Constrained-capacity curves, one per constellation in the run.
+    seen = set()
+    for s in schemes:
+        if s.curve_rho is None or s.modulation in seen:
+            continue
+        seen.add(s.modulation)
+        ok = np.isfinite(s.curve_ebno)
+        if not np.any(ok):
+            continue
+        x, y = s.curve_ebno[ok], s.curve_rho[ok]
+        ax.plot(x, y, color="#8c8c8c", linewidth=1.1, linestyle="-.", zorder=2)
+        ax.annotate(_modulation_label(s.modulation), xy=(x[-1], y[-1]), xytext=(4, 0),
+                    textcoords="offset points", fontsize=8, color="#6f6f6f", va="center")
+
+    # Schemes: point, name, and the horizontal distance to the bound. Schemes
+    # at the same eta share an arrow line: the first labels above it, the
+    # next ones below, so the labels never sit on each other.
+    per_eta = {}
+    for i, s in enumerate(schemes):
+        if not math.isfinite(s.at_target):
+            continue
+        colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
+        limit = float(shannon_ebno_db(s.eta)) if s.eta > 0 else s.shannon
+        ax.annotate("", xy=(s.at_target, s.eta), xytext=(limit, s.eta),
+                    arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
+                                    shrinkA=0, shrinkB=4, mutation_scale=9), zorder=4)
+        ax.plot([s.at_target], [s.eta], marker=marker, color=colour, markersize=8,
+                markeredgecolor="white", markeredgewidth=0.8, linestyle="none", zorder=5)
+        gap = s.at_target - limit
+        k = per_eta.get(round(s.eta, 2), 0)
+        per_eta[round(s.eta, 2)] = k + 1
+        dy, va = (2, "bottom") if k == 0 else (-3 - 11 * (k - 1), "top")
+        ax.annotate(f"{gap:.2f} dB", xy=(0.5 * (limit + s.at_target), s.eta), xytext=(0, dy),
+                    textcoords="offset points", ha="center", va=va, fontsize=8.5,
+                    color=colour, fontweight="semibold", zorder=6,
+                    bbox=dict(boxstyle="round,pad=0.1", facecolor="white", edgecolor="none",
+                              alpha=0.8))
+        ax.annotate(s.name, xy=(s.at_target, s.eta), xytext=(7, -3), textcoords="offset points",
+                    ha="left", va="top", fontsize=8.5, color=colour, zorder=6)
+
+    ax.set_xlim(x_lo, x_hi)
+    ax.set_ylim(0, y_max)
+    ax.xaxis.set_major_locator(MultipleLocator(2 if x_hi - x_lo <= 30 else 5))
+    ax.xaxis.set_minor_locator(MultipleLocator(1))
+    ax.yaxis.set_major_locator(MultipleLocator(1))
+    ax.yaxis.set_minor_locator(MultipleLocator(0.5))
+    ax.grid(True, which="major", color="#d9d9d9", linewidth=0.7)
+    ax.set_axisbelow(True)
+    for side in ("top", "right"):
+        ax.spines[side].set_visible(False)
+    ax.set_xlabel(r"$E_b/N_0$ needed at the target BER (dB)")
+    ax.set_ylabel(r"spectral efficiency $\eta$ (bit/s/Hz)")
+
+    targets = sorted({s.target_ber for s in schemes})
+    target_text = ", ".join(f"{t:.0e}".replace("e-0", "e-") for t in targets)
+    handles = [Line2D([], [], color="#222222", linewidth=1.8,
+                      label=r"Shannon bound $(2^\eta-1)/\eta$"),
+               Line2D([], [], color="#8c8c8c", linewidth=1.1, linestyle="-.",
+                      label="constellation-constrained capacity (Nyquist, \u03b7 = \u03c1)"),
+               Line2D([], [], color="#222222", linestyle=(0, (1, 2)), linewidth=0.9,
+                      label="\u22121.59 dB (\u03b7 \u2192 0)")]
+    for i, s in enumerate(schemes):
+        if math.isfinite(s.at_target):
+            handles.append(Line2D([], [], color=PALETTE[i % len(PALETTE)],
+                                  marker=MARKERS[i % len(MARKERS)], linestyle="none",
+                                  markersize=7, markeredgecolor="white", label=s.label()))
+    missing = [s.name for s in schemes if not math.isfinite(s.at_target)]
+    if missing:
+        handles.append(Line2D([], [], linestyle="none",
+                              label="not reached in the sweep: " + ", ".join(missing)))
+    ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=8.5,
+              borderaxespad=0.0, alignment="left",
+              title="arrow: distance to the Shannon bound at the scheme's \u03b7")
+    fig.suptitle(f"Power\u2013bandwidth plane at target BER {target_text}", fontsize=13.5,
+                 fontweight="semibold")
+    ax.text(1.01, 0.0, provenance(path, meta).replace("  \u00b7  ", "\n"), transform=ax.transAxes,
+            ha="left", va="bottom", fontsize=7, color="#808080")
+    return fig
