@@ -2,7 +2,9 @@
 // for BPSK (hard decisions) and 16-QAM (max-log LLRs), the share of time spent
 // generating noise, and the ratio to a careful numpy implementation of the
 // same chains measured in the same run (tests/bench/numpy_chains.py) — the
-// figure that survives a noisy shared machine. Medians of --repeats runs.
+// figure that survives a noisy shared machine; and QPSK with root-raised-cosine
+// shaping (a = 0.35, S = 4, span 10) with the share of its time spent in the
+// transmit and matched filters. Medians of --repeats runs.
 //
 // Usage: chain_bench [--repeats N] [--units N] [--no-numpy] [--scalar]
 #include <algorithm>
@@ -10,12 +12,14 @@
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "blocks/channel/awgn_channel.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "sim/build_info.h"
+#include "blocks/shaping/fir_filter.h"
 #include "sim/chain.h"
 
 namespace capgap {
@@ -34,46 +38,87 @@ struct ChainFigures {
   double noise_share;
 };
 
-ChainFigures MeasureChain(const char* modulation, DemapMethod demapper, int units, int repeats) {
+SchemeConfig Scheme(const char* modulation, DemapMethod demapper) {
   SchemeConfig s;
   s.name = std::string("bench_") + modulation;
   s.modulation = ParseModulation(modulation).value();
   s.demapper = demapper;
   s.frame_bits = 3840;
   s.unit_frames = 16;
+  return s;
+}
+
+// QPSK, root-raised cosine a = 0.35, S = 4, span 10 (the shaped figure the
+// issue asks for), max-log LLRs.
+SchemeConfig ShapedQpsk() {
+  SchemeConfig s = Scheme("qpsk", DemapMethod::kMaxLog);
+  s.name = "bench_qpsk_rrc";
+  s.shaping = PulseShape::kRootRaisedCosine;
+  s.rolloff = 0.35;
+  s.span = 10;
+  s.samples_per_symbol = 4;
+  return s;
+}
+
+// share: time of the stage named by `stage` alone on the same amount of data,
+// over the chain's time: noise generation (unshaped) or the two filters
+// (shaped: transmitter + matched filter on a frame plus its guard symbols).
+ChainFigures MeasureChain(const SchemeConfig& s, int units, int repeats) {
   auto chain = Chain::Create(s, 1).value();
   NoiseSpec spec;
   spec.ebn0_db = 6.0;
   spec.bits_per_symbol = s.modulation.bits_per_symbol();
+  spec.samples_per_symbol = chain.samples_per_symbol();
   const AwgnChannel channel(spec);
   ChainWorkspace ws = chain.MakeWorkspace();
   std::uint64_t sink = 0;
   sink += chain.RunUnit(channel, 0, 0, ws).bit_errors;  // warm-up
 
   std::vector<double> rates, shares;
-  const bool real = s.modulation.order == 2;
+  const bool real = s.modulation.order == 2 && !chain.shaped();
   const std::size_t symbols = s.frame_bits / static_cast<std::uint32_t>(spec.bits_per_symbol);
   std::vector<float> rbuf(symbols);
   std::vector<cf32> cbuf(symbols);
+  // Shaped: the filters alone on [frame | guard] blocks, as the chain runs them.
+  const std::size_t block = symbols + static_cast<std::size_t>(s.span);
+  std::vector<cf32> sym(block, cf32(0.7f, -0.7f)), samples(block * static_cast<std::size_t>(s.samples_per_symbol)),
+      out(block);
+  std::optional<Transmitter> tx;
+  std::optional<Receiver> rx;
+  FirWorkspace tx_ws, rx_ws;
+  if (chain.shaped()) {
+    PulseSpec ps;
+    ps.shape = s.shaping;
+    ps.rolloff = s.rolloff;
+    ps.span_symbols = s.span;
+    ps.samples_per_symbol = s.samples_per_symbol;
+    tx = Transmitter::Create(ps).value();
+    rx = Receiver::Create(ps).value();
+    tx_ws = tx->MakeWorkspace();
+    rx_ws = rx->MakeWorkspace();
+  }
   for (int r = 0; r < repeats; ++r) {
     const auto t0 = Clock::now();
     for (int u = 0; u < units; ++u) {
       sink += chain.RunUnit(channel, 1, static_cast<std::uint32_t>(u), ws).bit_errors;
     }
     const double chain_s = std::chrono::duration<double>(Clock::now() - t0).count();
-    // Noise alone, on the same number of samples.
     RngStream stream(PhiloxKey{1, 2}, 0, static_cast<std::uint32_t>(r), Substream::kNoise);
     const auto t1 = Clock::now();
     for (int u = 0; u < units * static_cast<int>(s.unit_frames); ++u) {
-      if (real) {
+      if (chain.shaped()) {
+        tx->Shape(sym, samples, tx_ws);
+        rx->Receive(samples, out, rx_ws);
+      } else if (real) {
         channel.AddNoiseReal(rbuf, stream);
       } else {
         channel.AddNoise(cbuf, stream);
       }
     }
-    const double noise_s = std::chrono::duration<double>(Clock::now() - t1).count();
+    const double stage_s = std::chrono::duration<double>(Clock::now() - t1).count();
+    sink += static_cast<std::uint64_t>(out[0].real() > 0);
     rates.push_back(static_cast<double>(chain.unit_bits()) * units / chain_s);
-    shares.push_back(noise_s / chain_s);
+    shares.push_back(stage_s / chain_s);
   }
   if (sink == 42) std::printf(" ");
   return {Median(rates), Median(shares)};
@@ -120,11 +165,21 @@ int main(int argc, char** argv) {
   std::printf("capgap %s (%s), %s, kernels %s, one thread, median of %d runs of %d units x 61440 bits\n",
               ProgramVersion(), GitRevision(), BuildType(), NoiseKernelTarget(), repeats, units);
   if (AssertionsEnabled()) std::printf("WARNING: assertions are on; timings are not representative\n");
-  const ChainFigures bpsk = MeasureChain("bpsk", DemapMethod::kHard, units, repeats);
-  const ChainFigures qam = MeasureChain("16qam", DemapMethod::kMaxLog, units, repeats);
-  std::printf("%-18s %12s %12s\n", "chain", "Mbit/s/core", "noise share");
-  std::printf("%-18s %12.1f %11.0f%%\n", "bpsk hard", bpsk.bits_per_second / 1e6, 100 * bpsk.noise_share);
-  std::printf("%-18s %12.1f %11.0f%%\n", "16qam maxlog", qam.bits_per_second / 1e6, 100 * qam.noise_share);
+  const ChainFigures bpsk = MeasureChain(Scheme("bpsk", DemapMethod::kHard), units, repeats);
+  const ChainFigures qam = MeasureChain(Scheme("16qam", DemapMethod::kMaxLog), units, repeats);
+  const ChainFigures shaped = MeasureChain(ShapedQpsk(), units, repeats);
+  std::printf("%-30s %12s %14s\n", "chain", "Mbit/s/core", "stage share");
+  std::printf("%-30s %12.1f %8.0f%% noise\n", "bpsk hard", bpsk.bits_per_second / 1e6,
+              100 * bpsk.noise_share);
+  std::printf("%-30s %12.1f %8.0f%% noise\n", "16qam maxlog", qam.bits_per_second / 1e6,
+              100 * qam.noise_share);
+  std::printf("%-30s %12.1f %8.0f%% filters (%s)\n", "qpsk rrc a=0.35 S=4 span=10 maxlog",
+              shaped.bits_per_second / 1e6, 100 * shaped.noise_share,
+              ToString(Receiver::Create(PulseSpec{PulseShape::kRootRaisedCosine, 0.35, 10, 4})
+                           .value()
+                           .filter()
+                           .method())
+                  .c_str());
   double np_bpsk = 0, np_qam = 0;
   if (numpy && RunNumpy(np_bpsk, np_qam)) {
     std::printf("numpy reference (same run): bpsk hard %.1f Mbit/s, 16qam maxlog %.1f Mbit/s\n",

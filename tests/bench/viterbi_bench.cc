@@ -9,6 +9,9 @@
 
 #include <cmath>
 #include <cstdint>
+#include <cstdio>
+#include <map>
+#include <string>
 #include <random>
 #include <vector>
 
@@ -75,7 +78,47 @@ BENCHMARK(BM_ViterbiK7SoftFloatScalar)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ViterbiK7SoftInt16Scalar)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ViterbiK7SoftInt16Simd)->Unit(benchmark::kMicrosecond);
 
+// Console output as usual, plus the same-run ratios of the three paths from
+// the medians (or the single runs without --benchmark_repetitions).
+class RatioReporter : public benchmark::ConsoleReporter {
+ public:
+  void ReportRuns(const std::vector<Run>& runs) override {
+    ConsoleReporter::ReportRuns(runs);
+    for (const Run& r : runs) {
+      const bool use = r.run_type == Run::RT_Iteration ? r.repetitions <= 1
+                                                       : r.aggregate_name == "median";
+      if (!use) continue;
+      const auto it = r.counters.find("info_bits_per_s");
+      if (it != r.counters.end()) rate_[r.run_name.function_name] = it->second.value;
+    }
+  }
+  void PrintRatios() const {
+    const double f = Get("BM_ViterbiK7SoftFloatScalar"), s = Get("BM_ViterbiK7SoftInt16Scalar"),
+                 v = Get("BM_ViterbiK7SoftInt16Simd");
+    if (f <= 0 || s <= 0 || v <= 0) return;
+    std::printf("\nK=7 r1/2 soft, decoded info bits/s per core (medians, same run):\n"
+                "  float scalar %.1f Mbit/s, int16 scalar %.1f Mbit/s, int16 SIMD %.1f Mbit/s\n"
+                "  SIMD / int16 scalar = %.1fx, SIMD / float scalar = %.1fx\n",
+                f / 1e6, s / 1e6, v / 1e6, v / s, v / f);
+  }
+
+ private:
+  double Get(const std::string& name) const {
+    const auto it = rate_.find(name);
+    return it == rate_.end() ? 0.0 : it->second;
+  }
+  std::map<std::string, double> rate_;
+};
+
 }  // namespace
 }  // namespace capgap
 
-BENCHMARK_MAIN();
+int main(int argc, char** argv) {
+  benchmark::Initialize(&argc, argv);
+  if (benchmark::ReportUnrecognizedArguments(argc, argv)) return 1;
+  capgap::RatioReporter reporter;
+  benchmark::RunSpecifiedBenchmarks(&reporter);
+  reporter.PrintRatios();
+  benchmark::Shutdown();
+  return 0;
+}
