@@ -1,5 +1,6 @@
-// Direct (polyphase) and overlap-save FFT paths of the streaming FIR filters,
-// and the pulse transmitter / receiver built on them (see fir_filter.h).
+// Direct (SIMD kernels of blocks/kernels/fir_kernels.h) and overlap-save FFT
+// paths of the streaming FIR filters, the kAuto rule between them, and the
+// pulse transmitter / receiver built on them (see fir_filter.h).
 #include "blocks/shaping/fir_filter.h"
 
 #include <bit>
@@ -10,23 +11,20 @@
 
 namespace capgap {
 
-// Crossover of kAuto, in taps per polyphase branch (ceil(L / S)). Measured
-// here (Release, g++ 12 -O3, one thread on the 2-core AVX-512 machine under a
-// load of ~2, RRC a = 0.35, S = 8, frames of 4096 symbols, median of 5 runs of
-// 10 frames), in ns per high-rate sample, direct / FFT:
-//   span  8: transmitter 2.6 / 2.5, receiver  6.4 / 3.1
-//   span 16: transmitter 4.4 / 3.0, receiver 11.6 / 2.7
-//   span 32: transmitter 10.8 / 3.8, receiver 29.2 / 4.0
-//   span 64: transmitter 17.9 / 5.3, receiver 51.2 / 6.2
-// so overlap-save wins from span 8 (9 taps per branch) on; the direct path
-// stays for very short filters and as the oracle-checked reference.
-const int kFftMinTapsPerPhase = 9;
+// Crossover of kAuto at S = 4 and the rule for every S: see the measured
+// table in fir_filter.h.
+const int kFftMinTapsPerPhase = 161;
+
+int FftMinTapsPerPhase(int factor, bool decimating) {
+  if (factor == 4) return kFftMinTapsPerPhase;
+  if (factor >= 8 && std::has_single_bit(static_cast<unsigned>(factor))) return 513;
+  if (factor <= 2) return decimating ? 49 : 97;
+  return decimating ? 49 : 33;
+}
 
 namespace {
 
 constexpr std::size_t kDirectChunkSymbols = 512;
-constexpr std::size_t kPhaseGroup = 16;  // interpolator accumulators
-constexpr std::size_t kLanes = 8;        // decimator partial sums
 constexpr int kMaxTaps = 1 << 16;
 
 Status ValidateTaps(std::span<const float> taps, int factor, const char* who) {
@@ -44,12 +42,24 @@ Status ValidateTaps(std::span<const float> taps, int factor, const char* who) {
   return Status::Ok();
 }
 
-FirMethod Resolve(FirMethod method, std::size_t taps, int factor) {
+// Decimator line: [history | staged samples | lookahead], the staged part the
+// larger of a chunk, the head of a call (ceil(H / S) S + lookahead samples)
+// and its tail (ceil(A / S) S samples).
+std::size_t DirectLineSize(const FirDecimatorPlan& plan) {
+  const std::size_t s = static_cast<std::size_t>(plan.factor);
+  const std::size_t h = plan.history(), a = plan.lookahead();
+  const std::size_t staged = std::max({kDirectChunkSymbols * s, (h + s - 1) / s * s + a,
+                                       (a + s - 1) / s * s});
+  return h + staged + a;
+}
+
+FirMethod Resolve(FirMethod method, std::size_t taps, int factor, bool decimating) {
   if (method != FirMethod::kAuto) return method;
   const std::size_t per_phase = (taps + static_cast<std::size_t>(factor) - 1) /
                                 static_cast<std::size_t>(factor);
-  return per_phase >= static_cast<std::size_t>(kFftMinTapsPerPhase) ? FirMethod::kFft
-                                                                    : FirMethod::kDirect;
+  return per_phase >= static_cast<std::size_t>(FftMinTapsPerPhase(factor, decimating))
+             ? FirMethod::kFft
+             : FirMethod::kDirect;
 }
 
 }  // namespace
@@ -106,18 +116,9 @@ Result<InterpolatingFir> InterpolatingFir::Create(std::span<const float> taps, i
   if (Status s = ValidateTaps(taps, factor, "interpolating filter"); !s.ok()) return s;
   InterpolatingFir f;
   f.factor_ = factor;
-  f.method_ = Resolve(method, taps.size(), factor);
+  f.method_ = Resolve(method, taps.size(), factor, /*decimating=*/false);
   f.taps_.assign(taps.begin(), taps.end());
-  const std::size_t s = static_cast<std::size_t>(factor);
-  const std::size_t q = (taps.size() + s - 1) / s;
-  f.phase_taps_ = static_cast<int>(q);
-  f.polyphase_.assign(s * q, 0.0f);
-  for (std::size_t p = 0; p < s; ++p) {
-    for (std::size_t k = 0; k < q; ++k) {
-      const std::size_t m = p + (q - 1 - k) * s;
-      if (m < taps.size()) f.polyphase_[k * s + p] = taps[m];
-    }
-  }
+  if (f.method_ == FirMethod::kDirect) f.direct_ = MakeFirInterpolatorPlan(taps, factor);
   if (f.method_ == FirMethod::kFft) f.fft_ = std::make_shared<const FftKernel>(taps);
   return f;
 }
@@ -127,8 +128,8 @@ int InterpolatingFir::fft_size() const { return fft_ ? fft_->n : 0; }
 FirWorkspace InterpolatingFir::MakeWorkspace() const {
   FirWorkspace ws;
   if (method_ == FirMethod::kDirect) {
-    ws.history_ = static_cast<std::size_t>(phase_taps_ - 1);
-    ws.line_.assign(ws.history_ + kDirectChunkSymbols, cf32(0.0f, 0.0f));
+    ws.history_ = direct_.history();
+    ws.line_.assign(ws.history_ + kDirectChunkSymbols + direct_.lookahead(), cf32(0.0f, 0.0f));
   } else {
     ws.history_ = taps_.size() - 1;
     ws.line_.assign(ws.history_, cf32(0.0f, 0.0f));
@@ -151,35 +152,19 @@ void InterpolatingFir::Process(std::span<const cf32> in, std::span<cf32> out,
 void InterpolatingFir::ProcessDirect(std::span<const cf32> in, std::span<cf32> out,
                                      FirWorkspace& ws) const {
   const std::size_t s = static_cast<std::size_t>(factor_);
-  const std::size_t q = static_cast<std::size_t>(phase_taps_);
   const std::size_t h = ws.history_;
-  CAPGAP_DCHECK(h == q - 1 && ws.line_.size() == h + kDirectChunkSymbols);
+  const std::size_t ahead = direct_.lookahead();
+  CAPGAP_DCHECK(h == direct_.history() && ws.line_.size() == h + kDirectChunkSymbols + ahead);
   cf32* line = ws.line_.data();
   for (std::size_t c0 = 0; c0 < in.size(); c0 += kDirectChunkSymbols) {
     const std::size_t cn = std::min(kDirectChunkSymbols, in.size() - c0);
     std::copy(in.begin() + static_cast<std::ptrdiff_t>(c0),
               in.begin() + static_cast<std::ptrdiff_t>(c0 + cn), line + h);
-    for (std::size_t j = 0; j < cn; ++j) {
-      const float* base = reinterpret_cast<const float*>(line + j);
-      cf32* o = out.data() + (c0 + j) * s;
-      // Phases in groups of kPhaseGroup: one accumulator per phase, so the
-      // adds are independent and vectorise across phases (coefficients are
-      // stored [k][p]); the order of the sum over k is fixed.
-      for (std::size_t p0 = 0; p0 < s; p0 += kPhaseGroup) {
-        const std::size_t np = std::min(kPhaseGroup, s - p0);
-        float re[kPhaseGroup] = {}, im[kPhaseGroup] = {};
-        for (std::size_t k = 0; k < q; ++k) {
-          const float xr = base[2 * k], xi = base[2 * k + 1];
-          const float* coeff = polyphase_.data() + k * s + p0;
-          for (std::size_t p = 0; p < np; ++p) {
-            re[p] += coeff[p] * xr;
-            im[p] += coeff[p] * xi;
-          }
-        }
-        for (std::size_t p = 0; p < np; ++p) o[p0 + p] = cf32(re[p], im[p]);
-      }
-    }
-    // Keep the last Q - 1 symbols of [history | chunk] as the new history.
+    // The kernel may read a few symbols past the chunk; they meet zero taps
+    // only, and zeros keep every output exact (fir_kernels.h).
+    std::fill(line + h + cn, line + h + cn + ahead, cf32(0.0f, 0.0f));
+    FirInterpolate(direct_, line + h, cn, out.data() + c0 * s);
+    // Keep the last h symbols of [history | chunk] as the new history.
     std::copy(line + cn, line + cn + h, line);
   }
 }
@@ -221,9 +206,9 @@ Result<DecimatingFir> DecimatingFir::Create(std::span<const float> taps, int fac
   if (Status s = ValidateTaps(taps, factor, "decimating filter"); !s.ok()) return s;
   DecimatingFir f;
   f.factor_ = factor;
-  f.method_ = Resolve(method, taps.size(), factor);
+  f.method_ = Resolve(method, taps.size(), factor, /*decimating=*/true);
   f.taps_.assign(taps.begin(), taps.end());
-  f.reversed_.assign(taps.rbegin(), taps.rend());
+  if (f.method_ == FirMethod::kDirect) f.direct_ = MakeFirDecimatorPlan(taps, factor);
   if (f.method_ == FirMethod::kFft) f.fft_ = std::make_shared<const FftKernel>(taps);
   return f;
 }
@@ -232,11 +217,11 @@ int DecimatingFir::fft_size() const { return fft_ ? fft_->n : 0; }
 
 FirWorkspace DecimatingFir::MakeWorkspace() const {
   FirWorkspace ws;
-  ws.history_ = taps_.size() - 1;
   if (method_ == FirMethod::kDirect) {
-    ws.line_.assign(ws.history_ + kDirectChunkSymbols * static_cast<std::size_t>(factor_),
-                    cf32(0.0f, 0.0f));
+    ws.history_ = direct_.history();
+    ws.line_.assign(DirectLineSize(direct_), cf32(0.0f, 0.0f));
   } else {
+    ws.history_ = taps_.size() - 1;
     ws.line_.assign(ws.history_, cf32(0.0f, 0.0f));
     ws.time_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
     ws.freq_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
@@ -254,43 +239,39 @@ void DecimatingFir::Process(std::span<const cf32> in, std::span<cf32> out,
   }
 }
 
+// Outputs whose window and lookahead lie inside `in` are computed straight
+// from it; only the first (reaching into the history) and the last (reaching
+// past the call) go through the line [history | staged samples | lookahead].
+// A short call is staged whole, in chunks.
 void DecimatingFir::ProcessDirect(std::span<const cf32> in, std::span<cf32> out,
                                   FirWorkspace& ws) const {
   const std::size_t s = static_cast<std::size_t>(factor_);
-  const std::size_t taps = reversed_.size();
   const std::size_t h = ws.history_;
-  CAPGAP_DCHECK(h == taps - 1 && ws.line_.size() == h + kDirectChunkSymbols * s);
+  const std::size_t ahead = direct_.lookahead();
+  const std::size_t n = out.size();
+  CAPGAP_DCHECK(h == direct_.history() && ws.line_.size() == DirectLineSize(direct_));
   cf32* line = ws.line_.data();
-  const float* g = reversed_.data();
-  for (std::size_t c0 = 0; c0 < out.size(); c0 += kDirectChunkSymbols) {
-    const std::size_t cs = std::min(kDirectChunkSymbols, out.size() - c0);
+  const std::size_t k_lo = (h + s - 1) / s;          // first output not reading the history
+  const std::size_t tail = (ahead + s - 1) / s;      // last outputs reading past the call
+  if (n > k_lo + tail) {
+    const std::size_t k_hi = n - tail;
+    std::copy(in.begin(), in.begin() + static_cast<std::ptrdiff_t>(k_lo * s + ahead), line + h);
+    FirDecimate(direct_, line + h, k_lo, out.data());
+    FirDecimate(direct_, in.data() + k_lo * s, k_hi - k_lo, out.data() + k_lo);
+    std::copy(in.begin() + static_cast<std::ptrdiff_t>(k_hi * s - h), in.end(), line);
+    std::fill(line + h + tail * s, line + h + tail * s + ahead, cf32(0.0f, 0.0f));
+    FirDecimate(direct_, line + h, tail, out.data() + k_hi);
+    std::copy(in.end() - static_cast<std::ptrdiff_t>(h), in.end(), line);
+    return;
+  }
+  for (std::size_t c0 = 0; c0 < n; c0 += kDirectChunkSymbols) {
+    const std::size_t cs = std::min(kDirectChunkSymbols, n - c0);
     const std::size_t samples = cs * s;
     std::copy(in.begin() + static_cast<std::ptrdiff_t>(c0 * s),
               in.begin() + static_cast<std::ptrdiff_t>(c0 * s + samples), line + h);
-    for (std::size_t j = 0; j < cs; ++j) {
-      // z = sum_m g[m] line[h + j S - m] = sum_k g[L - 1 - k] line[j S + k].
-      const float* base = reinterpret_cast<const float*>(line + j * s);
-      // kLanes independent partial sums (tap k goes to lane k mod kLanes),
-      // combined in a fixed order: deterministic and vectorisable.
-      float pr[kLanes] = {}, pi[kLanes] = {};
-      std::size_t k = 0;
-      for (; k + kLanes <= taps; k += kLanes) {
-        for (std::size_t l = 0; l < kLanes; ++l) {
-          pr[l] += g[k + l] * base[2 * (k + l)];
-          pi[l] += g[k + l] * base[2 * (k + l) + 1];
-        }
-      }
-      float re = 0.0f, im = 0.0f;
-      for (; k < taps; ++k) {
-        re += g[k] * base[2 * k];
-        im += g[k] * base[2 * k + 1];
-      }
-      for (std::size_t l = 0; l < kLanes; ++l) {
-        re += pr[l];
-        im += pi[l];
-      }
-      out[c0 + j] = cf32(re, im);
-    }
+    // Read only by outputs past the chunk, which are discarded (fir_kernels.h).
+    std::fill(line + h + samples, line + h + samples + ahead, cf32(0.0f, 0.0f));
+    FirDecimate(direct_, line + h, cs, out.data() + c0);
     std::copy(line + samples, line + samples + h, line);
   }
 }

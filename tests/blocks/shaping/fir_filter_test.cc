@@ -1,8 +1,10 @@
 // Tests of the streaming FIR filters and the pulse transmitter / receiver:
-// agreement with a double-precision convolution oracle, direct == FFT on
-// awkward frame lengths, state carried across frames, the exact delay
-// compensation (noise-free symbols come back), the matched-filter noise
-// variance N0 with capgap's AwgnChannel, and the fractional timing offset.
+// agreement with a double-precision convolution oracle (direct SIMD, direct
+// forced-scalar and FFT paths), direct == FFT on awkward frame lengths, state
+// carried across frames (bit-identical for any frame split on the direct
+// path), the kAuto crossover rule, the exact delay compensation (noise-free
+// symbols come back), the matched-filter noise variance N0 with capgap's
+// AwgnChannel, and the fractional timing offset.
 #include "blocks/shaping/fir_filter.h"
 
 #include <gtest/gtest.h>
@@ -16,6 +18,7 @@
 #include "blocks/channel/awgn_channel.h"
 #include "blocks/core/energy.h"
 #include "blocks/core/rng_stream.h"
+#include "blocks/kernels/awgn_kernels.h"
 #include "blocks/shaping/pulse.h"
 
 namespace capgap {
@@ -159,12 +162,76 @@ TEST(InterpolatingFir, DirectPathIsBitIdenticalForAnyFrameSplit) {
   EXPECT_EQ(whole, again);
 }
 
-TEST(FirFilters, AutoPicksDirectForShortAndFftForLongPulses) {
-  // Span 4 at S = 8: 33 taps, 5 per branch, below kFftMinTapsPerPhase = 9.
-  const auto short_tx = Transmitter::Create({PulseShape::kRootRaisedCosine, 0.35, 4, 8}).value();
-  EXPECT_EQ(short_tx.filter().method(), FirMethod::kDirect);
-  const auto long_rx = Receiver::Create({PulseShape::kRootRaisedCosine, 0.35, 128, 8}).value();
-  EXPECT_EQ(long_rx.filter().method(), FirMethod::kFft);
+// The decimator's direct path reads the bulk of a call straight from its
+// input and stages only the edges (fir_filter.cc), so frame lengths below,
+// at and above those edges must also give bit-identical samples.
+TEST(DecimatingFir, DirectPathIsBitIdenticalForAnyFrameSplit) {
+  for (int sps : {2, 3, 4, 8}) {
+    const std::vector<float> h =
+        DesignPulseTaps({PulseShape::kRootRaisedCosine, 0.35, 10, sps}, 0.25).value();
+    const auto f = DecimatingFir::Create(h, sps, FirMethod::kDirect).value();
+    const std::size_t s = static_cast<std::size_t>(sps);
+    const std::vector<cf32> r = QpskSymbols(5000 * s, 6);
+    std::vector<cf32> whole(5000);
+    FirWorkspace ws = f.MakeWorkspace();
+    f.Process(r, whole, ws);
+    EXPECT_EQ(whole, RunDecimator(f, r)) << "S=" << sps;
+  }
+}
+
+// The direct path under ForceScalarKernels runs the oracle of
+// blocks/kernels/fir_reference.h: it must match the double convolution too.
+TEST(FirFilters, ForcedScalarDirectPathMatchesTheConvolutionOracle) {
+  const bool before = ForceScalarKernels(true);
+  const std::vector<cf32> x = QpskSymbols(3000, 12);
+  for (const FilterCase& c : {FilterCase{17, 4}, FilterCase{41, 4}, FilterCase{130, 8}}) {
+    const std::vector<float> h = RandomTaps(c.taps, static_cast<std::uint32_t>(c.taps + 3));
+    const std::size_t s = static_cast<std::size_t>(c.factor);
+    std::vector<cd> u(x.size() * s, 0.0);
+    for (std::size_t j = 0; j < x.size(); ++j) u[j * s] = cd(x[j]);
+    const std::vector<cd> want_y = Convolve(u, h);
+    const auto tx = InterpolatingFir::Create(h, c.factor, FirMethod::kDirect).value();
+    EXPECT_LT(MaxAbsDiff(RunInterpolator(tx, x), want_y), Tolerance(c.taps)) << "L=" << c.taps;
+    const std::vector<cf32> r = QpskSymbols(3000 * s, 13);
+    const std::vector<cd> full = Convolve(std::vector<cd>(r.begin(), r.end()), h);
+    std::vector<cd> want_z(3000);
+    for (std::size_t k = 0; k < want_z.size(); ++k) want_z[k] = full[k * s];
+    const auto rx = DecimatingFir::Create(h, c.factor, FirMethod::kDirect).value();
+    EXPECT_LT(MaxAbsDiff(RunDecimator(rx, r), want_z), Tolerance(c.taps)) << "L=" << c.taps;
+  }
+  ForceScalarKernels(before);
+}
+
+// The kAuto rule of fir_filter.h at its boundaries: taps per branch
+// Q = span + 1 against FftMinTapsPerPhase(S, decimating).
+TEST(FirFilters, AutoPicksDirectBelowAndFftFromTheMeasuredCrossover) {
+  const auto tx = [](int span, int sps) {
+    return Transmitter::Create({PulseShape::kRootRaisedCosine, 0.35, span, sps}).value().filter().method();
+  };
+  const auto rx = [](int span, int sps) {
+    return Receiver::Create({PulseShape::kRootRaisedCosine, 0.35, span, sps}).value().filter().method();
+  };
+  EXPECT_EQ(kFftMinTapsPerPhase, FftMinTapsPerPhase(4, false));
+  EXPECT_EQ(kFftMinTapsPerPhase, FftMinTapsPerPhase(4, true));
+  // Every short pulse (the configs use spans <= 16) is direct.
+  for (int sps : {2, 3, 4, 8, 16}) {
+    EXPECT_EQ(tx(16, sps), FirMethod::kDirect) << "S=" << sps;
+    EXPECT_EQ(rx(16, sps), FirMethod::kDirect) << "S=" << sps;
+  }
+  // S = 4: 161 taps per branch.
+  EXPECT_EQ(tx(159, 4), FirMethod::kDirect);
+  EXPECT_EQ(rx(159, 4), FirMethod::kDirect);
+  EXPECT_EQ(tx(160, 4), FirMethod::kFft);
+  EXPECT_EQ(rx(160, 4), FirMethod::kFft);
+  // S = 2: the receiver switches earlier (49) than the transmitter (97).
+  EXPECT_EQ(rx(47, 2), FirMethod::kDirect);
+  EXPECT_EQ(rx(48, 2), FirMethod::kFft);
+  EXPECT_EQ(tx(95, 2), FirMethod::kDirect);
+  EXPECT_EQ(tx(96, 2), FirMethod::kFft);
+  // S = 8: direct over every pulse span (Q <= 257 < 513).
+  EXPECT_EQ(tx(256, 8), FirMethod::kDirect);
+  EXPECT_EQ(rx(256, 8), FirMethod::kDirect);
+  const auto long_rx = Receiver::Create({PulseShape::kRootRaisedCosine, 0.35, 192, 4}).value();
   EXPECT_GE(long_rx.filter().fft_size(), 4 * long_rx.filter().tap_count());
 }
 
