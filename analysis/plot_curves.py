@@ -12,6 +12,8 @@ draws, per scheme in one colour:
   * the Shannon limit at the scheme's spectral efficiency (dotted vertical)
     and the constellation-constrained limit (dash-dot; omitted when it is
     not finite, as for uncoded schemes);
+  * for LDPC schemes the belief-propagation threshold of the code's degree
+    distribution (density evolution; dashed, long-short);
   * the target BER (thin horizontal line) and a double-headed arrow from the
     Shannon limit to the Eb/N0 reached at the target, labelled with the gap.
 --fer adds a FER panel (same markers, intervals and limits; no theory or
@@ -128,6 +130,8 @@ class Scheme:
         self.at_target = _attr(summ, "ebno_at_target_db", f"{where}/summary")
         self.gap_shannon = _attr(summ, "gap_to_shannon_db", f"{where}/summary")
         # Optional parts (older or synthetic files may lack them).
+        self.threshold = float(lim.attrs["threshold_ebno_db"]) \
+            if "threshold_ebno_db" in lim.attrs else float("nan")
         self.shaping = _str(g.attrs["shaping"]) if "shaping" in g.attrs else "none"
         self.rolloff = float(g.attrs["rolloff"]) if "rolloff" in g.attrs else None
         self.timing_offset = float(g.attrs.get("timing_offset", 0.0))
@@ -232,7 +236,7 @@ def _x_limits(schemes):
     xs = []
     for s in schemes:
         xs += list(s.ebno_db)
-        xs += [v for v in (s.shannon, s.constrained, s.at_target) if math.isfinite(v)]
+        xs += [v for v in (s.shannon, s.constrained, s.at_target, s.threshold) if math.isfinite(v)]
     lo, hi = min(xs), max(xs)
     return math.floor(lo - 1.0), math.ceil(hi + 1.0)
 
@@ -280,6 +284,9 @@ def _draw_limits(ax, s, colour):
                    alpha=0.9, zorder=2)
     if math.isfinite(s.constrained):
         ax.axvline(s.constrained, color=colour, linestyle="-.", linewidth=1.2, alpha=0.9, zorder=2)
+    if math.isfinite(s.threshold):
+        ax.axvline(s.threshold, color=colour, linestyle=THRESHOLD_STYLE, linewidth=1.4, alpha=0.9,
+                   zorder=2)
 
 
 def _draw_gap(ax, s, colour, y):
@@ -311,7 +318,11 @@ def _draw_gap(ax, s, colour, y):
                           alpha=0.8))
 
 
-def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False):
+THRESHOLD_STYLE = (0, (10, 2, 2, 2, 2, 2))  # long dash, two dots
+
+
+def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
+                 any_threshold=False):
     h = [Line2D([], [], color=GREY, marker="o", markersize=5, linewidth=1.4,
                 label="simulated, 95 % Clopper\u2013Pearson interval")]
     if any_zero:
@@ -325,6 +336,9 @@ def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False):
     if any_constrained:
         h.append(Line2D([], [], color=GREY, linestyle="-.", linewidth=1.2,
                         label="constellation-constrained limit"))
+    if any_threshold:
+        h.append(Line2D([], [], color=GREY, linestyle=THRESHOLD_STYLE, linewidth=1.4,
+                        label="LDPC BP threshold (density evolution)"))
     if rate == "ber" and any_bound:
         h.append(Line2D([], [], color=GREY, linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)),
                         linewidth=1.2, label="union bound (coded, soft decisions)"))
@@ -408,8 +422,10 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
         "ber" if "ber" in rates else "fer",
         any_zero=any(_any_zero(s, r) for s in schemes for r in rates),
         any_constrained=any(math.isfinite(s.constrained) for s in schemes),
-        with_theory="ber" in rates and any(s.theory_ebno is not None for s in schemes),
-        any_bound="ber" in rates and any(s.bound_ber is not None for s in schemes))
+        with_theory="ber" in rates and any(s.theory_ebno is not None and not s.coded
+                                           for s in schemes),
+        any_bound="ber" in rates and any(s.bound_ber is not None for s in schemes),
+        any_threshold=any(math.isfinite(s.threshold) for s in schemes))
     for k, (ax, rate) in enumerate(zip(axes, rates)):
         last = k == len(rates) - 1
         draw_panel(ax, schemes, rate, x_lim, scheme_legend=(k == 0),

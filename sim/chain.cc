@@ -1,8 +1,11 @@
-// Uncoded chain: source, mapper, AWGN, demapper, decisions, error counting.
+// Chain: source, encoder, mapper, shaping, AWGN, matched filter, demapper,
+// decoder, decisions, error counting.
 #include "sim/chain.h"
 
 #include <algorithm>
 
+#include "blocks/fec/ldpc_construction.h"
+#include "blocks/fec/ldpc_matrix_file.h"
 #include "blocks/kernels/bpsk_kernels.h"
 
 namespace capgap {
@@ -55,11 +58,13 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
                            " bits per symbol of " + ToString(scheme.modulation) +
                            "; choose frame_bits so that the coded length is");
     }
+  } else if (scheme.code == "ldpc") {
+    if (Status st = chain.BuildLdpc(p); !st.ok()) return st;
   } else if (scheme.code != "none") {
-    return Status::Error(p + "code = '" + scheme.code + "': valid: none, conv");
+    return Status::Error(p + "code = '" + scheme.code + "': valid: none, conv, ldpc");
   }
   chain.key_ = DeriveKey(seed, scheme.name);
-  chain.unit_frames_ = scheme.ResolvedUnitFrames();
+  chain.unit_frames_ = chain.scheme_.ResolvedUnitFrames();
   auto mapper = Mapper::Create(scheme.modulation);
   if (!mapper.ok()) return Status::Error("scheme." + scheme.name + ": " + mapper.status().message());
   chain.mapper_ = std::make_shared<const Mapper>(std::move(mapper).value());
@@ -105,6 +110,69 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
   return chain;
 }
 
+// The LDPC code of the scheme (PEG, lifted base matrix or matrix file), its
+// encoder and decoder; frame_bits becomes the code's k.
+Status Chain::BuildLdpc(const std::string& p) {
+  const LdpcSchemeConfig& c = scheme_.ldpc;
+  Result<LdpcCode> code = Status::Error("unset");
+  if (c.construction == "peg") {
+    auto degrees = ParseVariableDegrees(c.degrees);
+    if (!degrees.ok()) {
+      return Status::Error(p + "degrees = '" + c.degrees + "': " + degrees.status().message());
+    }
+    PegSpec spec;
+    spec.length = c.length;
+    spec.checks = ChecksForRate(c.length, c.rate);
+    spec.degrees = degrees.value();
+    spec.seed = c.construction_seed;
+    code = BuildPegCode(spec);
+    if (!code.ok()) return Status::Error(p + "length/rate/degrees: " + code.status().message());
+  } else if (c.construction == "qc") {
+    auto base = ReadBaseMatrixFile(c.ResolvePath(c.base_matrix));
+    if (!base.ok()) return Status::Error(p + "base_matrix: " + base.status().message());
+    const int z = c.lifting > 0 ? c.lifting : base.value().design_lifting;
+    code = LiftBaseMatrix(base.value(), z);
+    if (!code.ok()) return Status::Error(p + "lifting = " + std::to_string(z) + ": " + code.status().message());
+  } else if (c.construction == "file") {
+    code = ReadLdpcMatrixFile(c.ResolvePath(c.matrix_file));
+    if (!code.ok()) return Status::Error(p + "matrix_file: " + code.status().message());
+  } else {
+    return Status::Error(p + "construction = '" + c.construction + "': valid: peg, qc, file");
+  }
+  ldpc_code_ = std::make_shared<const LdpcCode>(std::move(code).value());
+  const int n = ldpc_code_->length();
+  const int m = scheme_.modulation.bits_per_symbol();
+  if (n % m != 0) {
+    return Status::Error(p + "code length n = " + std::to_string(n) + " is not a multiple of " +
+                         std::to_string(m) + " bits per symbol of " + ToString(scheme_.modulation));
+  }
+  auto encoder = LdpcEncoder::Create(ldpc_code_);
+  if (!encoder.ok()) return Status::Error(p + "code: " + encoder.status().message());
+  ldpc_encoder_ = std::move(encoder).value();
+  LdpcDecoderOptions opt;
+  auto algorithm = ParseLdpcAlgorithm(c.decoder);
+  if (!algorithm.ok()) return Status::Error(p + "decoder = '" + c.decoder + "': " + algorithm.status().message());
+  opt.algorithm = algorithm.value();
+  auto schedule = ParseLdpcSchedule(c.schedule);
+  if (!schedule.ok()) return Status::Error(p + "schedule = '" + c.schedule + "': " + schedule.status().message());
+  opt.schedule = schedule.value();
+  opt.max_iterations = c.max_iterations;
+  auto arithmetic = ParseLdpcArithmetic(c.arithmetic);
+  if (!arithmetic.ok()) {
+    return Status::Error(p + "arithmetic = '" + c.arithmetic + "': " + arithmetic.status().message());
+  }
+  opt.arithmetic = arithmetic.value();
+  opt.normalization = static_cast<float>(c.normalization);
+  opt.offset = static_cast<float>(c.offset);
+  auto decoder = LdpcDecoder::Create(ldpc_code_, opt);
+  if (!decoder.ok()) return Status::Error(p + "decoder: " + decoder.status().message());
+  ldpc_decoder_ = std::move(decoder).value();
+  scheme_.frame_bits = static_cast<std::uint32_t>(ldpc_encoder_->info_bits());
+  coded_bits_ = static_cast<std::size_t>(n);
+  code_rate_ = static_cast<double>(ldpc_encoder_->info_bits()) / n;
+  return Status::Ok();
+}
+
 ChainWorkspace Chain::MakeWorkspace() const {
   ChainWorkspace ws;
   const std::size_t n = scheme_.frame_bits;
@@ -119,6 +187,13 @@ ChainWorkspace Chain::MakeWorkspace() const {
     if (bcjr_) {
       ws.bcjr = bcjr_->MakeWorkspace(n);
       ws.info_llrs.resize(n);
+    }
+    if (ldpc_decoder_) {
+      ws.ldpc = ldpc_decoder_->MakeWorkspace();
+      ws.unit_bits.resize(unit_frames_ * n);
+      ws.unit_llrs.resize(unit_frames_ * coded_bits_);
+      ws.unit_decided.resize(unit_frames_ * coded_bits_);
+      ws.ldpc_results.resize(unit_frames_);
     }
   }
   if (real_axis_) {
@@ -229,11 +304,7 @@ std::vector<cf32> Chain::CaptureDemapperInput(const AwgnChannel& channel,
   out.reserve(max_symbols);
   while (out.size() < max_symbols) {
     GenerateRandomBits(ws.bits, bit_stream);
-    std::span<const Bit> tx_bits = ws.bits;
-    if (coded()) {
-      conv_->Encode(ws.bits, ws.coded);
-      tx_bits = ws.coded;
-    }
+    const std::span<const Bit> tx_bits = EncodeFrame(ws.bits, ws);
     if (real_axis_) {
       for (std::size_t i = 0; i < ws.real_symbols.size(); ++i) {
         ws.real_symbols[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
@@ -254,8 +325,82 @@ std::vector<cf32> Chain::CaptureDemapperInput(const AwgnChannel& channel,
   return out;
 }
 
+std::span<const Bit> Chain::EncodeFrame(std::span<const Bit> bits, ChainWorkspace& ws) const {
+  if (conv_) {
+    conv_->Encode(bits, ws.coded);
+    return ws.coded;
+  }
+  if (ldpc_encoder_) {
+    ldpc_encoder_->Encode(bits, ws.coded);
+    return ws.coded;
+  }
+  return bits;
+}
+
+void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const AwgnChannel& channel,
+                        RngStream& guard_stream, RngStream& noise_stream, ChainWorkspace& ws,
+                        std::span<float> llrs) const {
+  if (real_axis_) {
+    // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
+    // L = 4 y / N0 (LLR > 0 favours bit 0).
+    float* x = ws.real_symbols.data();
+    const std::size_t n = ws.real_symbols.size();
+    for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
+    channel.AddNoiseReal(ws.real_symbols, noise_stream);
+    const float scale = 4.0f / channel.n0();
+    float* l = llrs.data();
+    for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
+    return;
+  }
+  TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
+  demapper_->Demap(ws.symbols, channel.n0(), llrs);
+}
+
+// An LDPC unit: every frame encoded and sent, its LLRs kept; then one
+// decoder call for the whole unit (frames side by side in SIMD lanes; each
+// frame's result is what it gets decoded alone, ldpc_decoder.h), then the
+// counts. Streams are used frame by frame exactly as in RunUnit.
+UnitCounts Chain::RunLdpcUnit(const AwgnChannel& channel, std::uint32_t point_index,
+                              std::uint32_t unit_index, ChainWorkspace& ws) const {
+  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
+  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
+  RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
+  PrimeUnit(channel, guard_stream, noise_stream, ws);
+  const std::size_t k = scheme_.frame_bits, n = coded_bits_;
+  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
+    const std::span<Bit> bits(ws.unit_bits.data() + f * k, k);
+    FillSource(point_index, unit_index, f, bit_stream, bits);
+    ldpc_encoder_->Encode(bits, ws.coded);
+    ChannelLlrs(ws.coded, channel, guard_stream, noise_stream, ws,
+                std::span<float>(ws.unit_llrs.data() + f * n, n));
+  }
+  ldpc_decoder_->Decode(ws.unit_llrs, ws.unit_decided, ws.ldpc_results, ws.ldpc);
+  UnitCounts counts;
+  const std::span<const int> positions = ldpc_encoder_->info_positions();
+  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
+    const Bit* info = ws.unit_bits.data() + f * k;
+    const Bit* decided = ws.unit_decided.data() + f * n;
+    std::uint64_t errors = 0;
+    for (std::size_t j = 0; j < k; ++j) {
+      errors += static_cast<std::uint64_t>(info[j] ^ decided[static_cast<std::size_t>(positions[j])]);
+    }
+    const LdpcDecoder::FrameResult& r = ws.ldpc_results[f];
+    counts.bits += k;
+    counts.bit_errors += errors;
+    counts.frames += 1;
+    counts.frame_errors += errors > 0 ? 1 : 0;
+    counts.decoder_iterations += static_cast<std::uint64_t>(r.iterations);
+    counts.max_decoder_iterations =
+        std::max(counts.max_decoder_iterations, static_cast<std::uint32_t>(r.iterations));
+    // Converged to a codeword that is not the one sent.
+    counts.undetected_frame_errors += (r.converged && errors > 0) ? 1 : 0;
+  }
+  return counts;
+}
+
 UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
                           std::uint32_t unit_index, ChainWorkspace& ws) const {
+  if (ldpc_decoder_) return RunLdpcUnit(channel, point_index, unit_index, ws);
   RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
   RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
   const float n0 = channel.n0();

@@ -1,6 +1,7 @@
 // Chain composer: turns a SchemeConfig into the blocks of one simulated link
-// (bit source -> mapper -> AWGN -> demapper -> decisions) and runs one work
-// unit of frames through them.
+// (bit source -> [encoder] -> mapper -> [shaping] -> AWGN -> [matched filter]
+// -> demapper -> [decoder] -> decisions) and runs one work unit of frames
+// through them.
 //
 // Polymorphism lives here, once per frame: the chain picks its path (real BPSK
 // or complex) when it is built; the blocks' inner loops see only spans. A
@@ -25,6 +26,9 @@
 #include "blocks/fec/bcjr_decoder.h"
 #include "blocks/fec/conv_code.h"
 #include "blocks/fec/distance_spectrum.h"
+#include "blocks/fec/ldpc_code.h"
+#include "blocks/fec/ldpc_decoder.h"
+#include "blocks/fec/ldpc_encoder.h"
 #include "blocks/fec/viterbi_decoder.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
@@ -74,6 +78,14 @@ struct ChainWorkspace {
   std::vector<float> info_llrs;
   ViterbiDecoder::Workspace viterbi;
   BcjrDecoder::Workspace bcjr;
+  // LDPC chains decode a whole unit at once (the decoder's SIMD lanes take
+  // frames side by side): every frame's information bits, channel LLRs,
+  // decisions and decoder result.
+  LdpcDecoder::Workspace ldpc;
+  std::vector<Bit> unit_bits;
+  std::vector<float> unit_llrs;
+  std::vector<Bit> unit_decided;
+  std::vector<LdpcDecoder::FrameResult> ldpc_results;
   std::vector<Bit> bits;
   std::vector<Bit> decided;
   std::vector<cf32> symbols;
@@ -89,8 +101,14 @@ class Chain {
   const Mapper& mapper() const { return *mapper_; }
   // Effective code rate: tail bits and puncturing included (1 uncoded).
   double code_rate() const { return code_rate_; }
-  bool coded() const { return conv_.has_value(); }
+  bool coded() const { return conv_.has_value() || ldpc_decoder_.has_value(); }
+  bool conv_coded() const { return conv_.has_value(); }
+  bool ldpc_coded() const { return ldpc_decoder_.has_value(); }
   const ConvCode& conv_code() const { return *conv_; }
+  // LDPC chains (REQUIRES ldpc_coded()).
+  const LdpcCode& ldpc_code() const { return *ldpc_code_; }
+  const LdpcEncoder& ldpc_encoder() const { return *ldpc_encoder_; }
+  const LdpcDecoder& ldpc_decoder() const { return *ldpc_decoder_; }
   // Coded bits per frame (frame_bits when uncoded).
   std::size_t coded_bits() const { return coded_bits_; }
   double info_bits_per_symbol() const { return code_rate() * mapper_->bits_per_symbol(); }
@@ -117,6 +135,7 @@ class Chain {
 
  private:
   Chain() = default;
+  Status BuildLdpc(const std::string& key_prefix);
   void FillSource(std::uint32_t point_index, std::uint32_t unit_index, std::uint32_t frame,
                   RngStream& bit_stream, std::span<Bit> bits) const;
 
@@ -138,6 +157,10 @@ class Chain {
   std::optional<ViterbiDecoder> viterbi_;
   std::optional<BcjrDecoder> bcjr_;
   bool hard_decoding_ = false;
+  // LDPC code, its systematic encoder and decoder.
+  std::shared_ptr<const LdpcCode> ldpc_code_;
+  std::optional<LdpcEncoder> ldpc_encoder_;
+  std::optional<LdpcDecoder> ldpc_decoder_;
   double code_rate_ = 1.0;
   std::size_t coded_bits_ = 0;
   int guard_symbols_ = 0;
@@ -147,6 +170,16 @@ class Chain {
                  ChainWorkspace& ws) const;
   void TransmitComplex(std::span<const Bit> tx_bits, const AwgnChannel& channel,
                        RngStream& guard_stream, RngStream& noise_stream, ChainWorkspace& ws) const;
+  // Coded bits of one frame through mapper and channel to the demapper's
+  // LLRs (the real BPSK path: L = 4 y / N0).
+  void ChannelLlrs(std::span<const Bit> tx_bits, const AwgnChannel& channel,
+                   RngStream& guard_stream, RngStream& noise_stream, ChainWorkspace& ws,
+                   std::span<float> llrs) const;
+  // The frame's bits on the channel: the information bits, or their codeword
+  // in ws.coded.
+  std::span<const Bit> EncodeFrame(std::span<const Bit> bits, ChainWorkspace& ws) const;
+  UnitCounts RunLdpcUnit(const AwgnChannel& channel, std::uint32_t point_index,
+                         std::uint32_t unit_index, ChainWorkspace& ws) const;
 };
 
 }  // namespace capgap

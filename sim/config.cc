@@ -8,6 +8,7 @@
 #include <cerrno>
 #include <cmath>
 #include <cstdlib>
+#include <filesystem>
 #include <fstream>
 #include <set>
 #include <sstream>
@@ -26,6 +27,10 @@ struct KeySpec {
   const char* rule;           // human description used in messages and --help
   const char* code = nullptr;  // only valid with this `code` value (nullptr: always)
   bool shaped = false;         // only valid with shaping = rc or rrc
+  // Only valid when another key of the scheme has a value, "key=value"
+  // (that key comes earlier in kSchemeKeys).
+  const char* when = nullptr;
+  const char* except_code = nullptr;  // not valid with this `code` value
 };
 
 // The keys of [sweep], with defaults. Order is the order of the resolved text.
@@ -37,11 +42,15 @@ constexpr KeySpec kSweepKeys[] = {
     {"target_ber", "1e-5", "number in (0, 0.5): BER at which the summary is taken"},
     {"seed", "1", "integer >= 0"},
     {"threads", "0", "integer >= 0 (0: all cores)"},
+    {"checkpoint_seconds", "60",
+     "number in [0, 86400]: seconds between checkpoints while a point runs (0: only when a "
+     "point finishes or the run stops)"},
 };
 
 constexpr KeySpec kSchemeKeys[] = {
     {"modulation", nullptr, "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam"},
-    {"frame_bits", "1920", "integer in [1, 16777216], a multiple of bits per symbol"},
+    {"frame_bits", "1920", "integer in [1, 16777216], a multiple of bits per symbol", nullptr, false,
+     nullptr, "ldpc"},
     {"demapper", "maxlog", "hard, maxlog, logmap"},
     {"source", "random", "random, prbs9, prbs15, prbs23, prbs31"},
     {"unit_frames", "0", "integer >= 0: frames per work unit (0: automatic, ~64 kbit)"},
@@ -52,14 +61,47 @@ constexpr KeySpec kSchemeKeys[] = {
     {"timing_offset", "0", "number in [-0.5, 0.5]: receiver sampling offset in symbols", nullptr, true},
     {"phase_offset_deg", "0", "finite number: carrier phase offset in degrees"},
     {"frequency_offset", "0", "number in [-0.5, 0.5]: carrier frequency offset in cycles per symbol"},
-    {"code", "none", "none, conv"},
+    {"code", "none", "none, conv, ldpc"},
     {"generators", "133,171", "octal generator list, one per coded output, e.g. 133,171", "conv"},
     {"constraint_length", "7", "integer in [3, 9]", "conv"},
     {"puncture", "none", "none, or pattern rows separated by ',' (one row of 0/1 per generator), e.g. 110,101", "conv"},
     {"termination", "tail", "tail, tailbiting", "conv"},
     {"decoder", "viterbi_soft", "viterbi_soft, viterbi_hard, bcjr", "conv"},
     {"traceback", "0", "integer >= 0: Viterbi traceback depth in trellis steps (0: automatic)", "conv"},
+    {"construction", "peg", "peg, qc, file", "ldpc"},
+    {"length", "2016", "integer in [8, 1048576]: code length n", "ldpc", false, "construction=peg"},
+    {"rate", "0.5", "number in (0, 1): design rate, m = round(n (1 - rate)) checks", "ldpc", false,
+     "construction=peg"},
+    {"degrees", "3", "variable-node degrees: D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2",
+     "ldpc", false, "construction=peg"},
+    {"construction_seed", "1", "integer >= 0: seed of the PEG construction", "ldpc", false,
+     "construction=peg"},
+    {"base_matrix", nullptr, "path of a base-matrix file (relative to the config file), e.g. codes/qc_r1-2_24x12.txt",
+     "ldpc", false, "construction=qc"},
+    {"lifting", "0", "integer in [0, 65536]: lifting size Z (0: the base matrix file's own)", "ldpc",
+     false, "construction=qc"},
+    {"matrix_file", nullptr, "path of a parity-check matrix file (relative to the config file)", "ldpc",
+     false, "construction=file"},
+    {"decoder", "min_sum_normalized", "sum_product, min_sum_normalized, min_sum_offset", "ldpc"},
+    {"schedule", "layered", "flooding, layered", "ldpc"},
+    {"max_iterations", "50", "integer in [1, 1000]", "ldpc"},
+    {"arithmetic", "auto", "auto, int8, int16, float: decoder arithmetic (auto: fixed point for min-sum, float for sum-product)",
+     "ldpc"},
+    {"normalization", "0.75", "number in (0, 1]: normalised min-sum factor", "ldpc", false,
+     "decoder=min_sum_normalized"},
+    {"offset", "0.5", "number in [0, 10]: offset min-sum offset in LLR units", "ldpc", false,
+     "decoder=min_sum_offset"},
 };
+
+// True if some entry for `key` applies to schemes with this code value.
+template <std::size_t N>
+bool KeyAppliesToCode(const KeySpec (&keys)[N], const char* key, const std::string& code) {
+  for (const auto& k : keys) {
+    if (std::string(k.key) != key) continue;
+    if ((!k.code || code == k.code) && !(k.except_code && code == k.except_code)) return true;
+  }
+  return false;
+}
 
 std::string Trim(const std::string& s) {
   const auto b = s.find_first_not_of(" \t\r\n");
@@ -71,7 +113,9 @@ std::string Trim(const std::string& s) {
 template <std::size_t N>
 std::string KeyList(const KeySpec (&keys)[N]) {
   std::string out;
+  std::set<std::string> seen;  // a key with entries for several codes once
   for (const auto& k : keys) {
+    if (!seen.insert(k.key).second) continue;
     if (!out.empty()) out += ", ";
     out += k.key;
   }
@@ -155,9 +199,23 @@ std::string ToString(SourceKind kind) {
   return "random";
 }
 
+std::string LdpcSchemeConfig::ResolvePath(const std::string& path) const {
+  const std::filesystem::path p(path);
+  if (p.is_absolute() || config_dir.empty()) return path;
+  return (std::filesystem::path(config_dir) / p).string();
+}
+
 std::uint32_t SchemeConfig::ResolvedUnitFrames() const {
   if (unit_frames > 0) return unit_frames;
   constexpr std::uint32_t kUnitBits = 65536;
+  if (code == "ldpc") {
+    // A multiple of 64 frames, so the decoder's SIMD batches (16 to 64
+    // codewords across lanes) are full on every target; frame_bits is the
+    // code's k once the chain has built the code (0 before: one batch).
+    const std::uint32_t frames =
+        frame_bits == 0 ? 64 : (kUnitBits + frame_bits - 1) / frame_bits;
+    return (frames + 63) / 64 * 64;
+  }
   return std::max<std::uint32_t>(1, (kUnitBits + frame_bits - 1) / std::max<std::uint32_t>(frame_bits, 1));
 }
 
@@ -330,12 +388,32 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
         }
         continue;
       }
-      if (k.code && code != k.code) {
-        if (values.count(full)) {
+      if ((k.code && code != k.code) || (k.except_code && code == k.except_code)) {
+        // A key with an entry for another code (decoder) is checked there.
+        if (values.count(full) && !KeyAppliesToCode(kSchemeKeys, k.key, code)) {
+          if (k.except_code) {
+            return Status::Error(source + ": " + full + " does not apply with code = " + code +
+                                 " (a frame is one codeword; the code sets its information bits)");
+          }
           return Status::Error(source + ": " + full + " applies only with code = " + k.code +
                                " (this scheme has code = " + code + ")");
         }
         continue;
+      }
+      if (k.when) {
+        const std::string cond = k.when;
+        const auto eq = cond.find('=');
+        const std::string other = "scheme." + name + "." + cond.substr(0, eq);
+        const std::string want = cond.substr(eq + 1);
+        const std::string have = values.count(other) ? values[other] : "";
+        if (have != want) {
+          if (values.count(full)) {
+            return Status::Error(source + ": " + full + " applies only with " + cond.substr(0, eq) +
+                                 " = " + want + " (this scheme has " + cond.substr(0, eq) +
+                                 " = " + have + ")");
+          }
+          continue;
+        }
       }
       if (!values.count(full)) {
         if (!k.default_value) {
@@ -376,6 +454,12 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     auto th = v.Integer("sweep.threads", 0, 4096, "an integer in [0, 4096] (0: all cores)");
     if (!th.ok()) return th.status();
     config.sweep.threads = static_cast<int>(th.value());
+    auto cs = v.Number("sweep.checkpoint_seconds");
+    if (!cs.ok()) return cs.status();
+    if (!(cs.value() >= 0 && cs.value() <= 86400)) {
+      return v.Fail("sweep.checkpoint_seconds", "must be in [0, 86400] seconds");
+    }
+    config.sweep.checkpoint_seconds = cs.value();
   }
   for (const auto& name : scheme_names) {
     const std::string p = "scheme." + name + ".";
@@ -391,12 +475,15 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     if (!src.ok()) return v.Fail(p + "source", src.status().message());
     s.source = src.value();
     const int m = s.modulation.bits_per_symbol();
-    auto fb = v.Integer(p + "frame_bits", 1, 16777216, "an integer in [1, 16777216]");
-    if (!fb.ok()) return fb.status();
-    s.frame_bits = static_cast<std::uint32_t>(fb.value());
-    if (s.frame_bits % static_cast<std::uint32_t>(m) != 0) {
-      return v.Fail(p + "frame_bits", "must be a multiple of " + std::to_string(m) +
-                                          " (bits per symbol of " + ToString(s.modulation) + ")");
+    s.code = values[p + "code"];
+    if (s.code != "ldpc") {
+      auto fb = v.Integer(p + "frame_bits", 1, 16777216, "an integer in [1, 16777216]");
+      if (!fb.ok()) return fb.status();
+      s.frame_bits = static_cast<std::uint32_t>(fb.value());
+      if (s.frame_bits % static_cast<std::uint32_t>(m) != 0) {
+        return v.Fail(p + "frame_bits", "must be a multiple of " + std::to_string(m) +
+                                            " (bits per symbol of " + ToString(s.modulation) + ")");
+      }
     }
     auto uf = v.Integer(p + "unit_frames", 0, 1u << 20, "an integer in [0, 1048576] (0: automatic)");
     if (!uf.ok()) return uf.status();
@@ -431,7 +518,6 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
       return v.Fail(p + "frequency_offset", "must be in [-0.5, 0.5] cycles per symbol");
     }
     s.frequency_offset = fo.value();
-    s.code = values[p + "code"];
     if (s.code == "conv") {
       ConvSchemeConfig& c = s.conv;
       c.generators = values[p + "generators"];
@@ -450,8 +536,72 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
       auto tb = v.Integer(p + "traceback", 0, 100000, "an integer in [0, 100000] (0: automatic)");
       if (!tb.ok()) return tb.status();
       c.traceback = static_cast<int>(tb.value());
+    } else if (s.code == "ldpc") {
+      LdpcSchemeConfig& c = s.ldpc;
+      c.config_dir = std::filesystem::path(source).parent_path().string();
+      c.construction = values[p + "construction"];
+      if (c.construction == "peg") {
+        auto n = v.Integer(p + "length", 8, 1u << 20, "an integer in [8, 1048576]");
+        if (!n.ok()) return n.status();
+        c.length = static_cast<int>(n.value());
+        if (c.length % m != 0) {
+          return v.Fail(p + "length", "must be a multiple of " + std::to_string(m) +
+                                          " (bits per symbol of " + ToString(s.modulation) + ")");
+        }
+        auto r = v.Number(p + "rate");
+        if (!r.ok()) return r.status();
+        if (!(r.value() > 0 && r.value() < 1)) return v.Fail(p + "rate", "must be in (0, 1)");
+        c.rate = r.value();
+        c.degrees = values[p + "degrees"];
+        auto cs = v.Integer(p + "construction_seed", 0, UINT64_MAX, "an integer >= 0");
+        if (!cs.ok()) return cs.status();
+        c.construction_seed = cs.value();
+      } else if (c.construction == "qc") {
+        c.base_matrix = values[p + "base_matrix"];
+        if (c.base_matrix.empty()) return v.Fail(p + "base_matrix", "must name a base-matrix file");
+        auto z = v.Integer(p + "lifting", 0, 65536, "an integer in [0, 65536] (0: the file's own)");
+        if (!z.ok()) return z.status();
+        c.lifting = static_cast<int>(z.value());
+      } else if (c.construction == "file") {
+        c.matrix_file = values[p + "matrix_file"];
+        if (c.matrix_file.empty()) return v.Fail(p + "matrix_file", "must name a matrix file");
+      } else {
+        return v.Fail(p + "construction", "valid: peg, qc, file");
+      }
+      c.decoder = values[p + "decoder"];
+      if (c.decoder != "sum_product" && c.decoder != "min_sum_normalized" &&
+          c.decoder != "min_sum_offset") {
+        return v.Fail(p + "decoder", "valid with code = ldpc: sum_product, min_sum_normalized, min_sum_offset");
+      }
+      c.schedule = values[p + "schedule"];
+      if (c.schedule != "flooding" && c.schedule != "layered") {
+        return v.Fail(p + "schedule", "valid: flooding, layered");
+      }
+      auto it = v.Integer(p + "max_iterations", 1, 1000, "an integer in [1, 1000]");
+      if (!it.ok()) return it.status();
+      c.max_iterations = static_cast<int>(it.value());
+      c.arithmetic = values[p + "arithmetic"];
+      if (c.arithmetic != "auto" && c.arithmetic != "int8" && c.arithmetic != "int16" &&
+          c.arithmetic != "float") {
+        return v.Fail(p + "arithmetic", "valid: auto, int8, int16, float");
+      }
+      if (c.decoder == "sum_product" && (c.arithmetic == "int8" || c.arithmetic == "int16")) {
+        return v.Fail(p + "arithmetic", "sum_product runs in float only (valid with it: auto, float)");
+      }
+      if (c.decoder == "min_sum_normalized") {
+        auto a = v.Number(p + "normalization");
+        if (!a.ok()) return a.status();
+        if (!(a.value() > 0 && a.value() <= 1)) return v.Fail(p + "normalization", "must be in (0, 1]");
+        c.normalization = a.value();
+      }
+      if (c.decoder == "min_sum_offset") {
+        auto b = v.Number(p + "offset");
+        if (!b.ok()) return b.status();
+        if (!(b.value() >= 0 && b.value() <= 10)) return v.Fail(p + "offset", "must be in [0, 10]");
+        c.offset = b.value();
+      }
     } else if (s.code != "none") {
-      return v.Fail(p + "code", "valid: none, conv");
+      return v.Fail(p + "code", "valid: none, conv, ldpc");
     }
     config.schemes.push_back(s);
   }

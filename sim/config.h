@@ -32,6 +32,9 @@ struct SweepConfig {
   double target_ber = 1e-5;             // BER of the summary (Eb/N0 needed, gaps)
   std::uint64_t seed = 1;
   int threads = 0;                      // 0: all cores
+  // Seconds between checkpoints while a point runs (0: only when a point
+  // finishes or the run stops). Does not change any count.
+  double checkpoint_seconds = 60;
 };
 
 // Convolutional-code keys of a scheme (code = conv). Generators and puncture
@@ -44,6 +47,33 @@ struct ConvSchemeConfig {
   std::string termination = "tail";    // tail, tailbiting
   std::string decoder = "viterbi_soft";  // viterbi_soft, viterbi_hard, bcjr
   int traceback = 0;                   // 0: automatic
+};
+
+// LDPC keys of a scheme (code = ldpc). Texts (degrees, paths) are parsed by
+// the code blocks when the chain is built; their messages get the key.
+struct LdpcSchemeConfig {
+  std::string construction = "peg";     // peg, qc, file
+  // peg: code length n, design rate (m = round(n (1 - rate)) checks), the
+  // variable-node degree distribution, and the seed of the construction.
+  int length = 2016;
+  double rate = 0.5;
+  std::string degrees = "3";
+  std::uint64_t construction_seed = 1;
+  // qc: base (exponent) matrix file and lifting size (0: the file's own).
+  std::string base_matrix;
+  int lifting = 0;
+  // file: a parity-check matrix in capgap's sparse text format.
+  std::string matrix_file;
+  std::string decoder = "min_sum_normalized";  // sum_product, min_sum_normalized, min_sum_offset
+  std::string schedule = "layered";            // flooding, layered
+  int max_iterations = 50;
+  std::string arithmetic = "auto";             // auto, int8, int16, float
+  double normalization = 0.75;
+  double offset = 0.5;
+  // Directory of the config file: relative paths above are taken from it.
+  std::string config_dir;
+  // base_matrix / matrix_file resolved against config_dir.
+  std::string ResolvePath(const std::string& path) const;
 };
 
 struct SchemeConfig {
@@ -61,10 +91,12 @@ struct SchemeConfig {
   double timing_offset = 0;      // receiver sampling offset, symbols
   double phase_offset_deg = 0;   // carrier phase offset
   double frequency_offset = 0;   // carrier frequency offset, cycles per symbol
-  std::string code = "none";  // none, conv
+  std::string code = "none";  // none, conv, ldpc
   ConvSchemeConfig conv;
+  LdpcSchemeConfig ldpc;
   // Frames per work unit after resolving "automatic" (a function of the
-  // scheme only, never of the thread count).
+  // scheme only, never of the thread count or the CPU): about 64 kbit, for
+  // LDPC a multiple of 64 codewords.
   std::uint32_t ResolvedUnitFrames() const;
 };
 

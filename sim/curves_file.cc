@@ -179,6 +179,22 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(g, "fer_low", F64, fer_low);
       Dataset(g, "fer_high", F64, fer_high);
       Dataset(g, "seconds", F64, seconds);
+      if (r.ldpc.present) {
+        // Iterative decoding per point: mean and largest iteration count of a
+        // frame, and frames that converged to a wrong codeword.
+        std::vector<double> it_mean;
+        std::vector<std::uint64_t> it_max, undetected;
+        for (const PointResult& p : r.points) {
+          it_mean.push_back(p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
+                                                  static_cast<double>(p.counts.frames)
+                                            : 0.0);
+          it_max.push_back(p.counts.max_decoder_iterations);
+          undetected.push_back(p.counts.undetected_frame_errors);
+        }
+        Dataset(g, "decoder_iterations_mean", F64, it_mean);
+        Dataset(g, "decoder_iterations_max", U64, it_max);
+        Dataset(g, "undetected_frame_errors", U64, undetected);
+      }
       StringDataset(g, "stop_reason", stop);
 
       H5::Group th = g.createGroup("theory");
@@ -190,6 +206,31 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
         StrAttr(th, "ber_bound_channel", r.theory.bound_channel);
       }
 
+      if (r.ldpc.present) {
+        const LdpcResult& l = r.ldpc;
+        H5::Group code = g.createGroup("code");
+        StrAttr(code, "construction", l.construction);
+        StrAttr(code, "description", l.description);
+        NumAttr(code, "length", H5::PredType::NATIVE_INT, l.length);
+        NumAttr(code, "info_bits", H5::PredType::NATIVE_INT, l.info_bits);
+        NumAttr(code, "checks", H5::PredType::NATIVE_INT, l.checks);
+        NumAttr(code, "rank", H5::PredType::NATIVE_INT, l.rank);
+        NumAttr(code, "lifting", H5::PredType::NATIVE_INT, l.lifting);
+        NumAttr(code, "girth", H5::PredType::NATIVE_INT, l.girth);
+        StrAttr(code, "degree_profile", l.degree_profile);
+        StrAttr(code, "encoder", l.encoder);
+        StrAttr(code, "decoder", l.decoder);
+        StrAttr(code, "schedule", l.schedule);
+        StrAttr(code, "kernel_target", l.kernel_target);
+        NumAttr(code, "max_iterations", H5::PredType::NATIVE_INT, l.max_iterations);
+        NumAttr(code, "normalization", H5::PredType::NATIVE_DOUBLE, l.normalization);
+        NumAttr(code, "offset", H5::PredType::NATIVE_DOUBLE, l.offset);
+        StrAttr(code, "code_rate_basis", "information bits k / code length n (k = n - rank H)");
+        std::vector<std::int32_t> vd(l.variable_nodes_by_degree.begin(), l.variable_nodes_by_degree.end());
+        std::vector<std::int32_t> cd(l.check_nodes_by_degree.begin(), l.check_nodes_by_degree.end());
+        Dataset(code, "variable_nodes_by_degree", H5::PredType::NATIVE_INT32, vd);
+        Dataset(code, "check_nodes_by_degree", H5::PredType::NATIVE_INT32, cd);
+      }
       if (r.code.present) {
         const ConvSchemeConfig& c = r.scheme.conv;
         H5::Group code = g.createGroup("code");
@@ -241,6 +282,15 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(lim, "constrained_ebno_db", F64, r.limits.constrained_ebno_db);
       StrAttr(lim, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
       StrAttr(lim, "notes", r.limits.notes);
+      if (r.ldpc.present) {
+        NumAttr(lim, "threshold_ebno_db", F64, r.limits.threshold_ebno_db);
+        NumAttr(lim, "threshold_sigma", F64, r.limits.threshold_sigma);
+        StrAttr(lim, "threshold_method", r.limits.threshold_method);
+        StrAttr(lim, "threshold_description", r.limits.threshold_description);
+        StrAttr(lim, "threshold_channel", r.limits.threshold_channel);
+        NumAttr(lim, "threshold_ga_ebno_db", F64, r.limits.threshold_ga_ebno_db);
+        NumAttr(lim, "binary_input_ebno_db", F64, r.limits.binary_input_ebno_db);
+      }
       Dataset(lim, "constrained_curve_rho", F64, r.limits.constrained_curve_rho);
       Dataset(lim, "constrained_curve_ebno_db", F64, r.limits.constrained_curve_ebno_db);
 
@@ -253,6 +303,10 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(sum, "coding_gain_db", F64, s.coding_gain_db);
       NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
       NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
+      if (r.ldpc.present) {
+        NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
+        NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);
+      }
     }
     file.close();
   } catch (const H5::Exception& e) {
@@ -328,6 +382,24 @@ Result<StoredRun> ReadCurvesFile(const std::string& path) {
       s.summary.coding_gain_db = ReadDoubleAttr(sum, "coding_gain_db");
       s.summary.gap_to_shannon_db = ReadDoubleAttr(sum, "gap_to_shannon_db");
       s.summary.gap_to_constrained_db = ReadDoubleAttr(sum, "gap_to_constrained_db");
+      if (lim.attrExists("threshold_ebno_db")) {
+        s.ldpc = true;
+        s.threshold_ebno_db = ReadDoubleAttr(lim, "threshold_ebno_db");
+        s.threshold_method = ReadStrAttr(lim, "threshold_method");
+        s.binary_input_ebno_db = ReadDoubleAttr(lim, "binary_input_ebno_db");
+        s.summary.gap_to_threshold_db = ReadDoubleAttr(sum, "gap_to_threshold_db");
+        s.summary.gap_to_binary_input_db = ReadDoubleAttr(sum, "gap_to_binary_input_db");
+        s.decoder_iterations_mean =
+            ReadDataset<double>(g, "decoder_iterations_mean", H5::PredType::NATIVE_DOUBLE);
+        s.undetected_frame_errors =
+            ReadDataset<std::uint64_t>(g, "undetected_frame_errors", H5::PredType::NATIVE_UINT64);
+        H5::Group code = g.openGroup("code");
+        s.ldpc_description = ReadStrAttr(code, "description");
+        s.ldpc_decoder = ReadStrAttr(code, "decoder") + ", " + ReadStrAttr(code, "schedule");
+        int girth = 0;
+        code.openAttribute("girth").read(H5::PredType::NATIVE_INT, &girth);
+        s.ldpc_girth = girth;
+      }
       run.schemes.push_back(std::move(s));
     }
     return run;

@@ -6,7 +6,9 @@
 #include <limits>
 
 #include "analysis/capacity.h"
+#include "analysis/density_evolution.h"
 #include "analysis/uncoded_theory.h"
+#include "blocks/fec/ldpc_construction.h"
 #include "blocks/shaping/pulse.h"
 #include "blocks/shaping/spectrum.h"
 
@@ -99,6 +101,65 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
   }
 }
 
+// Code facts, decoder settings and the density-evolution thresholds of an
+// LDPC scheme.
+void AnalyseLdpc(const Chain& chain, SchemeResult& r) {
+  const LdpcCode& code = chain.ldpc_code();
+  const LdpcSchemeConfig& c = chain.scheme().ldpc;
+  LdpcResult& l = r.ldpc;
+  l.present = true;
+  l.construction = c.construction;
+  l.description = code.description();
+  l.length = code.length();
+  l.info_bits = chain.ldpc_encoder().info_bits();
+  l.checks = code.checks();
+  l.rank = chain.ldpc_encoder().rank();
+  l.lifting = code.lifting();
+  l.girth = Girth(code);
+  const DegreeProfile profile = ComputeDegreeProfile(code);
+  l.degree_profile = profile.ToString();
+  l.variable_nodes_by_degree = profile.variable_nodes_by_degree;
+  l.check_nodes_by_degree = profile.check_nodes_by_degree;
+  l.encoder = chain.ldpc_encoder().uses_dual_diagonal() ? "dual-diagonal (linear time)"
+                                                        : "gaussian elimination (dense GF(2))";
+  const LdpcDecoderOptions& o = chain.ldpc_decoder().options();
+  l.decoder = ToString(o.algorithm);
+  l.schedule = ToString(o.schedule);
+  l.kernel_target = chain.ldpc_decoder().kernel_target();
+  l.max_iterations = o.max_iterations;
+  l.normalization = o.normalization;
+  l.offset = o.offset;
+
+  Limits& lim = r.limits;
+  lim.binary_input_ebno_db = analysis::BinaryInputMinEbn0Db(r.code_rate);
+  auto dist = analysis::EdgeDistributionFromNodeCounts(profile.variable_nodes_by_degree,
+                                                       profile.check_nodes_by_degree);
+  if (!dist.ok()) {
+    lim.threshold_description = "no threshold: " + dist.status().message();
+    return;
+  }
+  // The ensemble's threshold at the code's actual rate k/n (a rank-deficient
+  // H carries a little more than the design rate).
+  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate);
+  auto ga = analysis::GaussianApproxThreshold(dist.value(), r.code_rate);
+  if (ga.ok()) lim.threshold_ga_ebno_db = ga.value().ebno_db;
+  const auto& best = quantized.ok() ? quantized : ga;
+  if (best.ok()) {
+    lim.threshold_ebno_db = best.value().ebno_db;
+    lim.threshold_sigma = best.value().sigma;
+    lim.threshold_method = analysis::ToString(best.value().method);
+    lim.threshold_description = best.value().description;
+  } else {
+    lim.threshold_description = "no threshold: " + best.status().message();
+  }
+  const Modulation& mod = chain.scheme().modulation;
+  const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
+  lim.threshold_channel =
+      binary ? "binary-input AWGN: exact for BPSK and Gray QPSK (two independent binary channels)"
+             : "binary-input AWGN: a reference only for this mapper (BICM bit channels are not "
+               "binary-input AWGN); no gap is quoted";
+}
+
 }  // namespace
 
 SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
@@ -135,7 +196,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     r.theory.ser_uncoded.push_back(analysis::UncodedSer(mod, x));
   }
 
-  if (chain.coded()) {
+  if (chain.conv_coded()) {
     auto spectrum = ComputeDistanceSpectrum(chain.conv_code(), 10);
     if (spectrum.ok()) {
       const DistanceSpectrum& d = spectrum.value();
@@ -157,6 +218,8 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
       }
     }
   }
+
+  if (chain.ldpc_coded()) AnalyseLdpc(chain, r);
 
   r.limits.shannon_ebno_db = analysis::ShannonMinEbn0Db(r.spectral_efficiency);
   r.limits.constrained_ebno_db =
@@ -200,6 +263,13 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   s.gap_to_constrained_db = std::isfinite(r.limits.constrained_ebno_db)
                                 ? s.ebno_at_target_db - r.limits.constrained_ebno_db
                                 : nan;
+  if (r.ldpc.present) {
+    const Modulation& m = chain.scheme().modulation;
+    if (m.family == ModulationFamily::kPsk && m.order <= 4) {
+      s.gap_to_threshold_db = s.ebno_at_target_db - r.limits.threshold_ebno_db;
+      s.gap_to_binary_input_db = s.ebno_at_target_db - r.limits.binary_input_ebno_db;
+    }
+  }
 
   // Signal views at the operating point: the Eb/N0 needed for target_ber if
   // the curve crosses it, else the last simulated point.

@@ -5,6 +5,7 @@
 #ifndef CAPGAP_SIM_SCHEME_RESULT_H_
 #define CAPGAP_SIM_SCHEME_RESULT_H_
 
+#include <limits>
 #include <string>
 #include <vector>
 
@@ -33,6 +34,21 @@ struct CodeResult {
   std::vector<std::uint64_t> spectrum_events;
 };
 
+// What the output records of an LDPC code and its decoder.
+struct LdpcResult {
+  bool present = false;
+  std::string construction;  // peg, qc, file
+  std::string description;   // e.g. "peg n=2016 m=1008 degrees=3 seed=1"
+  int length = 0, info_bits = 0, checks = 0, rank = 0, lifting = 0;
+  int girth = 0;             // 0: no cycle
+  std::string degree_profile;  // "variables 3:2016; checks 6:1008"
+  std::vector<int> variable_nodes_by_degree, check_nodes_by_degree;
+  std::string encoder;         // "dual-diagonal" or "gaussian elimination"
+  std::string decoder, schedule, kernel_target;
+  int max_iterations = 0;
+  double normalization = 0, offset = 0;
+};
+
 struct Limits {
   double shannon_ebno_db;      // unconstrained Gaussian input at spectral_efficiency
   double constrained_ebno_db;  // this constellation at rho; +inf when rho = m
@@ -43,6 +59,16 @@ struct Limits {
   // symbol and the Eb/N0 it needs (for the comparison chart).
   std::vector<double> constrained_curve_rho;
   std::vector<double> constrained_curve_ebno_db;
+  // LDPC schemes: the belief-propagation threshold of the code's degree
+  // distribution on the binary-input AWGN channel (quantised density
+  // evolution; the Gaussian approximation beside it), and the binary-input
+  // capacity limit at the code rate. NaN otherwise.
+  double threshold_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double threshold_sigma = std::numeric_limits<double>::quiet_NaN();
+  std::string threshold_method, threshold_description;
+  double threshold_ga_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double binary_input_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  std::string threshold_channel;
 };
 
 struct Summary {
@@ -53,6 +79,9 @@ struct Summary {
   double coding_gain_db;
   double gap_to_shannon_db;
   double gap_to_constrained_db;
+  // LDPC on BPSK/QPSK (where the binary-input analysis applies), else NaN.
+  double gap_to_threshold_db = std::numeric_limits<double>::quiet_NaN();
+  double gap_to_binary_input_db = std::numeric_limits<double>::quiet_NaN();
 };
 
 // Power spectral density of the transmitted signal of a shaped scheme
@@ -90,6 +119,7 @@ struct SchemeResult {
   SpectrumResult spectrum;
   SignalViews signal;
   CodeResult code;
+  LdpcResult ldpc;
   double target_ber = 1e-5;
   std::vector<PointResult> points;
   TheoryCurve theory;

@@ -55,6 +55,42 @@ std::string FormatSummaryTable(const StoredRun& run) {
                   target);
     out += line;
   }
+  // LDPC schemes: the curve against the ensemble's threshold and the
+  // binary-input capacity at the code rate, and how hard the decoder worked.
+  bool ldpc_header = false;
+  for (const StoredScheme& s : run.schemes) {
+    if (!s.ldpc) continue;
+    if (!ldpc_header) {
+      std::snprintf(line, sizeof line, "%-14s %9s %7s %6s  %7s %6s  %9s %10s  %s\n", "LDPC scheme",
+                    "threshold", "method", "gap", "BI-AWGN", "gap", "iter@last", "undetected",
+                    "code; decoder");
+      out += line;
+      ldpc_header = true;
+    }
+    const double iters = s.decoder_iterations_mean.empty() ? NAN : s.decoder_iterations_mean.back();
+    std::uint64_t undetected = 0;
+    for (std::uint64_t u : s.undetected_frame_errors) undetected += u;
+    char it[32];
+    std::snprintf(it, sizeof it, "%.1f", iters);
+    const std::string method = s.threshold_method == "quantized" ? "DE-q"
+                               : s.threshold_method.empty()      ? "-"
+                                                                 : "DE-GA";
+    std::string code = s.ldpc_description;
+    code.append(", girth ").append(std::to_string(s.ldpc_girth)).append("; ").append(s.ldpc_decoder);
+    std::snprintf(line, sizeof line, "%-14s %9s %7s %6s  %7s %6s  %9s %10llu  %s\n", s.name.c_str(),
+                  Db(s.threshold_ebno_db).c_str(), method.c_str(),
+                  Db(s.summary.gap_to_threshold_db).c_str(), Db(s.binary_input_ebno_db).c_str(),
+                  Db(s.summary.gap_to_binary_input_db).c_str(), it,
+                  static_cast<unsigned long long>(undetected), code.c_str());
+    out += line;
+  }
+  if (ldpc_header) {
+    out += "threshold: BP threshold of the code's degree distribution on the binary-input AWGN "
+           "channel at its rate\n(DE-q: quantised density evolution; DE-GA: Gaussian "
+           "approximation); BI-AWGN: binary-input capacity limit\nat the code rate; gaps only "
+           "for BPSK/QPSK; iter@last: mean decoder iterations at the last point;\nundetected: "
+           "frames decoded to a wrong codeword, all points.\n";
+  }
   return out;
 }
 

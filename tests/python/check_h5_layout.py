@@ -26,6 +26,9 @@ Layout (format_version 1):
   /<scheme>/theory  1-D float64 datasets ebno_db, ber_uncoded, ser_uncoded
   /<scheme>/limits  attrs shannon_ebno_db, constrained_ebno_db (float64);
                     optional 1-D constrained_curve_rho, constrained_curve_ebno_db
+                    LDPC: attrs threshold_ebno_db, binary_input_ebno_db,
+                    threshold_method; per-point decoder_iterations_mean,
+                    decoder_iterations_max, undetected_frame_errors
   /<scheme>/signal  optional: constellation_i, constellation_q (1-D float64),
                     attr constellation_ebno_db; eye (2-D) with eye_time
   /<scheme>/summary attrs ebno_at_target_db, ebno_at_target_low_db,
@@ -492,6 +495,33 @@ def check_optional_views(c, g, lim, m):
             c.fail(f"{lim.name}/constrained_curve_ebno_db",
                    "expected increasing and at or above the Shannon bound at eta = rho")
         c.ok(lim.name, "constrained curve increasing, above the Shannon bound")
+    if "threshold_ebno_db" in lim.attrs:
+        # LDPC: the BP threshold lies above the binary-input capacity limit of
+        # the same rate (no decoder beats capacity; Richardson, Shokrollahi &
+        # Urbanke 2001) and the iteration statistics are per point.
+        th = c.attr_float64(lim, "threshold_ebno_db")
+        bi = c.attr_float64(lim, "binary_input_ebno_db")
+        method = c.attr_string(lim, "threshold_method")
+        if method not in ("quantized", "gaussian_approximation"):
+            c.fail(f"{lim.name} attribute 'threshold_method'", f"is {method!r}")
+        if not (math.isfinite(th) and th > bi):
+            c.fail(f"{lim.name} attribute 'threshold_ebno_db'",
+                   f"is {th!r}, expected finite and above binary_input_ebno_db {bi!r}")
+        c.ok(lim.name, f"threshold {th:.3f} dB ({method}) above the binary-input limit {bi:.3f} dB")
+        mean = c.dataset_float64(g, "decoder_iterations_mean")
+        it_max = c.dataset_uint64(g, "decoder_iterations_max")
+        und = c.dataset_uint64(g, "undetected_frame_errors")
+        frames = g["frames"][()]
+        ferr = g["frame_errors"][()]
+        if not (mean.shape == it_max.shape == und.shape == frames.shape):
+            c.fail(f"{g.name}/decoder_iterations_mean", "length differs from ebno_db")
+        if np.any(mean > it_max + 1e-9) or np.any(und > ferr):
+            c.fail(g.name, "expected mean <= max iterations and undetected <= frame_errors")
+        c.ok(g.name, "iteration statistics consistent")
+        code_g = c.group(g, "code")
+        girth = c.attr_int(code_g, "girth")
+        if girth != 0 and (girth < 4 or girth % 2):
+            c.fail(f"{code_g.name} attribute 'girth'", f"is {girth}, expected 0 or even >= 4")
     if "signal" in g:
         sg = c.group(g, "signal")
         ci = c.dataset_float64(sg, "constellation_i")

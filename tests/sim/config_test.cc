@@ -91,14 +91,16 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
             "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
             "frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
             "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
-            "constraint_length, puncture, termination, decoder, traceback");
+            "constraint_length, puncture, termination, decoder, traceback, construction, length, "
+            "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
+            "max_iterations, arithmetic, normalization, offset");
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
             "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
             "--set scheme.bpsk.frame_bits: no scheme 'bpsk' in test.ini; schemes: qpsk, q16");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.targets=100"}),
             "test.ini: unknown key '--set sweep.targets'; [sweep] keys: ebno_db, target_errors, "
-            "max_bits, ber_floor, target_ber, seed, threads");
+            "max_bits, ber_floor, target_ber, seed, threads, checkpoint_seconds");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.seed"}),
             "--set 'sweep.seed': expected KEY=VALUE, e.g. sweep.target_errors=500");
 }
@@ -119,7 +121,7 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
             "test.ini: scheme.qpsk.generators applies only with code = conv (this scheme has "
             "code = none)");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=turbo"}),
-            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv");
+            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv, ldpc");
   auto r = ParseRunConfig(kGood, "test.ini",
                           {"scheme.qpsk.code=conv", "scheme.qpsk.generators=5,7",
                            "scheme.qpsk.constraint_length=3"});

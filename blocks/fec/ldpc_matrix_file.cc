@@ -1,0 +1,260 @@
+// Sparse H text format: reader, writer, and the shared text helpers.
+#include "blocks/fec/ldpc_matrix_file.h"
+
+#include <charconv>
+#include <cstdio>
+#include <fstream>
+#include <sstream>
+#include <system_error>
+
+namespace capgap {
+namespace {
+
+bool IsSpace(char c) { return c == ' ' || c == '\t' || c == '\r'; }
+
+std::string_view Trim(std::string_view s) {
+  while (!s.empty() && IsSpace(s.front())) s.remove_prefix(1);
+  while (!s.empty() && IsSpace(s.back())) s.remove_suffix(1);
+  return s;
+}
+
+std::string Where(std::string_view source, int line) {
+  return std::string(source) + ":" + std::to_string(line) + ": ";
+}
+
+std::string Quoted(std::string_view w) {
+  std::string s;
+  s.reserve(w.size() + 2);
+  s += '\'';
+  s.append(w);
+  s += '\'';
+  return s;
+}
+
+}  // namespace
+
+std::vector<LdpcTextLine> SplitLdpcTextLines(std::string_view text) {
+  std::vector<LdpcTextLine> lines;
+  int number = 0;
+  std::size_t pos = 0;
+  while (pos <= text.size()) {
+    std::size_t end = text.find('\n', pos);
+    if (end == std::string_view::npos) end = text.size();
+    ++number;
+    std::string_view line = text.substr(pos, end - pos);
+    const std::size_t hash = line.find('#');
+    if (hash != std::string_view::npos) line = line.substr(0, hash);
+    line = Trim(line);
+    if (!line.empty()) {
+      LdpcTextLine l;
+      l.number = number;
+      l.content = line;
+      std::size_t i = 0;
+      while (i < line.size()) {
+        while (i < line.size() && IsSpace(line[i])) ++i;
+        std::size_t j = i;
+        while (j < line.size() && !IsSpace(line[j])) ++j;
+        if (j > i) l.words.push_back(line.substr(i, j - i));
+        i = j;
+      }
+      lines.push_back(std::move(l));
+    }
+    if (end == text.size()) break;
+    pos = end + 1;
+  }
+  return lines;
+}
+
+bool ParseLdpcInt(std::string_view word, int* value) {
+  if (word.empty()) return false;
+  const char* first = word.data();
+  const char* last = word.data() + word.size();
+  int v = 0;
+  const auto [ptr, ec] = std::from_chars(first, last, v);
+  if (ec != std::errc() || ptr != last) return false;
+  *value = v;
+  return true;
+}
+
+Result<std::string> ReadLdpcTextFile(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return Status::Error(path + ": cannot open file");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  if (in.bad()) return Status::Error(path + ": read error");
+  return ss.str();
+}
+
+Status WriteLdpcTextFileAtomically(const std::string& path, std::string_view text) {
+  const std::string tmp = path + ".tmp";
+  {
+    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+    if (!out) return Status::Error(tmp + ": cannot open for writing");
+    out.write(text.data(), static_cast<std::streamsize>(text.size()));
+    out.flush();
+    if (!out) return Status::Error(tmp + ": write error");
+  }
+  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
+    std::remove(tmp.c_str());
+    return Status::Error(path + ": cannot rename " + tmp + " to it");
+  }
+  return Status::Ok();
+}
+
+Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_name) {
+  const std::vector<LdpcTextLine> lines = SplitLdpcTextLines(text);
+  const std::string src(source_name);
+  if (lines.empty()) return Status::Error(src + ": no 'ldpc-matrix' header line");
+  const LdpcTextLine& head = lines[0];
+  const std::string header_rule =
+      "expected 'ldpc-matrix n <N> m <M>' or "
+      "'ldpc-matrix n <N> m <M> lifting <Z>'";
+  const auto& hw = head.words;
+  if (!((hw.size() == 5 || hw.size() == 7) && hw[0] == "ldpc-matrix" && hw[1] == "n" &&
+        hw[3] == "m" && (hw.size() == 5 || hw[5] == "lifting"))) {
+    return Status::Error(Where(src, head.number) + "header " + Quoted(head.content) + ": " +
+                         header_rule);
+  }
+  int n = 0, m = 0, lifting = 0;
+  if (!ParseLdpcInt(hw[2], &n) || n < 1) {
+    return Status::Error(Where(src, head.number) + "n " + Quoted(hw[2]) +
+                         ": must be an integer >= 1");
+  }
+  if (!ParseLdpcInt(hw[4], &m) || m < 1) {
+    return Status::Error(Where(src, head.number) + "m " + Quoted(hw[4]) +
+                         ": must be an integer >= 1");
+  }
+  if (hw.size() == 7) {
+    if (!ParseLdpcInt(hw[6], &lifting) || lifting < 1) {
+      return Status::Error(Where(src, head.number) + "lifting " + Quoted(hw[6]) +
+                           ": must be an integer >= 1");
+    }
+    if (n % lifting != 0 || m % lifting != 0) {
+      return Status::Error(Where(src, head.number) + "lifting " + Quoted(hw[6]) +
+                           ": must divide n = " + std::to_string(n) +
+                           " and m = " + std::to_string(m));
+    }
+  }
+  std::size_t next = 1;
+  std::string description = "read from " + src;
+  if (next < lines.size() && lines[next].words[0] == "description") {
+    description =
+        std::string(Trim(lines[next].content.substr(std::string_view("description").size())));
+    ++next;
+  }
+  std::vector<std::vector<int>> rows(static_cast<std::size_t>(m));
+  std::vector<int> seen_in_row(static_cast<std::size_t>(n), -1);
+  // Block-row check for lifted codes: the last check (row) of the current
+  // block row that used each column.
+  std::vector<int> block_row_user(static_cast<std::size_t>(n), -1);
+  std::vector<int> row_line(static_cast<std::size_t>(m), 0);
+  for (int r = 0; r < m; ++r, ++next) {
+    if (next >= lines.size()) {
+      return Status::Error(src + ": ends after " + std::to_string(r) + " of " + std::to_string(m) +
+                           " check lines");
+    }
+    const LdpcTextLine& line = lines[next];
+    row_line[static_cast<std::size_t>(r)] = line.number;
+    const std::string_view first = line.words[0];
+    int degree = -1;
+    if (first.size() < 2 || first.back() != ':' ||
+        !ParseLdpcInt(first.substr(0, first.size() - 1), &degree) || degree < 0) {
+      return Status::Error(Where(src, line.number) + "check " + std::to_string(r) + ": " +
+                           Quoted(first) + ": expected the row degree '<d>:' with d >= 0");
+    }
+    if (line.words.size() != static_cast<std::size_t>(degree) + 1) {
+      return Status::Error(Where(src, line.number) + "check " + std::to_string(r) + " declares " +
+                           std::to_string(degree) + " columns but lists " +
+                           std::to_string(line.words.size() - 1));
+    }
+    std::vector<int>& row = rows[static_cast<std::size_t>(r)];
+    row.reserve(static_cast<std::size_t>(degree));
+    for (std::size_t i = 1; i < line.words.size(); ++i) {
+      int c = 0;
+      if (!ParseLdpcInt(line.words[i], &c)) {
+        return Status::Error(Where(src, line.number) + "column " + Quoted(line.words[i]) +
+                             ": not an integer");
+      }
+      if (c < 0 || c >= n) {
+        return Status::Error(Where(src, line.number) + "column " + Quoted(line.words[i]) +
+                             ": must be in [0, " + std::to_string(n) + ")");
+      }
+      const auto cu = static_cast<std::size_t>(c);
+      if (seen_in_row[cu] == r) {
+        return Status::Error(Where(src, line.number) + "column " + Quoted(line.words[i]) +
+                             ": listed twice in check " + std::to_string(r));
+      }
+      seen_in_row[cu] = r;
+      if (lifting > 0) {
+        const int user = block_row_user[cu];
+        if (user >= 0 && user / lifting == r / lifting) {
+          return Status::Error(Where(src, line.number) + "column " + Quoted(line.words[i]) +
+                               ": check " + std::to_string(r) + " shares it with check " +
+                               std::to_string(user) + " of the same block row (lifting " +
+                               std::to_string(lifting) + ")");
+        }
+        block_row_user[cu] = r;
+      }
+      row.push_back(c);
+    }
+  }
+  if (next < lines.size()) {
+    return Status::Error(Where(src, lines[next].number) + "text " + Quoted(lines[next].content) +
+                         " after the " + std::to_string(m) + " check lines");
+  }
+  for (int v = 0; v < n; ++v) {
+    if (seen_in_row[static_cast<std::size_t>(v)] < 0) {
+      return Status::Error(src + ": column " + std::to_string(v) + " is in no check");
+    }
+  }
+  Result<LdpcCode> code = LdpcCode::FromRows(n, rows, lifting);
+  if (!code.ok()) return Status::Error(src + ": " + code.status().message());
+  code.value().set_description(std::move(description));
+  return code;
+}
+
+std::string WriteLdpcMatrix(const LdpcCode& code) {
+  std::string out;
+  out += "# capgap sparse parity-check matrix (format: blocks/fec/ldpc_matrix_file.h).\n";
+  out += "# Header 'ldpc-matrix n <N> m <M> [lifting <Z>]', optional 'description <text>',\n";
+  out += "# then one line per check r = 0..M-1: '<degree>: <0-based columns>'.\n";
+  out += "ldpc-matrix n " + std::to_string(code.length()) + " m " + std::to_string(code.checks());
+  if (code.lifting() > 0) out += " lifting " + std::to_string(code.lifting());
+  out += '\n';
+  std::string d = code.description();
+  for (char& c : d) {
+    if (c == '#' || c == '\n' || c == '\r') c = ' ';
+  }
+  const std::string_view dt = Trim(d);
+  if (!dt.empty()) {
+    out += "description ";
+    out += dt;
+    out += '\n';
+  }
+  const auto row_start = code.row_start();
+  const auto var = code.edge_variable();
+  for (int r = 0; r < code.checks(); ++r) {
+    const int b = row_start[static_cast<std::size_t>(r)];
+    const int e = row_start[static_cast<std::size_t>(r) + 1];
+    out += std::to_string(e - b);
+    out += ':';
+    for (int k = b; k < e; ++k) {
+      out += ' ';
+      out += std::to_string(var[static_cast<std::size_t>(k)]);
+    }
+    out += '\n';
+  }
+  return out;
+}
+
+Result<LdpcCode> ReadLdpcMatrixFile(const std::string& path) {
+  Result<std::string> text = ReadLdpcTextFile(path);
+  if (!text.ok()) return text.status();
+  return ReadLdpcMatrix(text.value(), path);
+}
+
+Status WriteLdpcMatrixFile(const std::string& path, const LdpcCode& code) {
+  return WriteLdpcTextFileAtomically(path, WriteLdpcMatrix(code));
+}
+
+}  // namespace capgap

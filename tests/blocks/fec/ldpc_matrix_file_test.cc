@@ -1,0 +1,159 @@
+// Tests of the sparse parity-check matrix text format and its helpers
+// (blocks/fec/ldpc_matrix_file.h).
+#include "blocks/fec/ldpc_matrix_file.h"
+
+#include <cstdio>
+#include <fstream>
+#include <string>
+#include <vector>
+
+#include "blocks/fec/ldpc_construction.h"
+#include "gtest/gtest.h"
+
+namespace capgap {
+namespace {
+
+std::vector<std::vector<int>> Rows(const LdpcCode& code) {
+  std::vector<std::vector<int>> rows(static_cast<std::size_t>(code.checks()));
+  for (int r = 0; r < code.checks(); ++r) {
+    for (int e = code.row_start()[static_cast<std::size_t>(r)];
+         e < code.row_start()[static_cast<std::size_t>(r) + 1]; ++e) {
+      rows[static_cast<std::size_t>(r)].push_back(
+          code.edge_variable()[static_cast<std::size_t>(e)]);
+    }
+  }
+  return rows;
+}
+
+void ExpectSameCode(const LdpcCode& a, const LdpcCode& b) {
+  EXPECT_EQ(a.length(), b.length());
+  EXPECT_EQ(a.checks(), b.checks());
+  EXPECT_EQ(a.lifting(), b.lifting());
+  EXPECT_EQ(Rows(a), Rows(b));
+  EXPECT_EQ(a.description(), b.description());
+}
+
+TEST(LdpcMatrixFile, ReadsHandWrittenText) {
+  const char* text =
+      "# Hamming (7,4) parity checks\n"
+      "\n"
+      "ldpc-matrix n 7 m 3   # header\n"
+      "description hand   written\n"
+      "4: 0 1 3 4\n"
+      "  4: 6 3 2 1   # any order\n"
+      "4:\t0 2 3 5\n";
+  Result<LdpcCode> r = ReadLdpcMatrix(text, "h.txt");
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  const LdpcCode& code = r.value();
+  EXPECT_EQ(code.length(), 7);
+  EXPECT_EQ(code.checks(), 3);
+  EXPECT_EQ(code.lifting(), 0);
+  EXPECT_EQ(code.description(), "hand   written");
+  EXPECT_EQ(Rows(code), (std::vector<std::vector<int>>{{0, 1, 3, 4}, {1, 2, 3, 6}, {0, 2, 3, 5}}));
+}
+
+TEST(LdpcMatrixFile, DefaultDescriptionNamesTheSource) {
+  Result<LdpcCode> r = ReadLdpcMatrix("ldpc-matrix n 2 m 1\n2: 0 1\n", "x.txt");
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().description(), "read from x.txt");
+}
+
+TEST(LdpcMatrixFile, WriterFormatIsAsDocumented) {
+  LdpcCode code = LdpcCode::FromRows(3, {{0, 2}, {2, 1, 0}}).value();
+  code.set_description("tiny # code\nsecond line");
+  EXPECT_EQ(WriteLdpcMatrix(code),
+            "# capgap sparse parity-check matrix (format: blocks/fec/ldpc_matrix_file.h).\n"
+            "# Header 'ldpc-matrix n <N> m <M> [lifting <Z>]', optional 'description <text>',\n"
+            "# then one line per check r = 0..M-1: '<degree>: <0-based columns>'.\n"
+            "ldpc-matrix n 3 m 2\n"
+            "description tiny   code second line\n"
+            "2: 0 2\n"
+            "3: 0 1 2\n");
+}
+
+TEST(LdpcMatrixFile, PegCodeRoundTrips) {
+  PegSpec spec;
+  spec.length = 504;
+  spec.checks = 252;
+  spec.degrees = ParseVariableDegrees("2:0.3,3:0.5,6:0.2").value();
+  const LdpcCode code = BuildPegCode(spec).value();
+  Result<LdpcCode> back = ReadLdpcMatrix(WriteLdpcMatrix(code), "mem");
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  ExpectSameCode(code, back.value());
+}
+
+TEST(LdpcMatrixFile, LiftedCodeRoundTripsWithItsLifting) {
+  const BaseMatrix base =
+      ReadBaseMatrixFile(CAPGAP_SOURCE_DIR "/configs/codes/qc_r1-2_24x12.txt").value();
+  const LdpcCode code = LiftBaseMatrix(base, 84).value();
+  const std::string text = WriteLdpcMatrix(code);
+  EXPECT_NE(text.find("ldpc-matrix n 2016 m 1008 lifting 84\n"), std::string::npos);
+  Result<LdpcCode> back = ReadLdpcMatrix(text, "mem");
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  ExpectSameCode(code, back.value());
+}
+
+TEST(LdpcMatrixFile, FileRoundTripLeavesNoTemporary) {
+  const LdpcCode code = LdpcCode::FromRows(4, {{0, 1, 2}, {1, 2, 3}}).value();
+  const std::string path = std::string(CAPGAP_BINARY_DIR) + "/ldpc_matrix_file_test_code.txt";
+  std::remove(path.c_str());
+  ASSERT_TRUE(WriteLdpcMatrixFile(path, code).ok());
+  EXPECT_FALSE(std::ifstream(path + ".tmp").good());
+  Result<LdpcCode> back = ReadLdpcMatrixFile(path);
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  EXPECT_EQ(Rows(back.value()), Rows(code));
+  std::remove(path.c_str());
+  EXPECT_EQ(ReadLdpcMatrixFile(path).status().message(), path + ": cannot open file");
+  EXPECT_FALSE(WriteLdpcMatrixFile("/nonexistent-dir/x.txt", code).ok());
+}
+
+TEST(LdpcMatrixFile, ErrorsNameSourceLineAndValue) {
+  auto msg = [](const std::string& text) {
+    return ReadLdpcMatrix(text, "f.txt").status().message();
+  };
+  EXPECT_EQ(msg("# only a comment\n"), "f.txt: no 'ldpc-matrix' header line");
+  EXPECT_EQ(msg("ldpc n 3 m 1\n"),
+            "f.txt:1: header 'ldpc n 3 m 1': expected 'ldpc-matrix n <N> m <M>' or "
+            "'ldpc-matrix n <N> m <M> lifting <Z>'");
+  EXPECT_EQ(msg("ldpc-matrix n x m 1\n"), "f.txt:1: n 'x': must be an integer >= 1");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 0\n"), "f.txt:1: m '0': must be an integer >= 1");
+  EXPECT_EQ(msg("ldpc-matrix n 4 m 2 lifting 3\n"),
+            "f.txt:1: lifting '3': must divide n = 4 and m = 2");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3 0 1 2\n"),
+            "f.txt:2: check 0: '3': expected the row degree '<d>:' with d >= 0");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1\n"),
+            "f.txt:2: check 0 declares 3 columns but lists 2");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 3\n"), "f.txt:2: column '3': must be in [0, 3)");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 -1\n"), "f.txt:2: column '-1': must be in [0, 3)");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 b\n"), "f.txt:2: column 'b': not an integer");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 1\n"), "f.txt:2: column '1': listed twice in check 0");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 2\n3: 0 1 2\n"), "f.txt: ends after 1 of 2 check lines");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 2\n\n# c\n1: 0\n"),
+            "f.txt:5: text '1: 0' after the 1 check lines");
+  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n2: 0 2\n"), "f.txt: column 1 is in no check");
+  // Lifting 2: checks 0 and 1 form block row 0 and may not share column 1.
+  EXPECT_EQ(
+      msg("ldpc-matrix n 4 m 2 lifting 2\n2: 0 1\n3: 1 2 3\n"),
+      "f.txt:3: column '1': check 1 shares it with check 0 of the same block row (lifting 2)");
+}
+
+TEST(LdpcTextHelpers, SplitsLinesStripsCommentsAndParsesInts) {
+  const std::vector<LdpcTextLine> lines = SplitLdpcTextLines("a b # c\n\n  # d\n\te\tf \r\ng");
+  ASSERT_EQ(lines.size(), 3u);
+  EXPECT_EQ(lines[0].number, 1);
+  EXPECT_EQ(lines[0].content, "a b");
+  EXPECT_EQ(lines[0].words, (std::vector<std::string_view>{"a", "b"}));
+  EXPECT_EQ(lines[1].number, 4);
+  EXPECT_EQ(lines[1].words, (std::vector<std::string_view>{"e", "f"}));
+  EXPECT_EQ(lines[2].number, 5);
+  int v = 0;
+  EXPECT_TRUE(ParseLdpcInt("-17", &v));
+  EXPECT_EQ(v, -17);
+  EXPECT_FALSE(ParseLdpcInt("12x", &v));
+  EXPECT_FALSE(ParseLdpcInt("", &v));
+  EXPECT_FALSE(ParseLdpcInt("99999999999", &v));  // overflows int
+  EXPECT_FALSE(ParseLdpcInt("+3", &v));
+}
+
+}  // namespace
+}  // namespace capgap
