@@ -9,9 +9,10 @@ import pathlib
 # Colour-blind-safe qualitative palette (Okabe & Ito, "Color Universal
 # Design", 2008; hex values common practice), yellow dropped for contrast on
 # white; one marker shape per colour so the plot also survives greyscale.
+# Past eight schemes: two of P. Tol's muted scheme (from memory), then repeat.
 PALETTE = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
-           "#000000", "#882255")
-MARKERS = ("o", "s", "D", "^", "P", "X", "h", "*")
+           "#000000", "#882255", "#117733", "#999933")
+MARKERS = ("o", "s", "D", "^", "P", "X", "h", "*", "v", "<")
 GREY = "#4d4d4d"
 
 STYLE = {

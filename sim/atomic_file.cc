@@ -30,6 +30,24 @@ bool Sync(int fd) {
   return true;
 }
 
+// rename(tmp, path) then fsync of the directory; `tmp` is already on disk.
+Status RenameAndSyncDirectory(const std::string& tmp, const std::string& path) {
+  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
+    const std::string why = Errno();
+    std::remove(tmp.c_str());
+    return Status::Error(path + ": cannot rename temporary file: " + why);
+  }
+  // Make the rename itself durable. A directory that cannot be opened or
+  // synced (some network file systems) leaves the new file in place; only its
+  // durability across a power loss is then up to the file system.
+  const int dir = ::open(DirectoryOf(path).c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+  if (dir >= 0) {
+    Sync(dir);
+    ::close(dir);
+  }
+  return Status::Ok();
+}
+
 }  // namespace
 
 std::string TemporaryPathFor(const std::string& path) {
@@ -50,20 +68,7 @@ Status CommitFile(const std::string& tmp, const std::string& path) {
     std::remove(tmp.c_str());
     return Status::Error(path + ": fsync failed: " + sync_error);
   }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
-    const std::string why = Errno();
-    std::remove(tmp.c_str());
-    return Status::Error(path + ": cannot rename temporary file: " + why);
-  }
-  // Make the rename itself durable. A directory that cannot be opened or
-  // synced (some network file systems) leaves the new file in place; only its
-  // durability across a power loss is then up to the file system.
-  const int dir = ::open(DirectoryOf(path).c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-  if (dir >= 0) {
-    Sync(dir);
-    ::close(dir);
-  }
-  return Status::Ok();
+  return RenameAndSyncDirectory(tmp, path);
 }
 
 Status WriteFileAtomically(const std::string& path, const std::string& bytes) {
@@ -88,8 +93,7 @@ Status WriteFileAtomically(const std::string& path, const std::string& bytes) {
     std::remove(tmp.c_str());
     return Status::Error(path + ": cannot flush " + tmp + ": " + (synced ? Errno() : sync_error));
   }
-  // Already synced: CommitFile's fsync of the temporary file is then cheap.
-  return CommitFile(tmp, path);
+  return RenameAndSyncDirectory(tmp, path);
 }
 
 void RemoveStaleTemporaries(const std::string& path) {

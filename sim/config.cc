@@ -49,6 +49,8 @@ constexpr KeySpec kSweepKeys[] = {
 
 constexpr KeySpec kSchemeKeys[] = {
     {"modulation", nullptr, "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam"},
+    // Empty default: absent unless given (then the scheme uses sweep.ebno_db).
+    {"ebno_db", "", "START:STEP:STOP or a comma list in dB: this scheme's points instead of sweep.ebno_db"},
     {"frame_bits", "1920", "integer in [1, 16777216], a multiple of bits per symbol", nullptr, false,
      nullptr, "ldpc"},
     {"demapper", "maxlog", "hard, maxlog, logmap"},
@@ -266,6 +268,12 @@ Result<std::vector<double>> ParseDbList(const std::string& text_in, const std::s
   return out;
 }
 
+SweepConfig RunConfig::SweepFor(std::size_t i) const {
+  SweepConfig s = sweep;
+  s.ebno_db = schemes.at(i).ebno_db;
+  return s;
+}
+
 std::string RunConfig::ResolvedText() const {
   std::string out;
   std::string section;
@@ -419,6 +427,7 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
         if (!k.default_value) {
           return Status::Error(source + ": missing required key '" + full + "' (" + k.rule + ")");
         }
+        if (!*k.default_value) continue;  // optional, absent
         values[full] = k.default_value;
       }
       config.resolved.emplace_back(full, values[full]);
@@ -465,6 +474,15 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     const std::string p = "scheme." + name + ".";
     SchemeConfig s;
     s.name = name;
+    s.ebno_db = config.sweep.ebno_db;
+    if (values.count(p + "ebno_db")) {
+      auto list = ParseDbList(values[p + "ebno_db"], source + ": " + p + "ebno_db");
+      if (!list.ok()) return list.status();
+      for (double x : list.value()) {
+        if (x < -20 || x > 60) return v.Fail(p + "ebno_db", "points must lie in [-20, 60] dB");
+      }
+      s.ebno_db = list.value();
+    }
     auto mod = ParseModulation(values[p + "modulation"]);
     if (!mod.ok()) return v.Fail(p + "modulation", mod.status().message());
     s.modulation = mod.value();

@@ -78,6 +78,8 @@ struct LdpcSchemeConfig {
 
 struct SchemeConfig {
   std::string name;
+  // Eb/N0 points of this scheme: its own ebno_db key, else sweep.ebno_db.
+  std::vector<double> ebno_db;
   Modulation modulation;
   DemapMethod demapper = DemapMethod::kMaxLog;
   std::uint32_t frame_bits = 0;         // information bits per frame
@@ -104,6 +106,8 @@ struct RunConfig {
   std::string source_name;  // file name used in messages
   SweepConfig sweep;
   std::vector<SchemeConfig> schemes;
+  // The sweep of scheme i: `sweep` with that scheme's Eb/N0 points.
+  SweepConfig SweepFor(std::size_t i) const;
   // Every key after defaults and overrides, "section.key" -> value.
   std::vector<std::pair<std::string, std::string>> resolved;
   // INI text equivalent to `resolved` (stored in output files).

@@ -1,11 +1,23 @@
-// Sweep engine: dynamic pull of work units by a thread pool, prefix-in-order
-// stopping decision, progress reporting.
+// Sweep engine: dynamic pull of work units by a thread pool (and by other
+// processes through a UnitExchange), prefix-in-order stopping decision,
+// progress and checkpoint callbacks from the calling thread.
+//
+// Threads: `threads` workers only simulate units and absorb them into the
+// shared PointState under its mutex; the thread that called RunPoint
+// supervises (interrupt flag, exchange polling, progress, checkpoints) and
+// sleeps on a condition variable in between, so callbacks never stall a
+// worker and a slow checkpoint write costs no simulation time.
 #include "sim/engine.h"
 
 #include <chrono>
+#include <algorithm>
+#include <condition_variable>
+#include <limits>
 #include <map>
 #include <mutex>
 #include <thread>
+
+#include "blocks/core/types.h"
 
 namespace capgap {
 
@@ -18,10 +30,42 @@ std::string ToString(StopReason reason) {
   return "unknown";
 }
 
+Result<StopReason> ParseStopReason(const std::string& word) {
+  for (StopReason r : {StopReason::kTargetErrors, StopReason::kMaxBits, StopReason::kInterrupted}) {
+    if (word == ToString(r)) return r;
+  }
+  return Status::Error("stop reason '" + word + "': valid: target_errors, max_bits, interrupted");
+}
+
 int ResolveThreadCount(int requested) {
   if (requested > 0) return requested;
   const unsigned hw = std::thread::hardware_concurrency();
   return hw == 0 ? 1 : static_cast<int>(hw);
+}
+
+AwgnChannel MakePointChannel(const Chain& chain, double ebno_db) {
+  NoiseSpec spec;
+  spec.ebn0_db = ebno_db;
+  spec.code_rate = chain.code_rate();
+  spec.bits_per_symbol = chain.mapper().bits_per_symbol();
+  spec.samples_per_symbol = chain.samples_per_symbol();
+  return AwgnChannel(spec);
+}
+
+bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason) {
+  if (counts.bit_errors >= sweep.target_errors) {
+    *reason = StopReason::kTargetErrors;
+    return true;
+  }
+  if (counts.bits >= sweep.max_bits) {
+    *reason = StopReason::kMaxBits;
+    return true;
+  }
+  return false;
+}
+
+bool SweepEndsAfter(const PointResult& r, const SweepConfig& sweep) {
+  return r.counts.bit_errors == 0 || r.ber() < sweep.ber_floor;
 }
 
 namespace {
@@ -34,92 +78,175 @@ double SecondsSince(Clock::time_point t0) {
 
 // Shared state of one point. Workers take unit indices from `next_unit`;
 // completed units wait in `pending` until the prefix reaches them.
-struct PointState {
+class PointState final : public PointControl {
+ public:
+  PointState(const SweepConfig& sweep, const PointStart& start)
+      : sweep_(sweep), next_unit(start.units), prefix_end(start.units), prefix(start.counts) {}
+
+  Range Claim(std::uint32_t count) override {
+    if (count == 0 || done_flag.load(std::memory_order_acquire)) return {};
+    const std::uint32_t first = next_unit.fetch_add(count, std::memory_order_relaxed);
+    CAPGAP_DCHECK(first + count > first);  // unit indices are 32-bit
+    return {first, count};
+  }
+  void Deliver(std::uint32_t unit, const UnitCounts& counts) override {
+    std::lock_guard<std::mutex> lock(mu);
+    AbsorbLocked(unit, counts);
+  }
+  bool done() const override { return done_flag.load(std::memory_order_acquire); }
+  std::int64_t EstimatedUnclaimedUnits() override {
+    std::lock_guard<std::mutex> lock(mu);
+    if (prefix_end == 0) return -1;
+    const double units = prefix_end;
+    double need = std::numeric_limits<double>::infinity();
+    if (prefix.bit_errors > 0) {
+      need = static_cast<double>(sweep_.target_errors - std::min(sweep_.target_errors, prefix.bit_errors)) *
+             units / static_cast<double>(prefix.bit_errors);
+    }
+    if (prefix.bits > 0) {
+      need = std::min(need, static_cast<double>(sweep_.max_bits - std::min(sweep_.max_bits, prefix.bits)) *
+                                units / static_cast<double>(prefix.bits));
+    }
+    const double unclaimed = units + need - next_unit.load(std::memory_order_relaxed);
+    return unclaimed > 0 ? static_cast<std::int64_t>(std::min(unclaimed, 1e15)) : 0;
+  }
+
+  // REQUIRES: mu held. Adds a finished unit, advances the counted prefix in
+  // index order and applies the stopping rule after each unit it absorbs.
+  void AbsorbLocked(std::uint32_t unit, const UnitCounts& counts) {
+    all += counts;
+    ++simulated;
+    if (done_flag.load(std::memory_order_relaxed)) return;
+    CAPGAP_DCHECK(unit >= prefix_end);
+    pending.emplace(unit, counts);
+    for (auto it = pending.find(prefix_end); it != pending.end(); it = pending.find(prefix_end)) {
+      prefix += it->second;
+      pending.erase(it);
+      ++prefix_end;
+      StopReason r;
+      if (StopRuleMet(prefix, sweep_, &r)) {
+        FinishLocked(r);
+        break;
+      }
+    }
+  }
+  // REQUIRES: mu held.
+  void FinishLocked(StopReason r) {
+    if (done_flag.load(std::memory_order_relaxed)) return;
+    reason = r;
+    done_flag.store(true, std::memory_order_release);
+    cv.notify_all();
+  }
+
+ private:
+  const SweepConfig& sweep_;
+
+ public:
   std::mutex mu;
-  std::atomic<std::uint32_t> next_unit{0};
-  std::atomic<bool> done{false};
+  std::condition_variable cv;
+  std::atomic<std::uint32_t> next_unit;
+  std::atomic<bool> done_flag{false};
   std::map<std::uint32_t, UnitCounts> pending;
-  std::uint32_t prefix_end = 0;  // units [0, prefix_end) are counted
+  std::uint32_t prefix_end;  // units [0, prefix_end) are counted
   UnitCounts prefix;
-  UnitCounts all;  // every finished unit, for the speed figure
+  UnitCounts all;  // every unit finished in this call, for the speed figure
+  std::uint64_t simulated = 0;
   StopReason reason = StopReason::kTargetErrors;
-  Clock::time_point last_progress;
 };
 
 }  // namespace
 
 PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t point_index,
-                     double ebno_db, const EngineOptions& options) {
+                     double ebno_db, const EngineOptions& options, const PointStart& start) {
   const auto t0 = Clock::now();
-  NoiseSpec spec;
-  spec.ebn0_db = ebno_db;
-  spec.code_rate = chain.code_rate();
-  spec.bits_per_symbol = chain.mapper().bits_per_symbol();
-  spec.samples_per_symbol = chain.samples_per_symbol();
-  const AwgnChannel channel(spec);
-
-  PointState st;
-  st.last_progress = t0;
-  const int threads = ResolveThreadCount(options.threads);
+  const AwgnChannel channel = MakePointChannel(chain, ebno_db);
+  PointState st(sweep, start);
+  StopReason start_reason;
+  const bool already_done = StopRuleMet(start.counts, sweep, &start_reason);
+  if (already_done) {
+    std::lock_guard<std::mutex> lock(st.mu);
+    st.FinishLocked(start_reason);
+  }
+  const auto interrupted = [&] {
+    return options.interrupt && options.interrupt->load(std::memory_order_relaxed);
+  };
 
   auto worker = [&]() {
     ChainWorkspace ws = chain.MakeWorkspace();
-    while (!st.done.load(std::memory_order_acquire)) {
-      if (options.interrupt && options.interrupt->load(std::memory_order_relaxed)) {
+    while (!st.done()) {
+      if (interrupted()) {
         std::lock_guard<std::mutex> lock(st.mu);
-        if (!st.done.load()) {
-          st.reason = StopReason::kInterrupted;
-          st.done.store(true, std::memory_order_release);
-        }
+        st.FinishLocked(StopReason::kInterrupted);
         break;
       }
       const std::uint32_t unit = st.next_unit.fetch_add(1, std::memory_order_relaxed);
       const UnitCounts counts = chain.RunUnit(channel, point_index, unit, ws);
       std::lock_guard<std::mutex> lock(st.mu);
-      st.all += counts;
-      if (st.done.load(std::memory_order_relaxed)) break;
-      st.pending.emplace(unit, counts);
-      // Advance the counted prefix in index order and apply the stopping rule
-      // after each unit it absorbs.
-      for (auto it = st.pending.find(st.prefix_end); it != st.pending.end();
-           it = st.pending.find(st.prefix_end)) {
-        st.prefix += it->second;
-        st.pending.erase(it);
-        ++st.prefix_end;
-        if (st.prefix.bit_errors >= sweep.target_errors) {
-          st.reason = StopReason::kTargetErrors;
-          st.done.store(true, std::memory_order_release);
-          break;
-        }
-        if (st.prefix.bits >= sweep.max_bits) {
-          st.reason = StopReason::kMaxBits;
-          st.done.store(true, std::memory_order_release);
-          break;
-        }
-      }
-      if (options.on_progress && !st.done.load(std::memory_order_relaxed)) {
-        const auto now = Clock::now();
-        if (std::chrono::duration<double>(now - st.last_progress).count() >=
-            options.progress_interval_seconds) {
-          st.last_progress = now;
-          const double secs = SecondsSince(t0);
-          Progress p{&chain.scheme().name, point_index, sweep.ebno_db.size(), ebno_db, st.prefix,
-                     sweep.target_errors, sweep.max_bits, secs,
-                     secs > 0 ? static_cast<double>(st.all.bits) / secs : 0.0};
-          options.on_progress(p);
-        }
-      }
+      st.AbsorbLocked(unit, counts);
     }
   };
 
-  if (threads == 1) {
-    worker();
-  } else {
-    std::vector<std::thread> pool;
+  std::vector<std::thread> pool;
+  if (!already_done) {
+    const int threads = ResolveThreadCount(options.threads);
     pool.reserve(static_cast<std::size_t>(threads));
     for (int t = 0; t < threads; ++t) pool.emplace_back(worker);
-    for (auto& th : pool) th.join();
   }
+
+  // Supervise until the point is decided.
+  // Wake often enough for the exchange, the checkpoint and progress timers
+  // and the interrupt flag (workers also see it between units).
+  double tick = options.exchange ? options.exchange->poll_interval_seconds() : 0.05;
+  if (options.on_checkpoint && options.checkpoint_interval_seconds > 0) {
+    tick = std::min(tick, options.checkpoint_interval_seconds);
+  }
+  if (options.on_progress) tick = std::min(tick, options.progress_interval_seconds);
+  const auto tick_duration = std::chrono::duration_cast<Clock::duration>(
+      std::chrono::duration<double>(tick));
+  auto last_progress = t0;
+  auto last_checkpoint = t0;
+  {
+    std::unique_lock<std::mutex> lock(st.mu);
+    while (!st.done()) {
+      st.cv.wait_for(lock, tick_duration);
+      if (st.done()) break;
+      if (interrupted()) {
+        st.FinishLocked(StopReason::kInterrupted);
+        break;
+      }
+      const auto now = Clock::now();
+      const double secs = std::chrono::duration<double>(now - t0).count();
+      const bool progress_due =
+          options.on_progress &&
+          std::chrono::duration<double>(now - last_progress).count() >= options.progress_interval_seconds;
+      const bool checkpoint_due =
+          options.on_checkpoint && options.checkpoint_interval_seconds > 0 &&
+          std::chrono::duration<double>(now - last_checkpoint).count() >=
+              options.checkpoint_interval_seconds;
+      const UnitCounts prefix = st.prefix;
+      const std::uint32_t prefix_end = st.prefix_end;
+      const std::uint64_t all_bits = st.all.bits;
+      lock.unlock();
+      bool keep_going = true;
+      if (options.exchange) keep_going = options.exchange->Poll(st);
+      if (progress_due) {
+        last_progress = now;
+        Progress p{&chain.scheme().name, point_index, sweep.ebno_db.size(), ebno_db, prefix,
+                   sweep.target_errors, sweep.max_bits, start.seconds + secs,
+                   secs > 0 ? static_cast<double>(all_bits) / secs : 0.0};
+        options.on_progress(p);
+      }
+      if (checkpoint_due) {
+        options.on_checkpoint(PointSnapshot{point_index, prefix_end, prefix, start.seconds + secs});
+        // Measured from the end of the write, so a slow disk cannot make
+        // checkpoints back to back.
+        last_checkpoint = Clock::now();
+      }
+      lock.lock();
+      if (!keep_going) st.FinishLocked(StopReason::kInterrupted);
+    }
+  }
+  for (auto& th : pool) th.join();
 
   PointResult r;
   r.ebno_db = ebno_db;
@@ -127,11 +254,12 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
   r.counts = st.prefix;
   r.units = st.prefix_end;
   r.stop_reason = st.reason;
+  r.units_simulated = st.simulated;
   if (r.counts.bits > 0) {
     r.ber_ci = ClopperPearson(r.counts.bit_errors, r.counts.bits);
     r.fer_ci = ClopperPearson(r.counts.frame_errors, r.counts.frames);
   }
-  r.seconds = SecondsSince(t0);
+  r.seconds = start.seconds + SecondsSince(t0);
   return r;
 }
 
@@ -142,8 +270,7 @@ std::vector<PointResult> RunSweep(const Chain& chain, const SweepConfig& sweep,
     PointResult r = RunPoint(chain, sweep, static_cast<std::uint32_t>(i), sweep.ebno_db[i], options);
     results.push_back(r);
     if (r.stop_reason == StopReason::kInterrupted) break;
-    if (r.counts.bit_errors == 0) break;  // no error within max_bits
-    if (r.ber() < sweep.ber_floor) break;
+    if (SweepEndsAfter(r, sweep)) break;
   }
   return results;
 }

@@ -101,5 +101,25 @@ TEST(ConfigLdpc, BadValuesNameKeyValueAndRule) {
             "dir/test.ini: scheme.a.code = 'turbo': valid: none, conv, ldpc");
 }
 
+// A scheme may sweep its own Eb/N0 points (an LDPC waterfall needs a finer
+// grid than an uncoded curve in the same run); without the key it uses the
+// sweep's, and the resolved text does not list it.
+TEST(ConfigLdpc, SchemeMaySweepItsOwnPoints) {
+  const std::string text =
+      "[sweep]\nebno_db = 0:2:10\n[scheme.u]\nmodulation = qpsk\n"
+      "[scheme.c]\nmodulation = qpsk\ncode = ldpc\nebno_db = 1:0.25:2\n";
+  auto r = ParseRunConfig(text, "t.ini", {});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().schemes[0].ebno_db, (std::vector<double>{0, 2, 4, 6, 8, 10}));
+  EXPECT_EQ(r.value().schemes[1].ebno_db, (std::vector<double>{1, 1.25, 1.5, 1.75, 2}));
+  EXPECT_EQ(r.value().SweepFor(1).ebno_db, r.value().schemes[1].ebno_db);
+  EXPECT_EQ(r.value().SweepFor(1).target_errors, r.value().sweep.target_errors);
+  const std::string resolved = r.value().ResolvedText();
+  EXPECT_EQ(resolved.find("[scheme.u]\nmodulation = qpsk\nebno_db"), std::string::npos);
+  EXPECT_NE(resolved.find("ebno_db = 1:0.25:2"), std::string::npos);
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\nebno_db = 3:1:2\n"),
+            "dir/test.ini: scheme.a.ebno_db = '3:1:2': STOP must be >= START");
+}
+
 }  // namespace
 }  // namespace capgap

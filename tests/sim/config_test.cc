@@ -89,7 +89,7 @@ TEST(Config, UnknownModulationListsValidWords) {
 TEST(Config, UnknownKeysAndSectionsAreRejected) {
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nroll_off = 0.3\n"),
             "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
-            "frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
+            "ebno_db, frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
             "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
             "constraint_length, puncture, termination, decoder, traceback, construction, length, "
             "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "

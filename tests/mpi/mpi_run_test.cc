@@ -1,0 +1,215 @@
+// MPI mode through mpirun on this machine (shared memory): 2 and 3 ranks (3
+// oversubscribing 2 cores) write the counts of a one-thread single-process
+// run, with one progress stream; a SIGKILLed rank ends the run without a hang
+// and --resume finishes it to the same counts; SIGTERM to every rank (what a
+// batch scheduler sends) stops cleanly with status 75; SIGTERM to mpirun
+// leaves a good checkpoint that a single process can resume.
+#include <dirent.h>
+#include <signal.h>
+#include <unistd.h>
+
+#include <cstdlib>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include <gtest/gtest.h>
+
+#include "sim/checkpoint.h"
+#include "tests/sim/capgap_process.h"
+
+namespace capgap {
+namespace {
+
+namespace fs = std::filesystem;
+using test::CapgapBinary;
+using test::Config;
+using test::ExpectSameRecords;
+using test::Process;
+using test::ReadCounts;
+using test::ReadGood;
+using test::RunCapgap;
+using test::RunOutput;
+using test::RunProgram;
+using test::WaitForFinishedPoints;
+
+fs::path TempDir(const std::string& name) { return test::TempDir("mpi_run_test", name); }
+
+std::vector<std::string> RunArgs(const std::string& out, std::vector<std::string> extra = {}) {
+  std::vector<std::string> a = {"run", Config("ci_resume.ini"), "-o", out};
+  a.insert(a.end(), extra.begin(), extra.end());
+  return a;
+}
+
+// mpirun arguments for `np` ranks of capgap. OpenMPI refuses to run as root
+// unless both variables are set (CI containers run as root).
+std::vector<std::string> Mpi(int np, const std::vector<std::string>& capgap_args) {
+  ::setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  ::setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  std::vector<std::string> a = {"--oversubscribe", "-np", std::to_string(np), CapgapBinary()};
+  a.insert(a.end(), capgap_args.begin(), capgap_args.end());
+  return a;
+}
+
+RunOutput RunMpi(int np, const std::vector<std::string>& capgap_args, const fs::path& dir) {
+  return RunProgram(CAPGAP_MPIEXEC, Mpi(np, capgap_args), dir);
+}
+
+// The signal tests need a run that lasts seconds, so that a signal lands
+// mid-sweep: ci_resume.ini's first 6 points with 150x the errors per point
+// (about 4 s on one core here).
+std::vector<std::string> Heavy(std::vector<std::string> extra) {
+  std::vector<std::string> a = {"--set", "sweep.ebno_db=0:1:5", "--set",
+                                "sweep.target_errors=3000000", "--set",
+                                "sweep.max_bits=1000000000"};
+  a.insert(a.end(), extra.begin(), extra.end());
+  return a;
+}
+
+// The references: one process, one thread (computed once per test program).
+std::string MakeReference(const std::string& name, const std::vector<std::string>& extra) {
+  const fs::path dir = TempDir(name);
+  const std::string out = (dir / "ref.h5").string();
+  std::vector<std::string> args = {"--threads", "1", "--quiet"};
+  args.insert(args.end(), extra.begin(), extra.end());
+  const RunOutput r = RunCapgap(RunArgs(out, args), dir);
+  EXPECT_EQ(r.status, 0) << r.log;
+  return out;
+}
+
+const std::string& Reference() {
+  static const std::string path = MakeReference("reference", {});
+  return path;
+}
+
+const std::string& HeavyReference() {
+  static const std::string path = MakeReference("heavy_reference", Heavy({}));
+  return path;
+}
+
+std::size_t Count(const std::string& text, const std::string& what) {
+  std::size_t n = 0;
+  for (std::size_t pos = text.find(what); pos != std::string::npos; pos = text.find(what, pos + 1)) ++n;
+  return n;
+}
+
+// Ranks started by mpirun `launcher`: its children, with their MPI rank from
+// the environment OpenMPI gives them.
+std::vector<std::pair<int, pid_t>> Ranks(pid_t launcher) {
+  std::vector<std::pair<int, pid_t>> out;
+  DIR* proc = ::opendir("/proc");
+  if (!proc) return out;
+  while (dirent* e = ::readdir(proc)) {
+    const pid_t pid = static_cast<pid_t>(std::atoi(e->d_name));
+    if (pid <= 0) continue;
+    std::ifstream stat("/proc/" + std::string(e->d_name) + "/stat");
+    std::string line;
+    std::getline(stat, line);
+    const auto close = line.rfind(')');
+    if (close == std::string::npos) continue;
+    std::istringstream rest(line.substr(close + 2));
+    std::string state;
+    pid_t ppid = 0;
+    rest >> state >> ppid;
+    if (ppid != launcher) continue;
+    std::ifstream env("/proc/" + std::string(e->d_name) + "/environ", std::ios::binary);
+    std::string var;
+    while (std::getline(env, var, '\0')) {
+      if (var.rfind("OMPI_COMM_WORLD_RANK=", 0) == 0) out.emplace_back(std::atoi(var.c_str() + 21), pid);
+    }
+  }
+  ::closedir(proc);
+  return out;
+}
+
+TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
+  const fs::path dir = TempDir("counts");
+  const std::string ref = Reference();
+  struct Case {
+    int np;
+    const char* threads;
+  };
+  for (const Case c : {Case{2, "1"}, Case{3, "1"}, Case{2, "2"}}) {
+    const std::string out = (dir / ("np" + std::to_string(c.np) + "_t" + c.threads + ".h5")).string();
+    // Progress on (no --quiet): MPI mode prints plain lines from rank 0 only.
+    const RunOutput r = RunMpi(c.np, RunArgs(out, {"--threads", c.threads}), dir);
+    ASSERT_EQ(r.status, 0) << r.log;
+    EXPECT_EQ(ReadCounts(out), ReadCounts(ref)) << c.np << " ranks x " << c.threads << " threads";
+    ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
+    EXPECT_EQ(Count(r.log, "wrote " + out), 1u) << r.log;
+    EXPECT_EQ(Count(r.log, "process(es) x"), 1u) << r.log;  // one banner
+    EXPECT_NE(r.log.find(std::to_string(c.np) + " process(es) x " + c.threads + " thread(s)"),
+              std::string::npos)
+        << r.log;
+    EXPECT_EQ(Count(r.log, "\r"), 0u);  // no in-place bars in logs
+    EXPECT_EQ(Count(r.log, "[qpsk] point 1/10"), 1u) << r.log;  // one line per finished point
+  }
+  fs::remove_all(dir);
+}
+
+TEST(MpiRun, KilledRankEndsTheRunAndResumeFinishesIt) {
+  const fs::path dir = TempDir("kill");
+  const std::string out = (dir / "out.h5").string();
+  Process launcher(CAPGAP_MPIEXEC, Mpi(3, RunArgs(out, Heavy({"--threads", "1", "--quiet"}))),
+                   dir / "kill_log.txt");
+  ASSERT_TRUE(WaitForFinishedPoints(launcher, CheckpointPath(out), 2)) << launcher.Log();
+  pid_t victim = 0;
+  for (const auto& [rank, pid] : Ranks(launcher.pid())) {
+    if (rank == 2) victim = pid;
+  }
+  ASSERT_GT(victim, 0) << "rank 2 not found among the children of mpirun";
+  ::kill(victim, SIGKILL);
+  const int status = launcher.Wait(60);
+  EXPECT_NE(status, -1000) << "mpirun still running 60 s after a rank was killed\n" << launcher.Log();
+  EXPECT_NE(status, 0);
+  const Checkpoint c = ReadGood(CheckpointPath(out));
+  EXPECT_FALSE(c.complete);
+  EXPECT_GE(c.FinishedPoints(), 2u);
+  const RunOutput r = RunMpi(2, RunArgs(out, Heavy({"--threads", "1", "--quiet", "--resume"})), dir);
+  ASSERT_EQ(r.status, 0) << r.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(HeavyReference()));
+  ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(HeavyReference())));
+  fs::remove_all(dir);
+}
+
+TEST(MpiRun, SigtermToEveryRankStopsCleanlyWithStatus75) {
+  const fs::path dir = TempDir("term");
+  const std::string out = (dir / "out.h5").string();
+  Process launcher(CAPGAP_MPIEXEC, Mpi(2, RunArgs(out, Heavy({"--threads", "1", "--quiet"}))),
+                   dir / "term_log.txt");
+  ASSERT_TRUE(WaitForFinishedPoints(launcher, CheckpointPath(out), 2)) << launcher.Log();
+  const auto ranks = Ranks(launcher.pid());
+  ASSERT_EQ(ranks.size(), 2u);
+  for (const auto& [rank, pid] : ranks) ::kill(pid, SIGTERM);
+  EXPECT_EQ(launcher.Wait(60), 75) << launcher.Log();
+  EXPECT_NE(launcher.Log().find("stopped by signal; checkpoint " + CheckpointPath(out) + " saved"),
+            std::string::npos)
+      << launcher.Log();
+  EXPECT_FALSE(fs::exists(out));
+  EXPECT_FALSE(ReadGood(CheckpointPath(out)).complete);
+  const RunOutput r = RunMpi(3, RunArgs(out, Heavy({"--threads", "1", "--quiet", "--resume"})), dir);
+  ASSERT_EQ(r.status, 0) << r.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(HeavyReference()));
+  fs::remove_all(dir);
+}
+
+TEST(MpiRun, SigtermToMpirunLeavesACheckpointASingleProcessResumes) {
+  const fs::path dir = TempDir("mpirun_term");
+  const std::string out = (dir / "out.h5").string();
+  Process launcher(CAPGAP_MPIEXEC, Mpi(2, RunArgs(out, Heavy({"--threads", "1", "--quiet"}))),
+                   dir / "mpirun_log.txt");
+  ASSERT_TRUE(WaitForFinishedPoints(launcher, CheckpointPath(out), 2)) << launcher.Log();
+  launcher.Signal(SIGTERM);
+  const int status = launcher.Wait(60);
+  EXPECT_NE(status, -1000) << launcher.Log();
+  EXPECT_NE(status, 0);
+  EXPECT_FALSE(ReadGood(CheckpointPath(out)).complete);
+  const RunOutput r = RunCapgap(RunArgs(out, Heavy({"--threads", "2", "--quiet", "--resume"})), dir);
+  ASSERT_EQ(r.status, 0) << r.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(HeavyReference()));
+  fs::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace capgap

@@ -1,0 +1,365 @@
+// Resume and extension give exactly the counts of an uninterrupted run:
+// in-process (RunPoint from any saved prefix, from checkpoint snapshots, after
+// an interrupt, with a raised target) and through the CLI as a user meets it
+// (SIGKILL at random moments then --resume, SIGTERM -> status 75 with a good
+// checkpoint, a second SIGINT -> status 130 at once, a changed scheme refused,
+// target_errors raised on a finished run, more points and a lower floor).
+#include <signal.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <random>
+#include <sstream>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include <gtest/gtest.h>
+
+#include "sim/checkpoint.h"
+#include "sim/curves_file.h"
+#include "sim/engine.h"
+#include "tests/sim/capgap_process.h"
+
+namespace capgap {
+namespace {
+
+namespace fs = std::filesystem;
+using Clock = std::chrono::steady_clock;
+using test::Config;
+using test::ExpectSameRecords;
+using test::FileCounts;
+using test::Process;
+using test::ReadCounts;
+using test::ReadGood;
+using test::RunCapgap;
+using test::RunOutput;
+using test::WaitForFinishedPoints;
+
+fs::path TempDir(const std::string& name) { return test::TempDir("resume_test", name); }
+
+// ------------------------------------------------------------- in-process
+RunConfig PointConfig(std::uint64_t target_errors) {
+  const std::string text = "[sweep]\nebno_db = 5\ntarget_errors = " + std::to_string(target_errors) +
+                           "\nmax_bits = 100000000\nseed = 3\n[scheme.s]\nmodulation = 16qam\n"
+                           "demapper = maxlog\nframe_bits = 480\nunit_frames = 2\n";
+  auto r = ParseRunConfig(text, "resume_test", {});
+  EXPECT_TRUE(r.ok()) << r.status().message();
+  return r.value();
+}
+
+Chain MakeChain(const RunConfig& cfg) {
+  auto chain = Chain::Create(cfg.schemes[0], cfg.sweep.seed);
+  EXPECT_TRUE(chain.ok()) << chain.status().message();
+  return std::move(chain).value();
+}
+
+// Serial sum of units [0, k) of point 0.
+PointStart SerialPrefix(const Chain& chain, double ebno_db, std::uint32_t k) {
+  const AwgnChannel channel = MakePointChannel(chain, ebno_db);
+  ChainWorkspace ws = chain.MakeWorkspace();
+  PointStart s;
+  s.units = k;
+  for (std::uint32_t u = 0; u < k; ++u) s.counts += chain.RunUnit(channel, 0, u, ws);
+  return s;
+}
+
+void ExpectSamePoint(const PointResult& a, const PointResult& b) {
+  EXPECT_EQ(a.counts, b.counts);
+  EXPECT_EQ(a.units, b.units);
+  EXPECT_EQ(a.stop_reason, b.stop_reason);
+}
+
+// 16QAM at 5 dB, 1000 target errors: BER about 1.9e-2 (Cho & Yoon 2002
+// closed form, as in analysis/uncoded_theory), so about 55 units of 960 bits.
+TEST(Resume, PointContinuedFromAnySavedPrefixEqualsUninterrupted) {
+  const RunConfig cfg = PointConfig(1000);
+  const Chain chain = MakeChain(cfg);
+  EngineOptions eo;
+  eo.threads = 2;
+  const PointResult whole = RunPoint(chain, cfg.sweep, 0, 5.0, eo);
+  ASSERT_EQ(whole.stop_reason, StopReason::kTargetErrors);
+  ASSERT_GT(whole.units, 20u);
+  for (int threads : {1, 3}) {
+    eo.threads = threads;
+    for (std::uint32_t k : {0u, 1u, static_cast<std::uint32_t>(whole.units / 2),
+                            static_cast<std::uint32_t>(whole.units - 1)}) {
+      const PointResult r = RunPoint(chain, cfg.sweep, 0, 5.0, eo, SerialPrefix(chain, 5.0, k));
+      ExpectSamePoint(r, whole);
+      if (threads == 1) {
+        EXPECT_EQ(r.units_simulated, whole.units - k) << k;
+      }
+    }
+  }
+  // A saved prefix that already meets the rule is returned as it is.
+  const PointResult again =
+      RunPoint(chain, cfg.sweep, 0, 5.0, eo,
+               SerialPrefix(chain, 5.0, static_cast<std::uint32_t>(whole.units)));
+  ExpectSamePoint(again, whole);
+  EXPECT_EQ(again.units_simulated, 0u);
+}
+
+TEST(Resume, CheckpointSnapshotsArePrefixSumsAndResumeFromThem) {
+  // About 1e8 bits: long enough (tens of ms or more) for the supervising
+  // thread to be scheduled between two busy workers several times.
+  const RunConfig cfg = PointConfig(2000000);
+  const Chain chain = MakeChain(cfg);
+  EngineOptions eo;
+  eo.threads = 2;
+  std::vector<PointSnapshot> snaps;
+  eo.checkpoint_interval_seconds = 1e-3;
+  eo.on_checkpoint = [&](const PointSnapshot& s) { snaps.push_back(s); };
+  const PointResult whole = RunPoint(chain, cfg.sweep, 0, 5.0, eo);
+  ASSERT_GE(snaps.size(), 3u) << "point too fast to take snapshots";
+  eo.on_checkpoint = nullptr;
+  std::uint32_t last = 0;
+  for (std::size_t i = 0; i < snaps.size(); i += std::max<std::size_t>(1, snaps.size() / 4)) {
+    const PointSnapshot& s = snaps[i];
+    EXPECT_GE(s.units, last);
+    last = s.units;
+    const PointStart serial = SerialPrefix(chain, 5.0, s.units);
+    EXPECT_EQ(s.counts, serial.counts) << "snapshot " << i << " at unit " << s.units;
+    PointStart start{s.units, s.counts, s.seconds};
+    ExpectSamePoint(RunPoint(chain, cfg.sweep, 0, 5.0, eo, start), whole);
+  }
+}
+
+TEST(Resume, InterruptedPointResumesToTheUninterruptedCounts) {
+  const RunConfig cfg = PointConfig(20000);
+  const Chain chain = MakeChain(cfg);
+  EngineOptions eo;
+  eo.threads = 2;
+  const PointResult whole = RunPoint(chain, cfg.sweep, 0, 5.0, eo);
+  std::mt19937 rng(std::random_device{}());
+  for (int round = 0; round < 3; ++round) {
+    std::atomic<bool> stop{false};
+    eo.interrupt = &stop;
+    const int delay_us = std::uniform_int_distribution<int>(0, 20000)(rng);
+    std::thread killer([&] {
+      std::this_thread::sleep_for(std::chrono::microseconds(delay_us));
+      stop = true;
+    });
+    const PointResult part = RunPoint(chain, cfg.sweep, 0, 5.0, eo);
+    killer.join();
+    eo.interrupt = nullptr;
+    if (part.stop_reason != StopReason::kInterrupted) continue;  // finished first
+    EXPECT_EQ(part.counts, SerialPrefix(chain, 5.0, static_cast<std::uint32_t>(part.units)).counts);
+    const PointStart start{static_cast<std::uint32_t>(part.units), part.counts, part.seconds};
+    ExpectSamePoint(RunPoint(chain, cfg.sweep, 0, 5.0, eo, start), whole);
+  }
+}
+
+TEST(Resume, RaisedTargetContinuesAFinishedPointWithOnlyTheExtraUnits) {
+  const RunConfig small = PointConfig(300), large = PointConfig(900);
+  const Chain chain = MakeChain(small);
+  EngineOptions eo;
+  eo.threads = 1;  // no overshoot: units simulated are exactly the extra ones
+  const PointResult a = RunPoint(chain, small.sweep, 0, 5.0, eo);
+  const PointResult b = RunPoint(chain, large.sweep, 0, 5.0, eo);
+  const PointStart start{static_cast<std::uint32_t>(a.units), a.counts, a.seconds};
+  const PointResult extended = RunPoint(chain, large.sweep, 0, 5.0, eo, start);
+  ExpectSamePoint(extended, b);
+  EXPECT_EQ(extended.units_simulated, b.units - a.units);
+}
+
+// -------------------------------------------------------------------- CLI
+std::vector<std::string> RunArgs(const std::string& out, std::vector<std::string> extra = {}) {
+  std::vector<std::string> a = {"run", Config("ci_resume.ini"), "-o", out, "--quiet"};
+  a.insert(a.end(), extra.begin(), extra.end());
+  return a;
+}
+
+// Five SIGKILLs at uniform random moments within the first 70 % of the
+// uninterrupted run's duration (the seed is printed so a failure can be
+// replayed), each followed by --resume; after every kill the checkpoint and
+// any curves file must open. A round that finished before its kill starts
+// the next one from scratch, so every round has work to interrupt. Ten times
+// the config's errors per point: about a second per run, checkpoints every
+// 0.2 s, so kills land inside points, in checkpoint writes and between points.
+TEST(ResumeCli, KilledAtRandomMomentsThenResumedGivesUninterruptedCounts) {
+  const fs::path dir = TempDir("kill");
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  auto args = [&](const std::string& path, bool resume) {
+    std::vector<std::string> extra = {"--threads", "2", "--set", "sweep.target_errors=200000"};
+    if (resume) extra.push_back("--resume");
+    return RunArgs(path, extra);
+  };
+  const RunOutput r = RunCapgap(args(ref, false), dir);
+  ASSERT_EQ(r.status, 0) << r.log;
+  const unsigned seed = std::random_device{}();
+  std::printf("kill moments from seed %u; uninterrupted run %.2f s\n", seed, r.seconds);
+  std::mt19937 rng(seed);
+  std::uniform_real_distribution<double> moment(0.0, 0.7 * r.seconds);
+  int killed_running = 0;
+  for (int round = 0; round < 5; ++round) {
+    Process p(args(out, true), dir / "kill_log.txt");
+    const double t = moment(rng);
+    const auto t0 = Clock::now();
+    while (!p.Exited() && std::chrono::duration<double>(Clock::now() - t0).count() < t) {
+      std::this_thread::sleep_for(std::chrono::microseconds(500));
+    }
+    killed_running += !p.Exited();
+    p.Signal(SIGKILL);
+    const int status = p.Wait();
+    ASSERT_TRUE(status == -SIGKILL || status == 0) << status << "\n" << p.Log();
+    if (fs::exists(CheckpointPath(out))) ReadGood(CheckpointPath(out));
+    if (fs::exists(out)) {
+      EXPECT_TRUE(ReadCurvesFile(out).ok()) << "round " << round;
+    }
+    if (status == 0) {  // finished before the kill: start over
+      fs::remove(out);
+      fs::remove(CheckpointPath(out));
+    }
+  }
+  EXPECT_GE(killed_running, 1);
+  const RunOutput last = RunCapgap(args(out, true), dir);
+  ASSERT_EQ(last.status, 0) << last.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
+  for (const auto& e : fs::directory_iterator(dir)) {
+    EXPECT_EQ(e.path().string().find(".tmp-"), std::string::npos) << e.path();
+  }
+  fs::remove_all(dir);
+}
+
+TEST(ResumeCli, SigtermSavesTheCheckpointAndExitsWith75) {
+  const fs::path dir = TempDir("term");
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  ASSERT_EQ(RunCapgap(RunArgs(ref, {"--threads", "1"}), dir).status, 0);
+  Process p(RunArgs(out, {"--threads", "1"}), dir / "term_log.txt");
+  ASSERT_TRUE(WaitForFinishedPoints(p, CheckpointPath(out), 1)) << p.Log();
+  p.Signal(SIGTERM);
+  const auto t0 = Clock::now();
+  EXPECT_EQ(p.Wait(), 75) << p.Log();
+  EXPECT_LT(std::chrono::duration<double>(Clock::now() - t0).count(), 5.0);
+  EXPECT_NE(p.Log().find("stopped by signal; checkpoint " + CheckpointPath(out) + " saved"),
+            std::string::npos)
+      << p.Log();
+  EXPECT_FALSE(fs::exists(out));  // no curves file until the run is complete
+  const Checkpoint c = ReadGood(CheckpointPath(out));
+  EXPECT_FALSE(c.complete);
+  EXPECT_GE(c.FinishedPoints(), 1u);
+  // Without --resume the unfinished run is protected.
+  const RunOutput fresh = RunCapgap(RunArgs(out, {"--threads", "1"}), dir);
+  EXPECT_EQ(fresh.status, 1);
+  EXPECT_NE(fresh.log.find(CheckpointPath(out) + " holds an unfinished run"), std::string::npos)
+      << fresh.log;
+  const RunOutput resumed = RunCapgap(RunArgs(out, {"--threads", "1", "--resume"}), dir);
+  ASSERT_EQ(resumed.status, 0) << resumed.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  fs::remove_all(dir);
+}
+
+// Units of 2^18 frames (about 0.25 Gbit, more than a second) keep the workers
+// inside their first unit after the first SIGINT, so the second one (50 ms
+// later; two signals sent back to back may merge into one) arrives before the
+// run could stop by itself.
+TEST(ResumeCli, SecondSigintExitsAtOnceWith130AndTheCheckpointStaysGood) {
+  const fs::path dir = TempDir("int2");
+  const std::string out = (dir / "out.h5").string();
+  Process p(RunArgs(out, {"--threads", "2", "--set", "scheme.qpsk.unit_frames=262144"}),
+            dir / "int_log.txt");
+  const auto t0 = Clock::now();
+  while (!p.Exited() && !ReadCheckpoint(CheckpointPath(out)).ok() &&
+         std::chrono::duration<double>(Clock::now() - t0).count() < 30) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(1));
+  }
+  // The session's first checkpoint precedes the first unit: let it start.
+  std::this_thread::sleep_for(std::chrono::milliseconds(200));
+  p.Signal(SIGINT);
+  std::this_thread::sleep_for(std::chrono::milliseconds(50));
+  p.Signal(SIGINT);
+  EXPECT_EQ(p.Wait(), 130) << p.Log();
+  const Checkpoint c = ReadGood(CheckpointPath(out));
+  EXPECT_FALSE(c.complete);
+  EXPECT_EQ(c.schemes.size(), 2u);
+  fs::remove_all(dir);
+}
+
+TEST(ResumeCli, ChangedSchemeOrSeedIsRefusedNamingTheKey) {
+  const fs::path dir = TempDir("changed");
+  const std::string out = (dir / "out.h5").string();
+  ASSERT_EQ(RunCapgap(RunArgs(out, {"--set", "sweep.ebno_db=0:1:3"}), dir).status, 0);
+  const std::string head = "capgap: cannot resume from " + CheckpointPath(out) + ": ";
+  RunOutput r = RunCapgap(RunArgs(out, {"--resume", "--set", "scheme.qpsk.unit_frames=4"}), dir);
+  EXPECT_EQ(r.status, 1);
+  EXPECT_EQ(r.log, head + "scheme.qpsk.unit_frames changed from '8' to '4'; it fixes the random "
+                          "streams of the recorded work (start a new output file to change it)\n");
+  r = RunCapgap(RunArgs(out, {"--resume", "--seed", "12"}), dir);
+  EXPECT_EQ(r.status, 1);
+  EXPECT_EQ(r.log, head + "sweep.seed changed from 11 to 12; it fixes the random streams of the "
+                          "recorded work (start a new output file to change it)\n");
+  fs::remove_all(dir);
+}
+
+// A finished run at target_errors 20000 (config) extended to 40000: counts
+// equal a fresh run at 40000, and with one thread the units simulated by the
+// extension are exactly those the fresh run needs beyond the reused ones.
+TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
+  const fs::path dir = TempDir("extend");
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0:1:5"};
+  auto with = [&](std::vector<std::string> a, const std::vector<std::string>& more) {
+    a.insert(a.end(), more.begin(), more.end());
+    return a;
+  };
+  const RunOutput fresh = RunCapgap(RunArgs(ref, with(few, {"--set", "sweep.target_errors=40000"})), dir);
+  ASSERT_EQ(fresh.status, 0) << fresh.log;
+  ASSERT_EQ(RunCapgap(RunArgs(out, few), dir).status, 0);
+  const Checkpoint before = ReadGood(CheckpointPath(out));
+  std::uint64_t before_units = 0;
+  for (const auto& s : before.schemes) {
+    for (const auto& p : s.points) before_units += p.units;
+  }
+  const RunOutput ext =
+      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.target_errors=40000"})), dir);
+  ASSERT_EQ(ext.status, 0) << ext.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
+  std::uint64_t total = 0;
+  for (const auto& s : ReadGood(CheckpointPath(ref)).schemes) {
+    for (const auto& p : s.points) total += p.units;
+  }
+  const std::string expect = "units: " + std::to_string(total) + " counted, " +
+                             std::to_string(before_units) + " reused from the checkpoint, " +
+                             std::to_string(total - before_units) + " simulated in this run\n";
+  EXPECT_NE(ext.log.find(expect), std::string::npos) << expect << "\n" << ext.log;
+  EXPECT_GT(before_units, 0u);
+  // Nothing left to do: a second identical resume simulates nothing.
+  const RunOutput again =
+      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.target_errors=40000"})), dir);
+  ASSERT_EQ(again.status, 0) << again.log;
+  EXPECT_NE(again.log.find("units: " + std::to_string(total) + " counted, " + std::to_string(total) +
+                           " reused from the checkpoint, 0 simulated in this run\n"),
+            std::string::npos)
+      << again.log;
+  fs::remove_all(dir);
+}
+
+// Extending the sweep itself: more Eb/N0 points and a lower ber_floor (so a
+// scheme that ended early goes on) equal a fresh run of the final config.
+TEST(ResumeCli, MorePointsAndALowerFloorExtendTheSweep) {
+  const fs::path dir = TempDir("points");
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  const std::vector<std::string> final_cfg = {"--threads", "2", "--set", "sweep.ebno_db=0:1:9",
+                                              "--set", "sweep.ber_floor=1e-6"};
+  ASSERT_EQ(RunCapgap(RunArgs(ref, final_cfg), dir).status, 0);
+  ASSERT_EQ(RunCapgap(RunArgs(out, {"--threads", "2", "--set", "sweep.ebno_db=0:1:6", "--set",
+                              "sweep.ber_floor=1e-2"}),
+                dir)
+                .status,
+            0);
+  std::vector<std::string> resume = final_cfg;
+  resume.push_back("--resume");
+  const RunOutput r = RunCapgap(RunArgs(out, resume), dir);
+  ASSERT_EQ(r.status, 0) << r.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  fs::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace capgap
