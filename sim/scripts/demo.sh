@@ -11,6 +11,9 @@ cmake -S . -B build -DCMAKE_BUILD_TYPE=Release -DCAPGAP_BUILD_TESTS=OFF > build-
 rm -f build-configure.log
 cmake --build build -j"$(nproc)"
 mkdir -p results
+# The demo always starts fresh: drop a checkpoint an interrupted earlier demo
+# may have left (otherwise capgap asks for --resume).
+rm -f results/demo.h5.ckpt
 ./build/capgap run configs/demo.ini -o results/demo.h5 "$@"
 # Debian's interpreter has the plotting packages (another python3 on PATH may not).
 /usr/bin/python3 analysis/plot_curves.py results/demo.h5 -o results/demo.png

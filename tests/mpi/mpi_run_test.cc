@@ -67,9 +67,17 @@ std::vector<std::string> Heavy(std::vector<std::string> extra) {
   return a;
 }
 
-// The references: one process, one thread (computed once per test program).
-std::string MakeReference(const std::string& name, const std::vector<std::string>& extra) {
-  const fs::path dir = TempDir(name);
+// The references: one process, one thread (computed once per test program,
+// removed at exit).
+struct TempTree {
+  fs::path dir;
+  ~TempTree() {
+    std::error_code ec;
+    fs::remove_all(dir, ec);
+  }
+};
+
+std::string MakeReference(const fs::path& dir, const std::vector<std::string>& extra) {
   const std::string out = (dir / "ref.h5").string();
   std::vector<std::string> args = {"--threads", "1", "--quiet"};
   args.insert(args.end(), extra.begin(), extra.end());
@@ -79,12 +87,14 @@ std::string MakeReference(const std::string& name, const std::vector<std::string
 }
 
 const std::string& Reference() {
-  static const std::string path = MakeReference("reference", {});
+  static const TempTree tree{TempDir("reference")};
+  static const std::string path = MakeReference(tree.dir, {});
   return path;
 }
 
 const std::string& HeavyReference() {
-  static const std::string path = MakeReference("heavy_reference", Heavy({}));
+  static const TempTree tree{TempDir("heavy_reference")};
+  static const std::string path = MakeReference(tree.dir, Heavy({}));
   return path;
 }
 

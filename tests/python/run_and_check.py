@@ -65,7 +65,8 @@ def main(argv):
     png, svg = out.with_suffix(".png"), out.with_suffix(".svg")
     out.parent.mkdir(parents=True, exist_ok=True)
     for p in (out, png, svg, png.with_name(png.stem + "-plane.png"),
-              png.with_name(png.stem + "-signal.png")):
+              png.with_name(png.stem + "-signal.png"),
+              out.with_name(out.name + ".ckpt")):  # a killed earlier run's checkpoint
         p.unlink(missing_ok=True)
     py = [sys.executable, "-B"]
 
