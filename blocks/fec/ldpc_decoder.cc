@@ -22,19 +22,6 @@ std::string FloatText(float x) {
   return buf;
 }
 
-LdpcGraph GraphOf(const LdpcCode& code) {
-  LdpcGraph g;
-  g.n = code.length();
-  g.m = code.checks();
-  g.edges = code.edges();
-  g.row_start = code.row_start().data();
-  g.edge_variable = code.edge_variable().data();
-  g.col_start = code.col_start().data();
-  g.col_edge = code.col_edge().data();
-  for (int r = 0; r < g.m; ++r) g.max_row_degree = std::max(g.max_row_degree, code.row_degree(r));
-  for (int v = 0; v < g.n; ++v) g.max_col_degree = std::max(g.max_col_degree, code.col_degree(v));
-  return g;
-}
 
 reference::LdpcFloatArgs FloatArgs(const LdpcFixedArgs& base, const LdpcDecoderOptions& o) {
   reference::LdpcFloatArgs a;
@@ -139,7 +126,7 @@ Result<LdpcDecoder> LdpcDecoder::Create(std::shared_ptr<const LdpcCode> code,
   dec.options_ = o;
   dec.fixed_ = min_sum && o.arithmetic != LdpcArithmetic::kFloat;
   LdpcFixedArgs& a = dec.fixed_args_;
-  a.graph = GraphOf(*dec.code_);
+  a.graph = LdpcGraphOf(*dec.code_);
   a.layered = o.schedule == LdpcSchedule::kLayered;
   a.max_iterations = o.max_iterations;
   a.early_stop = o.early_stop;
@@ -223,6 +210,20 @@ void LdpcDecoder::Decode(std::span<const float> llrs, std::span<Bit> decided,
                                     &results[f].iterations, &results[f].converged, ws.float_.data(),
                                     ws.double_.data());
   }
+}
+
+LdpcGraph LdpcGraphOf(const LdpcCode& code) {
+  LdpcGraph g;
+  g.n = code.length();
+  g.m = code.checks();
+  g.edges = code.edges();
+  g.row_start = code.row_start().data();
+  g.edge_variable = code.edge_variable().data();
+  g.col_start = code.col_start().data();
+  g.col_edge = code.col_edge().data();
+  for (int r = 0; r < g.m; ++r) g.max_row_degree = std::max(g.max_row_degree, code.row_degree(r));
+  for (int v = 0; v < g.n; ++v) g.max_col_degree = std::max(g.max_col_degree, code.col_degree(v));
+  return g;
 }
 
 }  // namespace capgap

@@ -186,6 +186,10 @@ class LdpcDecoder {
   LdpcFixedArgs fixed_args_;
 };
 
+// The kernel's view of a code (pointers into `code`, which must outlive it;
+// largest row and column degrees computed).
+LdpcGraph LdpcGraphOf(const LdpcCode& code);
+
 }  // namespace capgap
 
 #endif  // CAPGAP_BLOCKS_FEC_LDPC_DECODER_H_

@@ -36,6 +36,7 @@
 #include "blocks/fec/ldpc_code.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/ldpc_reference.h"
+#include "tests/blocks/fec/ldpc_test_codes.h"
 
 // Allocation counter for DecodeDoesNotAllocate (replaces the global
 // operator new/delete of this test program).
@@ -59,51 +60,8 @@ namespace {
 
 using FrameResult = LdpcDecoder::FrameResult;
 
-// Random (dv, dc)-regular rows (see tests/blocks/kernels/ldpc_kernels_test.cc
-// for the same construction): each edge goes to a check with the most free
-// sockets among those closing no 4-cycle, ties broken by the seeded
-// generator; constraints relaxed only when nothing else is left.
-std::vector<std::vector<int>> RegularRows(int n, int dv, int dc, std::uint32_t seed) {
-  const int m = n * dv / dc;
-  std::mt19937 rng(seed);
-  std::vector<std::vector<int>> rows(static_cast<std::size_t>(m));
-  std::vector<std::vector<int>> checks_of(static_cast<std::size_t>(n));
-  std::vector<int> stamp(static_cast<std::size_t>(m), -1);
-  for (int v = 0; v < n; ++v) {
-    auto& mine = checks_of[static_cast<std::size_t>(v)];
-    for (int j = 0; j < dv; ++j) {
-      for (int c : mine) {
-        stamp[static_cast<std::size_t>(c)] = v;
-        for (int u : rows[static_cast<std::size_t>(c)]) {
-          for (int c2 : checks_of[static_cast<std::size_t>(u)])
-            stamp[static_cast<std::size_t>(c2)] = v;
-        }
-      }
-      std::vector<int> best;
-      for (int pass = 0; pass < 2 && best.empty(); ++pass) {
-        std::size_t most = 0;
-        for (int c = 0; c < m; ++c) {
-          const auto& row = rows[static_cast<std::size_t>(c)];
-          if (std::find(mine.begin(), mine.end(), c) != mine.end()) continue;
-          if (pass == 0 && stamp[static_cast<std::size_t>(c)] == v) continue;
-          const std::size_t free_sockets = row.size() < static_cast<std::size_t>(dc)
-                                               ? static_cast<std::size_t>(dc) - row.size()
-                                               : 0;
-          if (free_sockets == 0) continue;
-          if (free_sockets > most) {
-            most = free_sockets;
-            best.clear();
-          }
-          if (free_sockets == most) best.push_back(c);
-        }
-      }
-      const int c = best[rng() % best.size()];
-      rows[static_cast<std::size_t>(c)].push_back(v);
-      mine.push_back(c);
-    }
-  }
-  return rows;
-}
+using testing_codes::RegularRows;
+
 
 // True when no two checks share two variables (no 4-cycle).
 bool HasNoFourCycle(const LdpcCode& code) {

@@ -81,8 +81,10 @@ HWY_AFTER_NAMESPACE();
 #include <gtest/gtest.h>
 
 #include "blocks/fec/ldpc_code.h"
+#include "blocks/fec/ldpc_decoder.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/ldpc_reference.h"
+#include "tests/blocks/fec/ldpc_test_codes.h"
 #include "hwy/tests/hwy_gtest.h"
 
 namespace capgap {
@@ -99,52 +101,8 @@ HWY_EXPORT(Transpose16UnderTest);
 // any test below mocks the CPU's target list.
 const char* const kLibraryTarget = LdpcKernelTarget();
 
-// Random (dv, dc)-regular parity-check rows, n dv / dc checks: each edge of
-// each variable in turn goes to a check with the most free sockets among
-// those that close no 4-cycle with the variable's earlier edges (constraints
-// relaxed only if none is left), ties broken by the seeded generator.
-std::vector<std::vector<int>> RegularRows(int n, int dv, int dc, std::uint32_t seed) {
-  const int m = n * dv / dc;
-  std::mt19937 rng(seed);
-  std::vector<std::vector<int>> rows(static_cast<std::size_t>(m));
-  std::vector<std::vector<int>> checks_of(static_cast<std::size_t>(n));
-  std::vector<int> stamp(static_cast<std::size_t>(m), -1);
-  for (int v = 0; v < n; ++v) {
-    auto& mine = checks_of[static_cast<std::size_t>(v)];
-    for (int j = 0; j < dv; ++j) {
-      // stamp[c] == v: c is v's check or shares a variable with one.
-      for (int c : mine) {
-        stamp[static_cast<std::size_t>(c)] = v;
-        for (int u : rows[static_cast<std::size_t>(c)]) {
-          for (int c2 : checks_of[static_cast<std::size_t>(u)])
-            stamp[static_cast<std::size_t>(c2)] = v;
-        }
-      }
-      std::vector<int> best;
-      for (int pass = 0; pass < 2 && best.empty(); ++pass) {
-        std::size_t most = 0;
-        for (int c = 0; c < m; ++c) {
-          const auto& row = rows[static_cast<std::size_t>(c)];
-          if (std::find(mine.begin(), mine.end(), c) != mine.end()) continue;
-          if (pass == 0 && stamp[static_cast<std::size_t>(c)] == v) continue;
-          const std::size_t free_sockets = row.size() < static_cast<std::size_t>(dc)
-                                               ? static_cast<std::size_t>(dc) - row.size()
-                                               : 0;
-          if (free_sockets == 0) continue;
-          if (free_sockets > most) {
-            most = free_sockets;
-            best.clear();
-          }
-          if (free_sockets == most) best.push_back(c);
-        }
-      }
-      const int c = best[rng() % best.size()];
-      rows[static_cast<std::size_t>(c)].push_back(v);
-      mine.push_back(c);
-    }
-  }
-  return rows;
-}
+using testing_codes::RegularRows;
+
 
 // Irregular rows of odd length n: variable degrees cycle through 2, 3, 4, 8
 // checks drawn at random; plus a degree-1 check on variable 0 and a check
@@ -167,19 +125,6 @@ std::vector<std::vector<int>> IrregularRows(int n, int m, std::uint32_t seed) {
   return rows;
 }
 
-LdpcGraph GraphOf(const LdpcCode& code) {
-  LdpcGraph g;
-  g.n = code.length();
-  g.m = code.checks();
-  g.edges = code.edges();
-  g.row_start = code.row_start().data();
-  g.edge_variable = code.edge_variable().data();
-  g.col_start = code.col_start().data();
-  g.col_edge = code.col_edge().data();
-  for (int r = 0; r < g.m; ++r) g.max_row_degree = std::max(g.max_row_degree, code.row_degree(r));
-  for (int v = 0; v < g.n; ++v) g.max_col_degree = std::max(g.max_col_degree, code.col_degree(v));
-  return g;
-}
 
 float Normal(std::mt19937_64& rng) {
   // Box-Muller from two uniforms in (0, 1).
@@ -292,7 +237,7 @@ TEST_P(LdpcKernelPerTarget, DispatchReachesTheTargetUnderTest) {
 // (shift, k = 3): every way ScaleMagnitude evaluates M.
 LdpcFixedArgs ArgsFor(const LdpcCode& code, LdpcLane lane, int variant) {
   LdpcFixedArgs a;
-  a.graph = GraphOf(code);
+  a.graph = LdpcGraphOf(code);
   a.lane = lane;
   a.layered = (variant & 1) != 0;
   a.offset = (variant & 2) != 0;
