@@ -9,9 +9,9 @@
 #include <string>
 #include <vector>
 
-#include "sim/chain.h"
-#include "sim/config.h"
-#include "sim/engine.h"
+#include "sim/chain/chain.h"
+#include "sim/config/config.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 

@@ -10,7 +10,7 @@
 #include <vector>
 
 #include "blocks/core/status.h"
-#include "sim/scheme_result.h"
+#include "sim/chain/scheme_result.h"
 
 namespace capgap {
 

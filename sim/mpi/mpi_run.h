@@ -45,9 +45,9 @@
 #include <vector>
 
 #include "blocks/core/status.h"
-#include "sim/chain.h"
-#include "sim/config.h"
-#include "sim/engine.h"
+#include "sim/chain/chain.h"
+#include "sim/config/config.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 

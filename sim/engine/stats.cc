@@ -1,5 +1,5 @@
 // Clopper-Pearson intervals (Boost.Math beta quantiles) and curve crossings.
-#include "sim/stats.h"
+#include "sim/engine/stats.h"
 
 #include <cmath>
 #include <limits>

@@ -1,14 +1,14 @@
 // What AnalyseScheme adds for the figures: the noise-free eye of a shaped
 // scheme, the constellation at the demapper input, and the constrained-
 // capacity curve on the power-bandwidth plane.
-#include "sim/scheme_result.h"
+#include "sim/chain/scheme_result.h"
 
 #include <gtest/gtest.h>
 
 #include <cmath>
 
 #include "analysis/capacity.h"
-#include "sim/engine.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 namespace {

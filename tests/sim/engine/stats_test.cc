@@ -1,5 +1,5 @@
 // Clopper-Pearson intervals and curve-crossing interpolation.
-#include "sim/stats.h"
+#include "sim/engine/stats.h"
 
 #include <cmath>
 #include <vector>

@@ -1,5 +1,5 @@
 // Build facts, injected by CMake as compile definitions.
-#include "sim/build_info.h"
+#include "sim/io/build_info.h"
 
 namespace capgap {
 

@@ -7,7 +7,7 @@
 // supervises (interrupt flag, exchange polling, progress, checkpoints) and
 // sleeps on a condition variable in between, so callbacks never stall a
 // worker and a slow checkpoint write costs no simulation time.
-#include "sim/engine.h"
+#include "sim/engine/engine.h"
 
 #include <chrono>
 #include <algorithm>

@@ -6,7 +6,7 @@
 // error. Counts must be identical, unit by unit, at several Eb/N0 values,
 // frame sizes (including odd ones), seeds and units, on the dispatched and on
 // the forced scalar kernels.
-#include "sim/chain.h"
+#include "sim/chain/chain.h"
 
 #include <gtest/gtest.h>
 
@@ -19,7 +19,7 @@
 #include "blocks/core/rng_stream.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/source/bit_source.h"
-#include "sim/config.h"
+#include "sim/config/config.h"
 
 namespace capgap {
 namespace {

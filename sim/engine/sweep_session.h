@@ -10,7 +10,7 @@
 // appended points and new schemes start at unit 0; the scheme-ending rule
 // (no error, BER below ber_floor) is re-applied to the final counts, so a
 // scheme that ended early under old settings goes on if it no longer would.
-// CheckResumable (sim/checkpoint.h) must have accepted the config first.
+// CheckResumable (sim/io/checkpoint.h) must have accepted the config first.
 #ifndef CAPGAP_SIM_SWEEP_SESSION_H_
 #define CAPGAP_SIM_SWEEP_SESSION_H_
 
@@ -19,10 +19,10 @@
 #include <string>
 #include <vector>
 
-#include "sim/chain.h"
-#include "sim/checkpoint.h"
-#include "sim/config.h"
-#include "sim/engine.h"
+#include "sim/chain/chain.h"
+#include "sim/io/checkpoint.h"
+#include "sim/config/config.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 

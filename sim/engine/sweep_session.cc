@@ -1,7 +1,7 @@
 // Session loop: recorded prefixes in, points in order, checkpoint out.
-#include "sim/sweep_session.h"
+#include "sim/engine/sweep_session.h"
 
-#include "sim/curves_file.h"
+#include "sim/io/curves_file.h"
 
 namespace capgap {
 namespace {

@@ -1,5 +1,5 @@
 // Theory grid, capacity limits and summary figures of one scheme.
-#include "sim/scheme_result.h"
+#include "sim/chain/scheme_result.h"
 
 #include <algorithm>
 #include <cmath>

@@ -1,7 +1,7 @@
 // Config loading: INI text -> (section.key, value) pairs via
 // Boost.Program_options, overrides, then typed validation of every key with
 // messages of the form "FILE: KEY = VALUE: RULE".
-#include "sim/config.h"
+#include "sim/config/config.h"
 
 #include <algorithm>
 #include <cctype>

@@ -3,7 +3,7 @@
 // write replaced by a kill at any instant leaves a good copy; and the resume
 // rules refuse exactly the changes that would alter recorded streams, naming
 // the key.
-#include "sim/checkpoint.h"
+#include "sim/io/checkpoint.h"
 
 #include <signal.h>
 #include <sys/wait.h>

@@ -1,6 +1,6 @@
 // Chain: source, encoder, mapper, shaping, AWGN, matched filter, demapper,
 // decoder, decisions, error counting.
-#include "sim/chain.h"
+#include "sim/chain/chain.h"
 
 #include <algorithm>
 

@@ -1,7 +1,7 @@
 // Fixed-width summary table: per scheme, Eb/N0 needed at the target BER with
 // its 95 % interval, the uncoded theory value, coding gain, and the gaps to the
 // unconstrained (Shannon) and constellation-constrained limits.
-#include "sim/summary_table.h"
+#include "sim/io/summary_table.h"
 
 #include <cmath>
 #include <cstdio>

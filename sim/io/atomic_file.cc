@@ -1,5 +1,5 @@
 // Crash-safe file replacement with POSIX calls (open/write/fsync/rename).
-#include "sim/atomic_file.h"
+#include "sim/io/atomic_file.h"
 
 #include <fcntl.h>
 #include <unistd.h>

@@ -1,11 +1,11 @@
 // Sweep engine: counts are bit-identical for any thread count, the stopping
 // rule is decided on the prefix of units in index order, and the sweep stops
 // at ber_floor or at a point with no errors.
-#include "sim/engine.h"
+#include "sim/engine/engine.h"
 
 #include <gtest/gtest.h>
 
-#include "sim/config.h"
+#include "sim/config/config.h"
 
 namespace capgap {
 namespace {

@@ -1,5 +1,5 @@
 // HDF5 writer and reader of the curves file (HDF5 C++ API).
-#include "sim/curves_file.h"
+#include "sim/io/curves_file.h"
 
 #include <unistd.h>
 
@@ -9,8 +9,8 @@
 
 #include <H5Cpp.h>
 
-#include "sim/atomic_file.h"
-#include "sim/build_info.h"
+#include "sim/io/atomic_file.h"
+#include "sim/io/build_info.h"
 
 namespace capgap {
 namespace {

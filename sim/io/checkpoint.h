@@ -1,7 +1,7 @@
 // Checkpoint of a run (format "capgap-checkpoint", version 1): what `capgap
 // run --resume` needs to continue a sweep without redoing or double-counting a
 // work unit. A text file beside the output, "<output>.ckpt", replaced
-// crash-safely (sim/atomic_file.h) so the previous good copy survives a kill
+// crash-safely (sim/io/atomic_file.h) so the previous good copy survives a kill
 // at any instant. Layout, documented in the README ("Long runs"):
 //
 //   capgap-checkpoint 1
@@ -31,9 +31,9 @@
 #include <vector>
 
 #include "blocks/core/status.h"
-#include "sim/chain.h"
-#include "sim/config.h"
-#include "sim/engine.h"
+#include "sim/chain/chain.h"
+#include "sim/config/config.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 

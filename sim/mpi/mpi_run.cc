@@ -2,7 +2,7 @@
 // the protocol. Only the thread that called MPI_Init_thread makes MPI calls:
 // on rank 0 that is RunPoint's supervising thread (UnitExchange::Poll), on the
 // workers the main loop below; compute threads never touch MPI.
-#include "sim/mpi_run.h"
+#include "sim/mpi/mpi_run.h"
 
 #include <mpi.h>
 
@@ -18,7 +18,7 @@
 #include <optional>
 #include <thread>
 
-#include "sim/checkpoint.h"
+#include "sim/io/checkpoint.h"
 
 namespace capgap {
 namespace {

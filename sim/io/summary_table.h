@@ -4,7 +4,7 @@
 
 #include <string>
 
-#include "sim/curves_file.h"
+#include "sim/io/curves_file.h"
 
 namespace capgap {
 

@@ -35,33 +35,10 @@
 #include "blocks/shaping/fir_filter.h"
 #include "blocks/shaping/impairments.h"
 #include "blocks/source/bit_source.h"
-#include "sim/config.h"
+#include "sim/config/config.h"
+#include "sim/engine/unit_counts.h"
 
 namespace capgap {
-
-struct UnitCounts {
-  std::uint64_t bits = 0;          // information bits
-  std::uint64_t bit_errors = 0;
-  std::uint64_t frames = 0;
-  std::uint64_t frame_errors = 0;
-  // Iterative decoders (LDPC): iterations summed over frames, the largest
-  // count of one frame, and frames that converged to a wrong codeword (zero
-  // syndrome, info bits wrong). Zero for other schemes.
-  std::uint64_t decoder_iterations = 0;
-  std::uint32_t max_decoder_iterations = 0;
-  std::uint64_t undetected_frame_errors = 0;
-  UnitCounts& operator+=(const UnitCounts& o) {
-    bits += o.bits;
-    bit_errors += o.bit_errors;
-    frames += o.frames;
-    frame_errors += o.frame_errors;
-    decoder_iterations += o.decoder_iterations;
-    max_decoder_iterations = std::max(max_decoder_iterations, o.max_decoder_iterations);
-    undetected_frame_errors += o.undetected_frame_errors;
-    return *this;
-  }
-  bool operator==(const UnitCounts&) const = default;
-};
 
 struct ChainWorkspace {
   // Shaped chains: transmitter and receiver filter state, the frame plus its

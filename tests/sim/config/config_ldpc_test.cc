@@ -2,7 +2,7 @@
 // keys, the shared `decoder` key, and exact messages for bad values.
 #include <gtest/gtest.h>
 
-#include "sim/config.h"
+#include "sim/config/config.h"
 
 namespace capgap {
 namespace {

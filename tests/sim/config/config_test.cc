@@ -1,6 +1,6 @@
 // Config parsing and validation: every error names the file, the key, the
 // value and the rule (exact message checks), and defaults resolve.
-#include "sim/config.h"
+#include "sim/config/config.h"
 
 #include <gtest/gtest.h>
 

@@ -29,16 +29,12 @@
 #include <vector>
 
 #include "blocks/channel/awgn_channel.h"
-#include "sim/chain.h"
-#include "sim/config.h"
-#include "sim/stats.h"
+#include "sim/chain/chain.h"
+#include "sim/config/config.h"
+#include "sim/engine/stats.h"
+#include "sim/engine/unit_counts.h"
 
 namespace capgap {
-
-enum class StopReason { kTargetErrors, kMaxBits, kInterrupted };
-std::string ToString(StopReason reason);
-// Inverse of ToString (checkpoint files).
-Result<StopReason> ParseStopReason(const std::string& word);
 
 struct PointResult {
   double ebno_db = 0;

@@ -1,6 +1,6 @@
 // Checkpoint text format: writer, strict reader (every line checked, FNV-1a
 // checksum over the body), and the resume compatibility rules.
-#include "sim/checkpoint.h"
+#include "sim/io/checkpoint.h"
 
 #include <cerrno>
 #include <cinttypes>
@@ -12,7 +12,7 @@
 #include <set>
 #include <sstream>
 
-#include "sim/atomic_file.h"
+#include "sim/io/atomic_file.h"
 
 namespace capgap {
 namespace {
