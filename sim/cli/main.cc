@@ -125,7 +125,7 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
     InstallSignalHandlers();  // MPI may install handlers of its own during init; ours must win
     if (world.value()->rank() > 0) {
       if (run.scalar) ForceScalarKernels(true);
-      return RunMpiWorkerRank(*world.value(), &g_interrupt);
+      return RunMpiWorkerRank(*world.value(), run.config_path, &g_interrupt);
     }
     MpiPeers peers(*world.value());
     run.peers = &peers;

@@ -60,14 +60,15 @@ void MpiPeers::Finish(SessionEnd end, const std::string& ckpt_path, std::ostream
   }
 }
 
-int RunMpiWorkerRank(MpiWorld& world, const std::atomic<bool>* interrupt) {
+int RunMpiWorkerRank(MpiWorld& world, const std::string& config_path,
+                     const std::atomic<bool>* interrupt) {
   std::string text;
   world.ShareConfig(&text);
   if (text.empty()) return 1;  // rank 0 failed during setup and said why
   RunConfig cfg;
   std::vector<Chain> chains;
   std::string error;
-  auto parsed = ParseRunConfig(text, "configuration from rank 0", {});
+  auto parsed = ParseRunConfig(text, config_path, {});
   if (!parsed.ok()) {
     error = parsed.status().message();
   } else {

@@ -35,8 +35,12 @@ class MpiPeers final : public RunPeers {
 
 // A rank other than 0: receives the config from rank 0, builds the same
 // chains, reports readiness and computes units until rank 0 says STOP.
+// `config_path` is CONFIG of the command line (the same on every rank): the
+// text comes from rank 0, but relative paths in it (an LDPC base matrix or
+// matrix file) are taken from the config file's directory, as on rank 0.
 // Returns the exit status.
-int RunMpiWorkerRank(MpiWorld& world, const std::atomic<bool>* interrupt);
+int RunMpiWorkerRank(MpiWorld& world, const std::string& config_path,
+                     const std::atomic<bool>* interrupt);
 
 }  // namespace capgap
 
