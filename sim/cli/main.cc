@@ -5,13 +5,12 @@
 // handlers and calls Run / RunTheory / RunSummary (sim/run/), which do the work and
 // own every check and message. Exit statuses: sim/run/run.h and the README.
 #include <atomic>
+#include <boost/program_options.hpp>
 #include <csignal>
 #include <cstdlib>
 #include <iostream>
 #include <string>
 #include <vector>
-
-#include <boost/program_options.hpp>
 
 #include "sim/io/build_info.h"
 #include "sim/run/run.h"
@@ -76,18 +75,20 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
   long long threads = 0;
   std::string seed;
   opts.add_options()("help,h", "show this help")(
-      "output,o", po::value(&output), "output HDF5 file in an existing directory (default "
+      "output,o", po::value(&output),
+      "output HDF5 file in an existing directory (default "
       "results/<config name>.h5, creating results/); its checkpoint is FILE.ckpt")(
-      "resume", "continue the run recorded in FILE.ckpt (finished points are kept; with larger "
-      "target_errors/max_bits or more Eb/N0 points it extends them); starts fresh if there is none")(
-      "set", po::value(&run.overrides)->composing(),
-      "override a config key, e.g. --set sweep.target_errors=500 or "
-      "--set scheme.qpsk.frame_bits=4096 (repeatable)")(
-      "threads", po::value(&threads), "worker threads in [0, 4096] (0: all cores; overrides "
-      "sweep.threads)")(
-      "seed", po::value(&seed), "master seed, an integer >= 0 (overrides sweep.seed)")(
-      "quiet,q", "no progress on stderr")(
-      "scalar", "force the portable scalar kernels (no SIMD)");
+      "resume",
+      "continue the run recorded in FILE.ckpt (finished points are kept; with larger "
+      "target_errors/max_bits or more Eb/N0 points it extends them); starts fresh if there is "
+      "none")("set", po::value(&run.overrides)->composing(),
+              "override a config key, e.g. --set sweep.target_errors=500 or "
+              "--set scheme.qpsk.frame_bits=4096 (repeatable)")(
+      "threads", po::value(&threads),
+      "worker threads in [0, 4096] (0: all cores; overrides "
+      "sweep.threads)")("seed", po::value(&seed),
+                        "master seed, an integer >= 0 (overrides sweep.seed)")(
+      "quiet,q", "no progress on stderr")("scalar", "force the portable scalar kernels (no SIMD)");
   po::options_description hidden;
   hidden.add_options()("config", po::value(&run.config_path));
   po::options_description all;
@@ -137,20 +138,24 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
 
 // ------------------------------------------------------------------ theory
 int CmdTheory(int argc, char** argv) {
-  po::options_description opts("capgap theory (--modulation NAME --ebno-db RANGE | --bandwidth HZ --snr-db X)");
+  po::options_description opts(
+      "capgap theory (--modulation NAME --ebno-db RANGE | --bandwidth HZ --snr-db X)");
   TheoryOptions theory;
   std::string modulation, range;
   double rate = 1, bandwidth = 0, snr_db = 0;
   opts.add_options()("help,h", "show this help")(
-      "modulation", po::value(&modulation), "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam")(
-      "ebno-db", po::value(&range), "Eb/N0 points in [-100, 100] dB: START:STEP:STOP (inclusive) "
-      "or a comma list")(
-      "rate", po::value(&rate), "code rate R in [1e-6, 1] for the limits (info bits per symbol R m)")(
+      "modulation", po::value(&modulation),
+      "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam")(
+      "ebno-db", po::value(&range),
+      "Eb/N0 points in [-100, 100] dB: START:STEP:STOP (inclusive) "
+      "or a comma list")("rate", po::value(&rate),
+                         "code rate R in [1e-6, 1] for the limits (info bits per symbol R m)")(
       "csv", "machine-readable output: '# key = value' lines, then CSV")(
-      "bandwidth", po::value(&bandwidth), "bandwidth in (0, 1e15] Hz (Shannon-Hartley capacity; "
-      "not with the options above)")(
-      "snr-db", po::value(&snr_db), "signal-to-noise ratio in [-100, 100] dB (Shannon-Hartley "
-      "capacity)");
+      "bandwidth", po::value(&bandwidth),
+      "bandwidth in (0, 1e15] Hz (Shannon-Hartley capacity; "
+      "not with the options above)")("snr-db", po::value(&snr_db),
+                                     "signal-to-noise ratio in [-100, 100] dB (Shannon-Hartley "
+                                     "capacity)");
   po::variables_map vm;
   try {
     po::store(po::command_line_parser(argc, argv).options(opts).run(), vm);

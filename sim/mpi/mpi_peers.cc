@@ -26,7 +26,8 @@ Status MpiPeers::Start(const std::string& config_text, std::vector<std::string>*
   for (int r = 1; r < world_.size(); ++r) {
     if (!errors[static_cast<std::size_t>(r)].empty()) {
       coordinator_->Shutdown(1, 10);
-      return Status::Error("rank " + std::to_string(r) + ": " + errors[static_cast<std::size_t>(r)]);
+      return Status::Error("rank " + std::to_string(r) + ": " +
+                           errors[static_cast<std::size_t>(r)]);
     }
   }
   for (int r = 1; r < world_.size(); ++r) {
@@ -55,7 +56,8 @@ void MpiPeers::Finish(SessionEnd end, const std::string& ckpt_path, std::ostream
                                                               : 1;
   if (!coordinator_->failure().empty()) world_.Abort(kExitStopped);  // said by Run
   if (!coordinator_->Shutdown(worker_status, 10)) {
-    err << "capgap: a rank did not answer STOP; checkpoint " << ckpt_path << " saved\n" << std::flush;
+    err << "capgap: a rank did not answer STOP; checkpoint " << ckpt_path << " saved\n"
+        << std::flush;
     world_.Abort(end == SessionEnd::kComplete ? 1 : kExitStopped);
   }
 }

@@ -47,21 +47,21 @@ class ProgressPrinter {
 
   void Update(const Progress& p) {
     if (!enabled()) return;
-    const double f_err = static_cast<double>(p.counts.bit_errors) / static_cast<double>(p.target_errors);
+    const double f_err =
+        static_cast<double>(p.counts.bit_errors) / static_cast<double>(p.target_errors);
     const double f_bits = static_cast<double>(p.counts.bits) / static_cast<double>(p.max_bits);
     const double f = std::min(1.0, std::max(f_err, f_bits));
     char eta[32] = "?";
     if (f > 0) std::snprintf(eta, sizeof eta, "%.0fs", p.seconds * (1 - f) / f);
     char line[512];
-    std::snprintf(line, sizeof line,
-                  "%s[%s] point %zu/%zu  Eb/N0 %6.2f dB  errors %llu/%llu  bits %.3g  "
-                  "%.1f Mbit/s  ETA %s%s",
-                  mode_ == ProgressMode::kBar ? "\r\033[K" : "", p.scheme->c_str(),
-                  p.point_index + 1, p.point_count, p.ebno_db,
-                  static_cast<unsigned long long>(p.counts.bit_errors),
-                  static_cast<unsigned long long>(p.target_errors),
-                  static_cast<double>(p.counts.bits), p.bits_per_second / 1e6, eta,
-                  mode_ == ProgressMode::kLines ? "\n" : "");
+    std::snprintf(
+        line, sizeof line,
+        "%s[%s] point %zu/%zu  Eb/N0 %6.2f dB  errors %llu/%llu  bits %.3g  "
+        "%.1f Mbit/s  ETA %s%s",
+        mode_ == ProgressMode::kBar ? "\r\033[K" : "", p.scheme->c_str(), p.point_index + 1,
+        p.point_count, p.ebno_db, static_cast<unsigned long long>(p.counts.bit_errors),
+        static_cast<unsigned long long>(p.target_errors), static_cast<double>(p.counts.bits),
+        p.bits_per_second / 1e6, eta, mode_ == ProgressMode::kLines ? "\n" : "");
     err_ << line << std::flush;
     bar_drawn_ = mode_ == ProgressMode::kBar;
   }
@@ -180,7 +180,9 @@ int Run(const RunOptions& o) {
   RunPeers* peers = o.peers && o.peers->size() > 1 ? o.peers : nullptr;
   const int ranks = peers ? peers->size() : 1;
   bool started = false;
-  auto say = [&](const std::string& message) { err << "capgap: " << message << "\n" << std::flush; };
+  auto say = [&](const std::string& message) {
+    err << "capgap: " << message << "\n" << std::flush;
+  };
   // Setup failures must release the peers from their first collective.
   auto fail = [&](const std::string& message, int code = kExitFailed) {
     if (peers && !started) {
@@ -217,7 +219,8 @@ int Run(const RunOptions& o) {
     auto stored = ReadCheckpoint(ckpt_path);
     if (o.resume) {
       if (!stored.ok()) return fail("cannot resume: " + stored.status().message());
-      if (Status s = CheckResumable(stored.value(), cfg, ckpt_path); !s.ok()) return fail(s.message());
+      if (Status s = CheckResumable(stored.value(), cfg, ckpt_path); !s.ok())
+        return fail(s.message());
       ckpt = std::move(stored).value();
       resumed = true;
     } else if (stored.ok() && !stored.value().complete) {
@@ -249,15 +252,16 @@ int Run(const RunOptions& o) {
 
   if (printer.enabled()) {
     char line[256];
-    std::snprintf(line, sizeof line,
-                  "capgap %s: %zu scheme(s), %d process(es) x %d thread(s), kernels %s, seed %llu\n",
-                  ProgramVersion(), chains.size(), ranks, nthreads, NoiseKernelTarget(),
-                  static_cast<unsigned long long>(cfg.sweep.seed));
+    std::snprintf(
+        line, sizeof line,
+        "capgap %s: %zu scheme(s), %d process(es) x %d thread(s), kernels %s, seed %llu\n",
+        ProgramVersion(), chains.size(), ranks, nthreads, NoiseKernelTarget(),
+        static_cast<unsigned long long>(cfg.sweep.seed));
     err << line;
     if (AssertionsEnabled()) err << "note: assertions are on (debug build): slow\n";
     if (resumed) {
-      err << "resuming from " << ckpt_path << ": " << ckpt.FinishedPoints() << " point(s) finished, "
-          << ckpt.RecordedPoints() << " recorded\n";
+      err << "resuming from " << ckpt_path << ": " << ckpt.FinishedPoints()
+          << " point(s) finished, " << ckpt.RecordedPoints() << " recorded\n";
     }
     err << std::flush;
   }

@@ -80,12 +80,12 @@ enum class ProgressMode {
 };
 
 struct RunOptions {
-  std::string config_path;               // CONFIG
-  std::vector<std::string> overrides;    // --set KEY=VALUE, in command-line order
-  std::optional<std::string> output;     // -o; unset: results/<config stem>.h5
-  bool resume = false;                   // --resume
-  std::optional<long long> threads;      // --threads N, in [0, kMaxThreadsOption]
-  std::optional<std::string> seed;       // --seed S as typed: an integer in [0, 2^64 - 1]
+  std::string config_path;             // CONFIG
+  std::vector<std::string> overrides;  // --set KEY=VALUE, in command-line order
+  std::optional<std::string> output;   // -o; unset: results/<config stem>.h5
+  bool resume = false;                 // --resume
+  std::optional<long long> threads;    // --threads N, in [0, kMaxThreadsOption]
+  std::optional<std::string> seed;     // --seed S as typed: an integer in [0, 2^64 - 1]
   ProgressMode progress = ProgressMode::kAuto;
   bool scalar = false;  // --scalar: ForceScalarKernels(true) (process-wide, stays on)
   // Set (e.g. by a signal handler) to stop: checkpoint saved, status 75.

@@ -79,7 +79,8 @@ int RunTheory(const TheoryOptions& o) {
     return usage("theory: need --modulation and --ebno-db (or --bandwidth and --snr-db)");
   }
   auto mod = ParseModulation(*o.modulation);
-  if (!mod.ok()) return usage("theory: --modulation = '" + *o.modulation + "': " + mod.status().message());
+  if (!mod.ok())
+    return usage("theory: --modulation = '" + *o.modulation + "': " + mod.status().message());
   const double rate = o.rate.value_or(1.0);
   if (auto e = RangeError("--rate", rate, kTheoryMinRate, 1.0, " (code rate)"); !e.empty()) {
     return usage(e);
@@ -111,8 +112,9 @@ int RunTheory(const TheoryOptions& o) {
   if (o.csv) {
     out << "# modulation = " << name << "\n"
         << Format("# code_rate = %.6g\n# info_bits_per_symbol = %.6g\n", rate, rho)
-        << "# shannon_ebno_db = " << fmt(shannon) << "\n# constrained_ebno_db = " << fmt(constrained)
-        << "\n# bicm_ebno_db = " << fmt(bicm) << "\nebno_db,esno_db,ber,ser\n";
+        << "# shannon_ebno_db = " << fmt(shannon)
+        << "\n# constrained_ebno_db = " << fmt(constrained) << "\n# bicm_ebno_db = " << fmt(bicm)
+        << "\nebno_db,esno_db,ber,ser\n";
   } else {
     out << name << ", uncoded BER/SER on AWGN (exact, Gray labelling)\n"
         << Format("limits at rho = R m = %.4g information bits per symbol (eta = rho):\n", rho)

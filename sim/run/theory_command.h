@@ -32,8 +32,8 @@ struct TheoryOptions {
   std::optional<double> rate;             // --rate (default 1)
   bool csv = false;                       // --csv
   // Shannon-Hartley.
-  std::optional<double> bandwidth_hz;     // --bandwidth
-  std::optional<double> snr_db;           // --snr-db
+  std::optional<double> bandwidth_hz;  // --bandwidth
+  std::optional<double> snr_db;        // --snr-db
   std::ostream* out = &std::cout;
   std::ostream* err = &std::cerr;
 };

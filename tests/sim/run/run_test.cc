@@ -7,6 +7,7 @@
 // previous outputs byte for byte intact.
 #include "sim/run/run.h"
 
+#include <gtest/gtest.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -18,8 +19,6 @@
 #include <sstream>
 #include <string>
 #include <vector>
-
-#include <gtest/gtest.h>
 
 #include "sim/io/checkpoint.h"
 #include "sim/io/curves_file.h"
@@ -173,7 +172,8 @@ TEST(Run, BadConfigGives1WithOneLineOnTheErrorStreamAndNoFile) {
   o.overrides.push_back("sweep.target_errors=-5");
   Outcome r = RunCaptured(o);
   EXPECT_EQ(r.status, kExitFailed);
-  EXPECT_EQ(r.err, "capgap: " + TinyConfig() + ": sweep.target_errors = '-5': must be an integer > 0\n");
+  EXPECT_EQ(r.err,
+            "capgap: " + TinyConfig() + ": sweep.target_errors = '-5': must be an integer > 0\n");
   EXPECT_EQ(r.out, "");
   o = Tiny(dir / "bad.h5");
   o.config_path = (dir / "missing.ini").string();
@@ -199,9 +199,7 @@ TEST(Run, RefusedArgumentsHaveOneStatusRuleAndLeavePreviousOutputsIntact) {
   const fs::path h5 = dir / "prev.h5";
   ASSERT_EQ(RunCaptured(Tiny(h5)).status, kExitDone);
   fs::create_directories(dir / "sub");
-  {
-    std::ofstream(dir / "plain.txt") << "not a directory\n";
-  }
+  { std::ofstream(dir / "plain.txt") << "not a directory\n"; }
   const std::string threads_rule = ": must be an integer in [0, 4096] (0: all cores)\n";
   const std::string seed_rule = ": must be an integer in [0, 18446744073709551615]\n";
   const std::vector<Refusal> cases = {
@@ -216,28 +214,33 @@ TEST(Run, RefusedArgumentsHaveOneStatusRuleAndLeavePreviousOutputsIntact) {
       {"--seed 2^64", [](RunOptions& o, const fs::path&) { o.seed = "18446744073709551616"; },
        kExitUsage,
        [&](const fs::path&) { return "capgap: run: --seed = '18446744073709551616'" + seed_rule; }},
-      {"--set without =", [](RunOptions& o, const fs::path&) { o.overrides.push_back("sweep.seed"); },
-       kExitUsage,
+      {"--set without =",
+       [](RunOptions& o, const fs::path&) { o.overrides.push_back("sweep.seed"); }, kExitUsage,
        [](const fs::path&) {
-         return std::string("capgap: run: --set 'sweep.seed': expected KEY=VALUE, e.g. --set "
-                            "sweep.target_errors=500\n");
+         return std::string(
+             "capgap: run: --set 'sweep.seed': expected KEY=VALUE, e.g. --set "
+             "sweep.target_errors=500\n");
        }},
       {"--set =5", [](RunOptions& o, const fs::path&) { o.overrides.push_back("=5"); }, kExitUsage,
        [](const fs::path&) {
-         return std::string("capgap: run: --set '=5': expected KEY=VALUE, e.g. --set "
-                            "sweep.target_errors=500\n");
+         return std::string(
+             "capgap: run: --set '=5': expected KEY=VALUE, e.g. --set "
+             "sweep.target_errors=500\n");
        }},
       {"-o ''", [](RunOptions& o, const fs::path&) { o.output = ""; }, kExitUsage,
        [](const fs::path&) {
-         return std::string("capgap: run: -o '': must name the output file, e.g. -o "
-                            "results/curves.h5\n");
+         return std::string(
+             "capgap: run: -o '': must name the output file, e.g. -o "
+             "results/curves.h5\n");
        }},
       {"-o DIR/", [](RunOptions& o, const fs::path& d) { o.output = (d / "sub").string() + "/"; },
        kExitUsage,
        [](const fs::path& d) {
          const std::string s = (d / "sub").string() + "/";
-         return "capgap: run: -o '" + s + "': ends in '/', which names a directory; give a file "
-                "name, e.g. -o " + s + "curves.h5\n";
+         return "capgap: run: -o '" + s +
+                "': ends in '/', which names a directory; give a file "
+                "name, e.g. -o " +
+                s + "curves.h5\n";
        }},
       {"-o DIR", [](RunOptions& o, const fs::path& d) { o.output = (d / "sub").string(); },
        kExitFailed,
@@ -246,7 +249,8 @@ TEST(Run, RefusedArgumentsHaveOneStatusRuleAndLeavePreviousOutputsIntact) {
          return "capgap: run: -o '" + s + "': is a directory; give a file name, e.g. " + s +
                 "/curves.h5\n";
        }},
-      {"-o MISSING/x.h5", [](RunOptions& o, const fs::path& d) { o.output = (d / "no" / "x.h5").string(); },
+      {"-o MISSING/x.h5",
+       [](RunOptions& o, const fs::path& d) { o.output = (d / "no" / "x.h5").string(); },
        kExitFailed,
        [](const fs::path& d) {
          return "capgap: run: -o '" + (d / "no" / "x.h5").string() + "': directory '" +

@@ -5,13 +5,13 @@
 // themselves are accepted and give finite numbers.
 #include "sim/run/theory_command.h"
 
+#include <gtest/gtest.h>
+
 #include <cmath>
 #include <limits>
 #include <sstream>
 #include <string>
 #include <vector>
-
-#include <gtest/gtest.h>
 
 #include "sim/run/run.h"
 
@@ -103,7 +103,8 @@ TEST(Theory, ConflictingGroupsAreRefusedNamingBoth) {
   TheoryOptions half;
   half.bandwidth_hz = 1e6;
   ExpectUsage(half, "theory: --bandwidth and --snr-db go together");
-  ExpectUsage(TheoryOptions{}, "theory: need --modulation and --ebno-db (or --bandwidth and --snr-db)");
+  ExpectUsage(TheoryOptions{},
+              "theory: need --modulation and --ebno-db (or --bandwidth and --snr-db)");
 }
 
 // Shannon-Hartley: B = 1 MHz at 20 dB gives 1e6 log2(101) = 6.658 Mbit/s (arithmetic).
