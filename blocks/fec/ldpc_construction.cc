@@ -10,6 +10,7 @@
 #include <numeric>
 #include <system_error>
 
+#include "blocks/core/hash.h"
 #include "blocks/fec/ldpc_matrix_file.h"
 
 namespace capgap {
@@ -17,29 +18,6 @@ namespace {
 
 using Index = std::size_t;
 Index U(int i) { return static_cast<Index>(i); }
-
-// splitmix64 (G. L. Steele, D. Lea, C. H. Flood, "Fast splittable
-// pseudorandom number generators", OOPSLA 2014; constants as in S. Vigna's
-// public-domain splitmix64.c, from memory). Local, seeded, portable.
-class SplitMix64 {
- public:
-  explicit SplitMix64(std::uint64_t seed) : state_(seed) {}
-  std::uint64_t Next() {
-    std::uint64_t z = (state_ += 0x9E3779B97F4A7C15ull);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-    return z ^ (z >> 31);
-  }
-  // Uniform in [0, bound) by multiply-shift of the top 32 bits (bias below
-  // bound / 2^32, irrelevant for tie breaking). REQUIRES 0 < bound < 2^32.
-  int Below(int bound) {
-    const std::uint64_t hi = Next() >> 32;
-    return static_cast<int>((hi * static_cast<std::uint64_t>(bound)) >> 32);
-  }
-
- private:
-  std::uint64_t state_;
-};
 
 std::string_view TrimSpaces(std::string_view s) {
   while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
@@ -402,7 +380,7 @@ Result<LdpcCode> BuildPegCode(const PegSpec& spec) {
   std::vector<int> order, level_start, ties;
   order.reserve(U(m));
   ties.reserve(U(m));
-  SplitMix64 rng(spec.seed);
+  SplitMix64Generator rng(spec.seed);
   int stamp = 0;
   int best = INT_MAX;
   auto consider = [&](int c) {
@@ -705,7 +683,7 @@ Result<BaseMatrix> DesignDualDiagonalBaseMatrix(const DualDiagonalDesign& design
   if (design.shift_a < 0 || design.shift_b < 0) {
     return Status::Error(ctx + "parity shifts must be >= 0");
   }
-  SplitMix64 rng(design.seed);
+  SplitMix64Generator rng(design.seed);
   std::vector<int> a(U(rr) * U(cc), -1);  // assigned shifts, -1 = none (yet)
   auto at = [&](int r, int c) -> int& { return a[U(r) * U(cc) + U(c)]; };
   std::vector<std::uint8_t> forbidden(U(z));
