@@ -11,8 +11,9 @@
 //                  indices that are multiples of S).
 // Both are exact causal convolutions; the direct and FFT paths compute the
 // same numbers up to float rounding (fir_filter_test.cc). Overlap-save: block
-// FFT of size N = bit_ceil(4 L) for L taps, B = N - L + 1 new samples per
-// block, the last L - 1 input samples kept as history (Oppenheim & Schafer,
+// FFT of size N = bit_ceil(4 L) for L taps (at least bit_ceil(L - 1 + S), so
+// that a block holds a symbol period), B = N - L + 1 new samples per block,
+// the last L - 1 input samples kept as history (Oppenheim & Schafer,
 // Discrete-Time Signal Processing, 3rd ed., sec. 8.7; from memory). Plans are
 // FFTW_ESTIMATE (repeatable) and are made in Create().
 //
@@ -123,6 +124,7 @@ class FirWorkspace {
   void Reset();
 
  private:
+  friend class StreamingFir;
   friend class InterpolatingFir;
   friend class DecimatingFir;
   std::vector<cf32> line_;     // direct: [history | chunk | lookahead]; FFT: history only
@@ -131,7 +133,41 @@ class FirWorkspace {
   FftwBuffer freq_;            // FFT path: N bins
 };
 
-class InterpolatingFir {
+// What the two streaming filters share: the validated taps and factor, the
+// resolved method, the overlap-save kernel, the workspace set-up and the
+// overlap-save block loop. Not made on its own (no public constructor).
+class StreamingFir {
+ public:
+  int factor() const { return factor_; }
+  int tap_count() const { return static_cast<int>(taps_.size()); }
+  FirMethod method() const { return method_; }  // kDirect or kFft, never kAuto
+  int fft_size() const;                          // 0 on the direct path
+  std::span<const float> taps() const { return taps_; }
+
+ protected:
+  StreamingFir() = default;
+  // Validates (who names the filter in the message), resolves kAuto, keeps
+  // the taps and, on the FFT path, makes the overlap-save kernel.
+  Status Init(std::span<const float> taps, int factor, FirMethod method, bool decimating,
+              const char* who);
+  // Direct path: a zeroed line of line_size samples, the first history of
+  // them the history. FFT path: history L - 1 and the two transform buffers.
+  FirWorkspace MakeDirectWorkspace(std::size_t history, std::size_t line_size) const;
+  FirWorkspace MakeFftWorkspace() const;
+  // Overlap-save over `symbols` symbols in chunks of B / S (fir_filter.cc).
+  // Per chunk [c0, c0 + cs): fill(t, count, c0, cs) writes the count = N - H
+  // transform inputs after the history H; drain(t, c0, cs) reads the outputs
+  // from t (the first sample after the history) on.
+  template <typename Fill, typename Drain>
+  void OverlapSave(std::size_t symbols, FirWorkspace& ws, Fill&& fill, Drain&& drain) const;
+
+  int factor_ = 1;
+  FirMethod method_ = FirMethod::kDirect;
+  std::vector<float> taps_;
+  std::shared_ptr<const FftKernel> fft_;
+};
+
+class InterpolatingFir : public StreamingFir {
  public:
   // taps non-empty, finite; factor S >= 1; method kAuto / kDirect / kFft.
   static Result<InterpolatingFir> Create(std::span<const float> taps, int factor,
@@ -140,23 +176,13 @@ class InterpolatingFir {
   // REQUIRES: out.size() == factor() * in.size(); ws from MakeWorkspace().
   void Process(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
 
-  int factor() const { return factor_; }
-  int tap_count() const { return static_cast<int>(taps_.size()); }
-  FirMethod method() const { return method_; }  // kDirect or kFft, never kAuto
-  int fft_size() const;                          // 0 on the direct path
-  std::span<const float> taps() const { return taps_; }
-
  private:
   void ProcessDirect(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
   void ProcessFft(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
-  int factor_ = 1;
-  FirMethod method_ = FirMethod::kDirect;
-  std::vector<float> taps_;
   FirInterpolatorPlan direct_;      // direct path: the kernels' tap layout
-  std::shared_ptr<const FftKernel> fft_;
 };
 
-class DecimatingFir {
+class DecimatingFir : public StreamingFir {
  public:
   static Result<DecimatingFir> Create(std::span<const float> taps, int factor,
                                       FirMethod method = FirMethod::kAuto);
@@ -164,20 +190,10 @@ class DecimatingFir {
   // REQUIRES: in.size() == factor() * out.size().
   void Process(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
 
-  int factor() const { return factor_; }
-  int tap_count() const { return static_cast<int>(taps_.size()); }
-  FirMethod method() const { return method_; }
-  int fft_size() const;
-  std::span<const float> taps() const { return taps_; }
-
  private:
   void ProcessDirect(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
   void ProcessFft(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
-  int factor_ = 1;
-  FirMethod method_ = FirMethod::kDirect;
-  std::vector<float> taps_;
   FirDecimatorPlan direct_;         // direct path: the kernels' tap layout
-  std::shared_ptr<const FftKernel> fft_;
 };
 
 // Symbols -> S samples per symbol through the unit-energy pulse.
