@@ -89,6 +89,7 @@
 #include <numbers>
 #include <unsupported/Eigen/FFT>
 
+#include "analysis/bisection.h"
 #include "analysis/capacity.h"
 
 namespace capgap::analysis {
@@ -341,15 +342,7 @@ Result<double> BisectThreshold(const EdgeDistribution& e, double tolerance, Deco
       return Status::Error(Format("density evolution fails even at sigma = %.3g", lo));
     }
   }
-  while (hi - lo > tolerance) {
-    const double mid = 0.5 * (lo + hi);
-    if (decodes(mid)) {
-      lo = mid;
-    } else {
-      hi = mid;
-    }
-  }
-  return lo;
+  return Bisect(lo, hi, tolerance, decodes).lo;
 }
 
 // ----------------------------------------------- Gaussian approximation --
