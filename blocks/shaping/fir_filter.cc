@@ -11,8 +11,8 @@
 
 namespace capgap {
 
-// Crossover of kAuto at S = 4 and the rule for every S: see the measured
-// table in fir_filter.h.
+// Crossover of kAuto at S = 4 and the rule for every S: fir_filter.h; the
+// measurements behind it: docs/performance_notes.md.
 const int kFftMinTapsPerPhase = 161;
 
 int FftMinTapsPerPhase(int factor, bool decimating) {
