@@ -11,6 +11,7 @@
 #include <system_error>
 
 #include "blocks/core/hash.h"
+#include "blocks/core/text.h"
 #include "blocks/fec/ldpc_matrix_file.h"
 
 namespace capgap {
@@ -18,21 +19,6 @@ namespace {
 
 using Index = std::size_t;
 Index U(int i) { return static_cast<Index>(i); }
-
-std::string_view TrimSpaces(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
-  return s;
-}
-
-std::string Quoted(std::string_view w) {
-  std::string s;
-  s.reserve(w.size() + 2);
-  s += '\'';
-  s.append(w);
-  s += '\'';
-  return s;
-}
 
 std::string JoinCounts(const std::vector<int>& by_degree) {
   std::string s;
@@ -229,7 +215,7 @@ std::string VariableDegrees::ToString() const {
 
 Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
   const std::string ctx = "degrees " + Quoted(text) + ": ";
-  const std::string_view all = TrimSpaces(text);
+  const std::string_view all = TrimBlanks(text);
   if (all.empty()) {
     return Status::Error(ctx +
                          "empty; expected a degree such as '3' or degree:fraction words "
@@ -238,7 +224,7 @@ Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
   std::vector<std::string_view> words;
   for (std::size_t pos = 0;;) {
     const std::size_t comma = all.find(',', pos);
-    words.push_back(TrimSpaces(
+    words.push_back(TrimBlanks(
         all.substr(pos, comma == std::string_view::npos ? std::string_view::npos : comma - pos)));
     if (comma == std::string_view::npos) break;
     pos = comma + 1;
@@ -271,8 +257,8 @@ Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
       return Status::Error(ctx + "word " + Quoted(w) +
                            ": expected degree:fraction (only a lone degree may omit the fraction)");
     }
-    const std::string_view dtext = TrimSpaces(w.substr(0, colon));
-    const std::string_view ftext = TrimSpaces(w.substr(colon + 1));
+    const std::string_view dtext = TrimBlanks(w.substr(0, colon));
+    const std::string_view ftext = TrimBlanks(w.substr(colon + 1));
     int d = 0;
     Status s = parse_degree(w, dtext, &d);
     if (!s.ok()) return s;
