@@ -193,6 +193,22 @@ double NewtonRefine(const ChebyshevSegment& seg, double log_y, double x, double 
   return x;
 }
 
+// Newton for log_phi(x) = log_y with x kept >= floor, from x, for a
+// log_phi(x, &derivative) that returns ln phi(x) and sets d ln phi / dx;
+// stops when a step moves x by at most rel_tol x, or after `steps` steps.
+template <typename LogPhi>
+double NewtonAboveFloor(LogPhi&& log_phi, double log_y, double x, double floor, int steps,
+                        double rel_tol) {
+  for (int k = 0; k < steps; ++k) {
+    double derivative = 0.0;
+    const double f = log_phi(x, &derivative) - log_y;
+    const double next = std::max(floor, x - f / derivative);
+    if (std::abs(next - x) <= rel_tol * x) return next;
+    x = next;
+  }
+  return x;
+}
+
 // Root in the segment from linear interpolation of its end values.
 double NewtonInverse(const ChebyshevSegment& seg, double log_y, int steps) {
   double x = seg.a + (seg.b - seg.a) * (log_y - seg.log_phi_a) / (seg.log_phi_b - seg.log_phi_a);
@@ -378,15 +394,8 @@ double PhiFitInverseLog(double log_y) {
   if (!(log_y < 0.0)) return 0.0;
   const double log_small_end = -kFitA * std::pow(kFitBreak, kFitB) + kFitC;
   if (log_y >= log_small_end) return std::pow((kFitC - log_y) / kFitA, 1.0 / kFitB);
-  double x = std::max(kFitBreak, -4.0 * log_y);
-  for (int k = 0; k < 100; ++k) {
-    double derivative = 0.0;
-    const double f = LogPhiFitLarge(x, &derivative) - log_y;
-    const double next = std::max(kFitBreak, x - f / derivative);
-    if (std::abs(next - x) <= 1e-14 * x) return next;
-    x = next;
-  }
-  return x;
+  return NewtonAboveFloor(LogPhiFitLarge, log_y, std::max(kFitBreak, -4.0 * log_y), kFitBreak,
+                          100, 1e-14);
 }
 
 // ln(1 - (1 - s)^n) for s = exp(log_s) in (0, 1], n >= 1.
@@ -810,15 +819,8 @@ double GaussianApproxPhiInverseLog(double log_y) {
   const std::vector<ChebyshevSegment>& segments = GetPhiTable().segments;
   if (log_y <= segments.back().log_phi_b) {
     // Newton on the asymptotic series, from the leading term's root.
-    double x = std::max(kPhiTableMax, -4.0 * log_y);
-    for (int k = 0; k < 50; ++k) {
-      double derivative = 0.0;
-      const double f = LogPhiAsymptotic(x, &derivative) - log_y;
-      const double next = std::max(kPhiTableMax, x - f / derivative);
-      if (std::abs(next - x) <= 1e-15 * x) return next;
-      x = next;
-    }
-    return x;
+    return NewtonAboveFloor(LogPhiAsymptotic, log_y, std::max(kPhiTableMax, -4.0 * log_y),
+                            kPhiTableMax, 50, 1e-15);
   }
   std::size_t s = 0;
   while (log_y < segments[s].log_phi_b) ++s;
