@@ -361,6 +361,26 @@ Result<double> BisectThreshold(const EdgeDistribution& e, double tolerance, Deco
   return Bisect(lo, hi, tolerance, decodes).lo;
 }
 
+// A threshold by BisectThreshold as a ThresholdResult: the description is
+// `method_text` followed by the bisection tolerance and, when it applies,
+// the stability-limit note.
+template <typename Decodes>
+Result<ThresholdResult> ThresholdByBisection(const EdgeDistribution& e, double rate,
+                                             double tolerance, DeMethod method,
+                                             const std::string& method_text, Decodes&& decodes) {
+  bool stability_limited = false;
+  Result<double> sigma = BisectThreshold(e, tolerance, decodes, &stability_limited);
+  if (!sigma.ok()) return sigma.status();
+  ThresholdResult result;
+  result.sigma = sigma.value();
+  result.ebno_db = EbnoDb(rate, result.sigma);
+  result.method = method;
+  result.description =
+      method_text + Format("; bisection on sigma to %g%s", tolerance,
+                           stability_limited ? "; threshold = stability limit" : "");
+  return result;
+}
+
 // ----------------------------------------------- Gaussian approximation --
 
 constexpr double kGaSuccessMean = 100.0;
@@ -908,22 +928,14 @@ Result<ThresholdResult> GaussianApproxThreshold(const EdgeDistribution& distribu
     if (options.closed_form_phi) return GaDecodes(lambda, rho, s, LogPhiFit, PhiFitInverseLog);
     return GaDecodes(lambda, rho, s, LogGaussianApproxPhi, GaussianApproxPhiInverseLog);
   };
-  bool stability_limited = false;
-  Result<double> sigma =
-      BisectThreshold(distribution, options.sigma_tolerance, decodes, &stability_limited);
-  if (!sigma.ok()) return sigma.status();
-  ThresholdResult result;
-  result.sigma = sigma.value();
-  result.ebno_db = EbnoDb(rate, result.sigma);
-  result.method = DeMethod::kGaussianApproximation;
-  result.description = Format(
-      "Gaussian approximation of sum-product density evolution (Chung, Richardson, Urbanke 2001), "
-      "phi %s; decodes when the mean check-to-variable LLR reaches %g within %d iterations; "
-      "bisection on sigma to %g%s",
-      options.closed_form_phi ? "by the paper's closed-form fit" : "by quadrature", kGaSuccessMean,
-      kGaMaxIterations, options.sigma_tolerance,
-      stability_limited ? "; threshold = stability limit" : "");
-  return result;
+  return ThresholdByBisection(
+      distribution, rate, options.sigma_tolerance, DeMethod::kGaussianApproximation,
+      Format("Gaussian approximation of sum-product density evolution (Chung, Richardson, Urbanke "
+             "2001), phi %s; decodes when the mean check-to-variable LLR reaches %g within %d "
+             "iterations",
+             options.closed_form_phi ? "by the paper's closed-form fit" : "by quadrature",
+             kGaSuccessMean, kGaMaxIterations),
+      decodes);
 }
 
 Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution, double rate,
@@ -941,22 +953,14 @@ Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution,
                fft_points, kMaxFftPoints));
   }
   QuantizedDensityEvolution de(distribution, options);
-  bool stability_limited = false;
-  Result<double> sigma = BisectThreshold(
-      distribution, options.sigma_tolerance, [&](double s) { return de.Decodes(s); },
-      &stability_limited);
-  if (!sigma.ok()) return sigma.status();
-  ThresholdResult result;
-  result.sigma = sigma.value();
-  result.ebno_db = EbnoDb(rate, result.sigma);
-  result.method = DeMethod::kQuantized;
-  result.description = Format(
-      "quantized sum-product density evolution (Richardson, Shokrollahi, Urbanke 2001; Chung, "
-      "Forney, Richardson, Urbanke 2001): LLR step %g, range +-%g, message error probability "
-      "<= %g within %d iterations; bisection on sigma to %g%s",
-      options.llr_step, options.llr_max, options.target_error_probability, options.max_iterations,
-      options.sigma_tolerance, stability_limited ? "; threshold = stability limit" : "");
-  return result;
+  return ThresholdByBisection(
+      distribution, rate, options.sigma_tolerance, DeMethod::kQuantized,
+      Format("quantized sum-product density evolution (Richardson, Shokrollahi, Urbanke 2001; "
+             "Chung, Forney, Richardson, Urbanke 2001): LLR step %g, range +-%g, message error "
+             "probability <= %g within %d iterations",
+             options.llr_step, options.llr_max, options.target_error_probability,
+             options.max_iterations),
+      [&](double s) { return de.Decodes(s); });
 }
 
 }  // namespace capgap::analysis
