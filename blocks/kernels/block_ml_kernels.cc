@@ -128,7 +128,9 @@ BlockMlTables BlockMlTables::Build(int n, int k, const std::uint64_t* rows, std:
   t.high_masks_.assign(blocks * un, 0u);
   for (std::size_t b = 0; b < blocks; ++b) {
     const std::uint64_t* c = &t.codewords_[(b << t.low_bits_) * kWords];
-    for (int i = 0; i < n; ++i) t.high_masks_[b * un + static_cast<std::size_t>(i)] = SignWord(c, i);
+    for (int i = 0; i < n; ++i) {
+      t.high_masks_[b * un + static_cast<std::size_t>(i)] = SignWord(c, i);
+    }
   }
   return t;
 }

@@ -12,11 +12,14 @@
 #include <random>
 #include <vector>
 
+// clang-format off
 #undef HWY_TARGET_INCLUDE
 #define HWY_TARGET_INCLUDE "tests/blocks/kernels/block_ml_kernels_test.cc"
 #include "hwy/foreach_target.h"  // IWYU pragma: keep
+// foreach_target.h must come before highway.h.
 #include "hwy/highway.h"
 #include "blocks/kernels/block_ml_kernels-inl.h"
+// clang-format on
 
 HWY_BEFORE_NAMESPACE();
 namespace capgap {
@@ -106,8 +109,9 @@ TEST_P(BlockMlKernelPerTarget, DecisionsEqualReferenceForEveryKAndAwkwardN) {
       // shrink to one as n 2^k grows.
       if (k >= 13 && n != k && n != 17 && n != 24 && n != 40 && !(k == 16 && n == 256)) continue;
       const long work = static_cast<long>(n) << k;
-      const std::size_t frames =
-          work <= (1L << 17) ? std::size_t{9} : (work <= (1L << 20) ? std::size_t{3} : std::size_t{1});
+      const std::size_t frames = work <= (1L << 17)
+                                     ? std::size_t{9}
+                                     : (work <= (1L << 20) ? std::size_t{3} : std::size_t{1});
       const int row_kind = (k + n) % 3;
       const std::vector<std::uint64_t> rows = RandomRows(n, k, row_kind, rng);
       const BlockMlTables tables = BlockMlTables::Build(n, k, rows.data(), lanes);
@@ -121,11 +125,11 @@ TEST_P(BlockMlKernelPerTarget, DecisionsEqualReferenceForEveryKAndAwkwardN) {
         const float* llrs = buf.data() + offset;
         std::vector<std::uint32_t> got(frames, 0xDEADBEEFu), want(frames, 0xFEEDFACEu);
         std::vector<std::uint8_t> ws(BlockMlWorkspaceBytes(n, lanes) + 3);
-        ASSERT_TRUE(HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(v, llrs, frames, got.data(),
-                                                          ws.data() + 3));
+        ASSERT_TRUE(
+            HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(v, llrs, frames, got.data(), ws.data() + 3));
         reference::BlockMlDecode(v, llrs, frames, want.data());
-        ASSERT_EQ(got, want) << "target " << hwy::TargetName(GetParam()) << " n=" << n
-                             << " k=" << k << " rows " << row_kind << " llrs " << llr_kind;
+        ASSERT_EQ(got, want) << "target " << hwy::TargetName(GetParam()) << " n=" << n << " k=" << k
+                             << " rows " << row_kind << " llrs " << llr_kind;
         for (const std::uint32_t j : got) ASSERT_LT(j, std::uint32_t{1} << k);
         ++checked;
       }
@@ -144,15 +148,15 @@ TEST_P(BlockMlKernelPerTarget, TiesGoToTheLowestIndex) {
   // is the lowest.
   for (int k : {3, 4}) {
     std::vector<std::uint64_t> rows(static_cast<std::size_t>(k) * kW, 0);
-    rows[0] = 1u;         // 100
-    rows[kW] = 2u;        // 010
-    rows[2 * kW] = 3u;    // 110
+    rows[0] = 1u;       // 100
+    rows[kW] = 2u;      // 010
+    rows[2 * kW] = 3u;  // 110
     const BlockMlTables tables = BlockMlTables::Build(3, k, rows.data(), lanes);
     const std::vector<float> llrs = {0.0f, 0.0f, 5.0f, -1.0f, 0.0f, 0.0f};
     std::vector<std::uint32_t> got(2), want(2);
     std::vector<std::uint8_t> ws(BlockMlWorkspaceBytes(3, lanes));
-    ASSERT_TRUE(
-        HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(tables.view(), llrs.data(), 2, got.data(), ws.data()));
+    ASSERT_TRUE(HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(tables.view(), llrs.data(), 2, got.data(),
+                                                      ws.data()));
     reference::BlockMlDecode(tables.view(), llrs.data(), 2, want.data());
     EXPECT_EQ(want, (std::vector<std::uint32_t>{0u, 1u}));
     EXPECT_EQ(got, want);
