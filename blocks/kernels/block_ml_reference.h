@@ -5,6 +5,7 @@
 #ifndef CAPGAP_BLOCKS_KERNELS_BLOCK_ML_REFERENCE_H_
 #define CAPGAP_BLOCKS_KERNELS_BLOCK_ML_REFERENCE_H_
 
+#include <bit>
 #include <cstddef>
 #include <cstdint>
 #include <limits>
@@ -15,12 +16,17 @@ namespace capgap {
 namespace reference {
 
 // Metric of codeword j: acc = 0; acc += (c_{j,i} ? -L_i : L_i), i = 0..n-1.
+// The negation is written as a flip of the IEEE sign bit (which is what
+// negation is, for every value) so that the loop has no data-dependent
+// branch: with a branch on random codeword bits half the iterations were
+// mispredicted and the oracle ran about 5x slower (measured on the Golay
+// code, tests/bench/block_ml_bench.cc).
 inline float BlockMlMetric(const BlockMlView& v, std::uint32_t j, const float* llr) {
   const std::uint64_t* c = v.codewords + static_cast<std::size_t>(j) * kBlockMlWords;
   float acc = 0.0f;
   for (int i = 0; i < v.n; ++i) {
-    const auto bit = (c[i >> 6] >> (i & 63)) & 1u;
-    acc += bit != 0 ? -llr[i] : llr[i];
+    const auto sign = static_cast<std::uint32_t>((c[i >> 6] >> (i & 63)) & 1u) << 31;
+    acc += std::bit_cast<float>(std::bit_cast<std::uint32_t>(llr[i]) ^ sign);
   }
   return acc;
 }
