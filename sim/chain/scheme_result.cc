@@ -109,6 +109,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   SchemeResult r;
   r.scheme = chain.scheme();
   r.code_rate = chain.code_rate();
+  r.iterative = chain.code().iterative();
   r.info_bits_per_symbol = chain.info_bits_per_symbol();
   // Unshaped chain: ideal Nyquist signalling, eta = rho / (1 + 0). Shaped
   // chain: eta = rho / (measured 99 % bandwidth in symbol rates), with the
@@ -184,7 +185,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   s.gap_to_constrained_db = std::isfinite(r.limits.constrained_ebno_db)
                                 ? s.ebno_at_target_db - r.limits.constrained_ebno_db
                                 : nan;
-  if (r.ldpc.present) {
+  if (r.limits.threshold_present) {
     const Modulation& m = chain.scheme().modulation;
     if (m.family == ModulationFamily::kPsk && m.order <= 4) {
       s.gap_to_threshold_db = s.ebno_at_target_db - r.limits.threshold_ebno_db;

@@ -7,6 +7,8 @@
 
 #include <limits>
 #include <string>
+#include <string_view>
+#include <variant>
 #include <vector>
 
 #include "sim/chain/chain.h"
@@ -19,34 +21,49 @@ struct TheoryCurve {
   std::vector<double> ebno_db;
   std::vector<double> ber_uncoded;
   std::vector<double> ser_uncoded;
-  // Soft-decision union bound of a convolutional code (empty when it does not
-  // apply: uncoded, or a mapper other than BPSK/QPSK).
+  // The code's union bounds on BER and FER on the theory grid (empty when the
+  // family has none or it does not apply to the mapper), and what they
+  // assume.
   std::vector<double> ber_bound;
+  std::vector<double> fer_bound;
   std::string bound_channel;
 };
 
-// What the output records of a convolutional code.
-struct CodeResult {
+// What a code family records about its code, written under /<scheme>/code
+// in the order given: attributes (text, integer, real) and series (int32,
+// uint64, double). The curves writer knows no family; each family's analyse
+// step (sim/families/) fills this.
+struct CodeReport {
+  using Value = std::variant<std::string, int, double>;
+  using Series =
+      std::variant<std::vector<std::int32_t>, std::vector<std::uint64_t>, std::vector<double>>;
+  struct Attribute {
+    std::string name;
+    Value value;
+  };
+  struct Dataset {
+    std::string name;
+    Series values;
+  };
   bool present = false;
-  int free_distance = 0;
-  std::vector<int> spectrum_distance;
-  std::vector<std::uint64_t> spectrum_info_weight;
-  std::vector<std::uint64_t> spectrum_events;
-};
+  std::vector<Attribute> attributes;
+  std::vector<Dataset> datasets;
 
-// What the output records of an LDPC code and its decoder.
-struct LdpcResult {
-  bool present = false;
-  std::string construction;  // peg, qc, file
-  std::string description;   // e.g. "peg n=2016 m=1008 degrees=3 seed=1"
-  int length = 0, info_bits = 0, checks = 0, rank = 0, lifting = 0;
-  int girth = 0;             // 0: no cycle
-  std::string degree_profile;  // "variables 3:2016; checks 6:1008"
-  std::vector<int> variable_nodes_by_degree, check_nodes_by_degree;
-  std::string encoder;         // "dual-diagonal" or "gaussian elimination"
-  std::string decoder, schedule, kernel_target;
-  int max_iterations = 0;
-  double normalization = 0, offset = 0;
+  void Add(std::string name, Value value) {
+    present = true;
+    attributes.push_back({std::move(name), std::move(value)});
+  }
+  void AddSeries(std::string name, Series values) {
+    present = true;
+    datasets.push_back({std::move(name), std::move(values)});
+  }
+  // nullptr when absent.
+  const Value* Find(std::string_view name) const {
+    for (const Attribute& a : attributes) {
+      if (a.name == name) return &a.value;
+    }
+    return nullptr;
+  }
 };
 
 struct Limits {
@@ -59,10 +76,12 @@ struct Limits {
   // symbol and the Eb/N0 it needs (for the comparison chart).
   std::vector<double> constrained_curve_rho;
   std::vector<double> constrained_curve_ebno_db;
-  // LDPC schemes: the belief-propagation threshold of the code's degree
-  // distribution on the binary-input AWGN channel (quantised density
-  // evolution; the Gaussian approximation beside it), and the binary-input
-  // capacity limit at the code rate. NaN otherwise.
+  // Codes with an ensemble threshold (LDPC): the belief-propagation
+  // threshold of the code's degree distribution on the binary-input AWGN
+  // channel (quantised density evolution; the Gaussian approximation beside
+  // it), and the binary-input capacity limit at the code rate. NaN otherwise;
+  // threshold_present says whether the family reports them at all.
+  bool threshold_present = false;
   double threshold_ebno_db = std::numeric_limits<double>::quiet_NaN();
   double threshold_sigma = std::numeric_limits<double>::quiet_NaN();
   std::string threshold_method, threshold_description;
@@ -118,8 +137,9 @@ struct SchemeResult {
   double spectral_efficiency_ideal = 1;  // rho / (1 + rolloff); rho without shaping
   SpectrumResult spectrum;
   SignalViews signal;
-  CodeResult code;
-  LdpcResult ldpc;
+  CodeReport code;
+  // The decoder is iterative: the points carry iteration statistics.
+  bool iterative = false;
   double target_ber = 1e-5;
   std::vector<PointResult> points;
   TheoryCurve theory;

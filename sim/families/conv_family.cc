@@ -63,30 +63,37 @@ Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
 // bound on BER beside the curve where it applies.
 void AnalyseConv(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r) {
   const auto& conv = static_cast<const ConvChannelCode&>(code);
+  const ConvSchemeConfig& c = scheme.conv;
+  auto spectrum = ComputeDistanceSpectrum(conv.code(), 10);
+  if (!spectrum.ok()) return;
+  const DistanceSpectrum& d = spectrum.value();
+  CodeReport& out = r.code;
+  out.Add("free_distance", d.free_distance);
+  out.Add("generators", c.generators);
+  out.Add("constraint_length", c.constraint_length);
+  out.Add("puncture", c.puncture);
+  out.Add("termination", c.termination);
+  out.Add("decoder", c.decoder);
+  out.Add("traceback", c.traceback);
+  out.Add("code_rate_basis",
+          std::string("effective rate: information bits / transmitted coded bits per frame, tail "
+                      "bits and puncturing included"));
+  out.AddSeries("spectrum_distance",
+                std::vector<std::int32_t>(d.distances.begin(), d.distances.end()));
+  out.AddSeries("spectrum_info_weight", d.info_weight);
+  out.AddSeries("spectrum_events", d.num_events);
+  // The bound assumes binary antipodal signalling per coded bit: BPSK, or
+  // Gray QPSK (two independent BPSK channels). Other mappers: omitted.
   const Modulation& mod = scheme.modulation;
-  {
-    auto spectrum = ComputeDistanceSpectrum(conv.code(), 10);
-    if (spectrum.ok()) {
-      const DistanceSpectrum& d = spectrum.value();
-      r.code.present = true;
-      r.code.free_distance = d.free_distance;
-      r.code.spectrum_distance = d.distances;
-      r.code.spectrum_info_weight = d.info_weight;
-      r.code.spectrum_events = d.num_events;
-      // The bound assumes binary antipodal signalling per coded bit: BPSK, or
-      // Gray QPSK (two independent BPSK channels). Other mappers: omitted.
-      const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
-      if (binary) {
-        r.theory.bound_channel =
-            "soft-decision union bound, 10 terms, BPSK/QPSK on AWGN, effective rate (tail "
-            "and puncturing included)";
-        for (double x : r.theory.ebno_db) {
-          r.theory.ber_bound.push_back(std::min(0.5, UnionBoundBer(d, x, r.code_rate)));
-        }
-      }
+  const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
+  if (binary) {
+    r.theory.bound_channel =
+        "soft-decision union bound, 10 terms, BPSK/QPSK on AWGN, effective rate (tail "
+        "and puncturing included)";
+    for (double x : r.theory.ebno_db) {
+      r.theory.ber_bound.push_back(std::min(0.5, UnionBoundBer(d, x, r.code_rate)));
     }
   }
-
 }
 
 }  // namespace capgap

@@ -79,31 +79,37 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
   const auto& ldpc = static_cast<const LdpcChannelCode&>(channel_code);
   const LdpcCode& code = ldpc.code();
   const LdpcSchemeConfig& c = scheme.ldpc;
-  LdpcResult& l = r.ldpc;
-  l.present = true;
-  l.construction = c.construction;
-  l.description = code.description();
-  l.length = code.length();
-  l.info_bits = ldpc.encoder().info_bits();
-  l.checks = code.checks();
-  l.rank = ldpc.encoder().rank();
-  l.lifting = code.lifting();
-  l.girth = Girth(code);
   const DegreeProfile profile = ComputeDegreeProfile(code);
-  l.degree_profile = profile.ToString();
-  l.variable_nodes_by_degree = profile.variable_nodes_by_degree;
-  l.check_nodes_by_degree = profile.check_nodes_by_degree;
-  l.encoder = ldpc.encoder().uses_dual_diagonal() ? "dual-diagonal (linear time)"
-                                                        : "gaussian elimination (dense GF(2))";
   const LdpcDecoderOptions& o = ldpc.decoder().options();
-  l.decoder = ToString(o.algorithm);
-  l.schedule = ToString(o.schedule);
-  l.kernel_target = ldpc.decoder().kernel_target();
-  l.max_iterations = o.max_iterations;
-  l.normalization = o.normalization;
-  l.offset = o.offset;
+  CodeReport& out = r.code;
+  out.Add("construction", c.construction);
+  out.Add("description", code.description());
+  out.Add("length", code.length());
+  out.Add("info_bits", ldpc.encoder().info_bits());
+  out.Add("checks", code.checks());
+  out.Add("rank", ldpc.encoder().rank());
+  out.Add("lifting", code.lifting());
+  out.Add("girth", Girth(code));
+  out.Add("degree_profile", profile.ToString());
+  out.Add("encoder", std::string(ldpc.encoder().uses_dual_diagonal()
+                                     ? "dual-diagonal (linear time)"
+                                     : "gaussian elimination (dense GF(2))"));
+  out.Add("decoder", ToString(o.algorithm));
+  out.Add("schedule", ToString(o.schedule));
+  out.Add("kernel_target", ldpc.decoder().kernel_target());
+  out.Add("max_iterations", o.max_iterations);
+  out.Add("normalization", static_cast<double>(o.normalization));
+  out.Add("offset", static_cast<double>(o.offset));
+  out.Add("code_rate_basis", std::string("information bits k / code length n (k = n - rank H)"));
+  out.AddSeries("variable_nodes_by_degree",
+                std::vector<std::int32_t>(profile.variable_nodes_by_degree.begin(),
+                                          profile.variable_nodes_by_degree.end()));
+  out.AddSeries("check_nodes_by_degree",
+                std::vector<std::int32_t>(profile.check_nodes_by_degree.begin(),
+                                          profile.check_nodes_by_degree.end()));
 
   Limits& lim = r.limits;
+  lim.threshold_present = true;
   lim.binary_input_ebno_db = analysis::BinaryInputMinEbn0Db(r.code_rate);
   auto dist = analysis::EdgeDistributionFromNodeCounts(profile.variable_nodes_by_degree,
                                                        profile.check_nodes_by_degree);

@@ -56,6 +56,30 @@ void StringDataset(H5::Group& g, const char* name, const std::vector<std::string
   if (!ptrs.empty()) ds.write(ptrs.data(), type);
 }
 
+// A family's code report, attributes then datasets, in the family's order
+// (int as NATIVE_INT, double as NATIVE_DOUBLE, series as int32, uint64 or
+// double).
+void WriteCodeReport(H5::Group g, const CodeReport& report) {
+  for (const CodeReport::Attribute& a : report.attributes) {
+    if (const auto* text = std::get_if<std::string>(&a.value)) {
+      StrAttr(g, a.name.c_str(), *text);
+    } else if (const auto* i = std::get_if<int>(&a.value)) {
+      NumAttr(g, a.name.c_str(), H5::PredType::NATIVE_INT, *i);
+    } else {
+      NumAttr(g, a.name.c_str(), H5::PredType::NATIVE_DOUBLE, std::get<double>(a.value));
+    }
+  }
+  for (const CodeReport::Dataset& d : report.datasets) {
+    if (const auto* i32 = std::get_if<std::vector<std::int32_t>>(&d.values)) {
+      Dataset(g, d.name.c_str(), H5::PredType::NATIVE_INT32, *i32);
+    } else if (const auto* u64 = std::get_if<std::vector<std::uint64_t>>(&d.values)) {
+      Dataset(g, d.name.c_str(), H5::PredType::NATIVE_UINT64, *u64);
+    } else {
+      Dataset(g, d.name.c_str(), H5::PredType::NATIVE_DOUBLE, std::get<std::vector<double>>(d.values));
+    }
+  }
+}
+
 std::string ReadStrAttr(const H5::H5Object& obj, const char* name) {
   H5::Attribute a = obj.openAttribute(name);
   H5::StrType type = a.getStrType();
@@ -179,7 +203,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(g, "fer_low", F64, fer_low);
       Dataset(g, "fer_high", F64, fer_high);
       Dataset(g, "seconds", F64, seconds);
-      if (r.ldpc.present) {
+      if (r.iterative) {
         // Iterative decoding per point: mean and largest iteration count of a
         // frame, and frames that converged to a wrong codeword.
         std::vector<double> it_mean;
@@ -201,54 +225,13 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(th, "ebno_db", F64, r.theory.ebno_db);
       Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
       Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
-      if (!r.theory.ber_bound.empty()) {
-        Dataset(th, "ber_bound", F64, r.theory.ber_bound);
+      if (!r.theory.ber_bound.empty()) Dataset(th, "ber_bound", F64, r.theory.ber_bound);
+      if (!r.theory.fer_bound.empty()) Dataset(th, "fer_bound", F64, r.theory.fer_bound);
+      if (!r.theory.ber_bound.empty() || !r.theory.fer_bound.empty()) {
         StrAttr(th, "ber_bound_channel", r.theory.bound_channel);
       }
 
-      if (r.ldpc.present) {
-        const LdpcResult& l = r.ldpc;
-        H5::Group code = g.createGroup("code");
-        StrAttr(code, "construction", l.construction);
-        StrAttr(code, "description", l.description);
-        NumAttr(code, "length", H5::PredType::NATIVE_INT, l.length);
-        NumAttr(code, "info_bits", H5::PredType::NATIVE_INT, l.info_bits);
-        NumAttr(code, "checks", H5::PredType::NATIVE_INT, l.checks);
-        NumAttr(code, "rank", H5::PredType::NATIVE_INT, l.rank);
-        NumAttr(code, "lifting", H5::PredType::NATIVE_INT, l.lifting);
-        NumAttr(code, "girth", H5::PredType::NATIVE_INT, l.girth);
-        StrAttr(code, "degree_profile", l.degree_profile);
-        StrAttr(code, "encoder", l.encoder);
-        StrAttr(code, "decoder", l.decoder);
-        StrAttr(code, "schedule", l.schedule);
-        StrAttr(code, "kernel_target", l.kernel_target);
-        NumAttr(code, "max_iterations", H5::PredType::NATIVE_INT, l.max_iterations);
-        NumAttr(code, "normalization", H5::PredType::NATIVE_DOUBLE, l.normalization);
-        NumAttr(code, "offset", H5::PredType::NATIVE_DOUBLE, l.offset);
-        StrAttr(code, "code_rate_basis", "information bits k / code length n (k = n - rank H)");
-        std::vector<std::int32_t> vd(l.variable_nodes_by_degree.begin(), l.variable_nodes_by_degree.end());
-        std::vector<std::int32_t> cd(l.check_nodes_by_degree.begin(), l.check_nodes_by_degree.end());
-        Dataset(code, "variable_nodes_by_degree", H5::PredType::NATIVE_INT32, vd);
-        Dataset(code, "check_nodes_by_degree", H5::PredType::NATIVE_INT32, cd);
-      }
-      if (r.code.present) {
-        const ConvSchemeConfig& c = r.scheme.conv;
-        H5::Group code = g.createGroup("code");
-        NumAttr(code, "free_distance", H5::PredType::NATIVE_INT, r.code.free_distance);
-        StrAttr(code, "generators", c.generators);
-        NumAttr(code, "constraint_length", H5::PredType::NATIVE_INT, c.constraint_length);
-        StrAttr(code, "puncture", c.puncture);
-        StrAttr(code, "termination", c.termination);
-        StrAttr(code, "decoder", c.decoder);
-        NumAttr(code, "traceback", H5::PredType::NATIVE_INT, c.traceback);
-        StrAttr(code, "code_rate_basis",
-                "effective rate: information bits / transmitted coded bits per frame, tail bits "
-                "and puncturing included");
-        std::vector<std::int32_t> dist(r.code.spectrum_distance.begin(), r.code.spectrum_distance.end());
-        Dataset(code, "spectrum_distance", H5::PredType::NATIVE_INT32, dist);
-        Dataset(code, "spectrum_info_weight", U64, r.code.spectrum_info_weight);
-        Dataset(code, "spectrum_events", U64, r.code.spectrum_events);
-      }
+      if (r.code.present) WriteCodeReport(g.createGroup("code"), r.code);
 
       if (r.spectrum.present) {
         H5::Group sp = g.createGroup("spectrum");
@@ -282,7 +265,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(lim, "constrained_ebno_db", F64, r.limits.constrained_ebno_db);
       StrAttr(lim, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
       StrAttr(lim, "notes", r.limits.notes);
-      if (r.ldpc.present) {
+      if (r.limits.threshold_present) {
         NumAttr(lim, "threshold_ebno_db", F64, r.limits.threshold_ebno_db);
         NumAttr(lim, "threshold_sigma", F64, r.limits.threshold_sigma);
         StrAttr(lim, "threshold_method", r.limits.threshold_method);
@@ -303,7 +286,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(sum, "coding_gain_db", F64, s.coding_gain_db);
       NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
       NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
-      if (r.ldpc.present) {
+      if (r.limits.threshold_present) {
         NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
         NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);
       }
@@ -383,7 +366,7 @@ Result<StoredRun> ReadCurvesFile(const std::string& path) {
       s.summary.gap_to_shannon_db = ReadDoubleAttr(sum, "gap_to_shannon_db");
       s.summary.gap_to_constrained_db = ReadDoubleAttr(sum, "gap_to_constrained_db");
       if (lim.attrExists("threshold_ebno_db")) {
-        s.ldpc = true;
+        s.has_threshold = true;
         s.threshold_ebno_db = ReadDoubleAttr(lim, "threshold_ebno_db");
         s.threshold_method = ReadStrAttr(lim, "threshold_method");
         s.binary_input_ebno_db = ReadDoubleAttr(lim, "binary_input_ebno_db");
@@ -394,11 +377,11 @@ Result<StoredRun> ReadCurvesFile(const std::string& path) {
         s.undetected_frame_errors =
             ReadDataset<std::uint64_t>(g, "undetected_frame_errors", H5::PredType::NATIVE_UINT64);
         H5::Group code = g.openGroup("code");
-        s.ldpc_description = ReadStrAttr(code, "description");
-        s.ldpc_decoder = ReadStrAttr(code, "decoder") + ", " + ReadStrAttr(code, "schedule");
+        s.code_description = ReadStrAttr(code, "description");
+        s.decoder_description = ReadStrAttr(code, "decoder") + ", " + ReadStrAttr(code, "schedule");
         int girth = 0;
         code.openAttribute("girth").read(H5::PredType::NATIVE_INT, &girth);
-        s.ldpc_girth = girth;
+        s.code_girth = girth;
       }
       run.schemes.push_back(std::move(s));
     }

@@ -44,11 +44,12 @@ struct StoredScheme {
   std::vector<std::uint64_t> bits, bit_errors;
   std::vector<double> ber;
   double shannon_ebno_db = 0, constrained_ebno_db = 0;
-  // LDPC schemes.
-  bool ldpc = false;
+  // Codes with an ensemble threshold (LDPC): the threshold, the code and
+  // decoder as described in /<scheme>/code.
+  bool has_threshold = false;
   double threshold_ebno_db = 0, binary_input_ebno_db = 0;
-  std::string threshold_method, ldpc_description, ldpc_decoder;
-  int ldpc_girth = 0;
+  std::string threshold_method, code_description, decoder_description;
+  int code_girth = 0;
   std::vector<double> decoder_iterations_mean;
   std::vector<std::uint64_t> undetected_frame_errors;
   Summary summary{};

@@ -59,7 +59,7 @@ std::string FormatSummaryTable(const StoredRun& run) {
   // binary-input capacity at the code rate, and how hard the decoder worked.
   bool ldpc_header = false;
   for (const StoredScheme& s : run.schemes) {
-    if (!s.ldpc) continue;
+    if (!s.has_threshold) continue;
     if (!ldpc_header) {
       std::snprintf(line, sizeof line, "%-14s %9s %7s %6s  %7s %6s  %9s %10s  %s\n", "LDPC scheme",
                     "threshold", "method", "gap", "BI-AWGN", "gap", "iter@last", "undetected",
@@ -75,8 +75,8 @@ std::string FormatSummaryTable(const StoredRun& run) {
     const std::string method = s.threshold_method == "quantized" ? "DE-q"
                                : s.threshold_method.empty()      ? "-"
                                                                  : "DE-GA";
-    std::string code = s.ldpc_description;
-    code.append(", girth ").append(std::to_string(s.ldpc_girth)).append("; ").append(s.ldpc_decoder);
+    std::string code = s.code_description;
+    code.append(", girth ").append(std::to_string(s.code_girth)).append("; ").append(s.decoder_description);
     std::snprintf(line, sizeof line, "%-14s %9s %7s %6s  %7s %6s  %9s %10llu  %s\n", s.name.c_str(),
                   Db(s.threshold_ebno_db).c_str(), method.c_str(),
                   Db(s.summary.gap_to_threshold_db).c_str(), Db(s.binary_input_ebno_db).c_str(),

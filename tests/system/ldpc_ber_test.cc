@@ -148,8 +148,9 @@ TEST(LdpcChain, ResultsCarryTheThresholdAndTheBinaryInputLimit) {
   EngineOptions eo;
   eo.threads = 2;
   const SchemeResult r = AnalyseScheme(chain.value(), sweep, RunSweep(chain.value(), sweep, eo));
-  ASSERT_TRUE(r.ldpc.present);
-  EXPECT_GE(r.ldpc.girth, 6);
+  ASSERT_TRUE(r.code.present);
+  ASSERT_NE(r.code.Find("girth"), nullptr);
+  EXPECT_GE(std::get<int>(*r.code.Find("girth")), 6);
   EXPECT_NEAR(r.limits.threshold_ebno_db, 1.10, 0.02);
   EXPECT_EQ(r.limits.threshold_method, "quantized");
   EXPECT_NEAR(r.limits.binary_input_ebno_db, 0.19, 0.01);
