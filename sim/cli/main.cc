@@ -413,7 +413,9 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
               << "\nCONFIG is an INI scheme file; see configs/ and the README.\n"
                  "Exit status: 0 done, 1 bad config/file or resume refused, 2 usage, 75 stopped "
                  "by SIGINT/SIGTERM\nwith the checkpoint saved (--resume continues), 130 second "
-                 "SIGINT (exits at once).\n";
+                 "SIGINT (exits at once).\n"
+              << "\nConfig keys (every one can be set with --set SECTION.KEY=VALUE):\n\n"
+              << ConfigKeysHelp();
     return 0;
   }
   if (args.config_path.empty()) return Fail("run: missing CONFIG (see capgap run --help)", kExitUsage);

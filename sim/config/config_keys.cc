@@ -161,9 +161,9 @@ constexpr KeyTable kSchemeTables[] = {
     {"common", kSchemeKeys},
     {"pulse shaping", kShapingKeys},
     {"carrier impairments", kImpairmentKeys},
-    {"code", kCodeChoiceKeys},
-    {"code = conv", kConvKeys, OnlyWith("code", kConvWord)},
-    {"code = ldpc", kLdpcKeys, OnlyWith("code", kLdpcWord)},
+    {"channel code", kCodeChoiceKeys},
+    {"convolutional code", kConvKeys, OnlyWith("code", kConvWord)},
+    {"LDPC code", kLdpcKeys, OnlyWith("code", kLdpcWord)},
 };
 
 }  // namespace

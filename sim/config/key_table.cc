@@ -53,8 +53,10 @@ bool Contains(std::span<const std::string_view> words, std::string_view w) {
   return false;
 }
 
+// "only with code = conv", "not with code = ldpc"
 std::string ConditionText(const KeyCondition& c) {
-  return std::string(c.key) + (c.negate ? " not " : " = ") + Join(c.values, " or ");
+  return std::string(c.negate ? "not with " : "only with ") + c.key + " = " +
+         Join(c.values, " or ");
 }
 
 }  // namespace
@@ -137,11 +139,14 @@ std::string KeyNames(std::span<const KeyTable> tables) {
 }
 
 std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section) {
-  std::string out;
-  for (const KeyTable& t : tables) {
-    out += section;
-    if (t.when.key) out += " with " + ConditionText(t.when);
-    out += "\n";
+  std::string out = section + "\n";
+  for (std::size_t i = 0; i < tables.size(); ++i) {
+    const KeyTable& t = tables[i];
+    if (i > 0) {
+      out += std::string("  -- ") + t.title;
+      if (t.when.key) out += " (" + ConditionText(t.when) + ")";
+      out += "\n";
+    }
     for (const KeySpec& k : t.keys) {
       out += std::string("  ") + k.name;
       if (!k.default_value) {
@@ -152,7 +157,7 @@ std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section
         out += " (optional)";
       }
       out += "\n      " + RuleText(k.rule) + "; " + k.help;
-      if (k.when.key) out += " (only with " + ConditionText(k.when) + ")";
+      if (k.when.key) out += " (" + ConditionText(k.when) + ")";
       out += "\n";
     }
   }

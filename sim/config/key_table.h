@@ -16,7 +16,7 @@
 //       {"termination", "tail", OneOf(kTerminationWords), "trellis termination"},
 //   };
 //   constexpr std::string_view kConvWord[] = {"conv"};
-//   constexpr KeyTable kConvTable{"code = conv", kConvKeys, OnlyWith("code", kConvWord)};
+//   constexpr KeyTable kConvTable{"convolutional code", kConvKeys, OnlyWith("code", kConvWord)};
 #ifndef CAPGAP_SIM_CONFIG_KEY_TABLE_H_
 #define CAPGAP_SIM_CONFIG_KEY_TABLE_H_
 
@@ -148,7 +148,7 @@ struct KeySpec {
 };
 
 struct KeyTable {
-  const char* title;  // help heading, e.g. "code = conv"
+  const char* title;  // help heading, e.g. "convolutional code"
   std::span<const KeySpec> keys;
   KeyCondition when = {};  // the whole table applies only under this
 };
@@ -168,9 +168,11 @@ const KeySpec* FindKey(std::span<const KeyTable> tables, std::string_view name);
 // Every key name of `tables` in table order, each once: "a, b, c".
 std::string KeyNames(std::span<const KeyTable> tables);
 
-// Help text of `tables` under a heading line `section` ("[sweep]"): per key
-// "  NAME = DEFAULT" (or "(required)") and an indented line "RULE; HELP"
-// with "(only with KEY = V)" where the key or its table has a condition.
+// Help text of `tables` under a heading line `section` ("[sweep]"), each
+// table after the first under "  -- TITLE (only with KEY = V)": per key
+// "  NAME = DEFAULT" (or "(required)", "(optional)") and an indented line
+// "RULE; HELP" ending "(only with KEY = V)" or "(not with KEY = V)" where the
+// key has a condition.
 std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section);
 
 // The keys of one section after applicability and defaults: the applicable
