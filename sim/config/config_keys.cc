@@ -15,17 +15,19 @@
 namespace capgap {
 namespace {
 
-// A value made safe for a block parser whose message quotes the word: a
-// value that is long or holds unprintable bytes (never a valid word) is
-// passed in its printable, shortened form.
-std::string ForMessage(const std::string& value) { return Printable(value); }
+// True when `value` can be quoted whole in a message (short, printable);
+// every valid word is. Block parsers quote the word they refuse, so a value
+// that is not goes without it.
+bool Quotable(const std::string& value) { return Printable(value) == value; }
 
 Status CheckModulation(const std::string& value) {
-  return ParseModulation(ForMessage(value)).status();
+  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ModulationChoices());
+  return ParseModulation(value).status();
 }
 
 Status CheckDemapper(const std::string& value) {
-  return ParseDemapMethod(ForMessage(value)).status();
+  if (!Quotable(value)) return Status::Error("not a demap method; valid: " + DemapMethodChoices());
+  return ParseDemapMethod(value).status();
 }
 
 // ---------------------------------------------------------------- [sweep]
@@ -204,7 +206,9 @@ Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
     while (std::getline(ss, part, ',')) {
       double v = 0;
       if (Status s = parse_one(part, v); !s.ok()) {
-        return Status::Error(QuoteValue(Trim(part)) + " is " + s.message() +
+        // A one-item list is the value itself, which the caller quotes.
+        const bool single = text.find(',') == std::string::npos;
+        return Status::Error((single ? "" : QuoteValue(Trim(part)) + " is ") + s.message() +
                              "; expected START:STEP:STOP or a comma list");
       }
       out.push_back(v);
