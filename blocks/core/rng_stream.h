@@ -35,12 +35,21 @@ PhiloxBlock Philox4x32_10(const PhiloxCounter& counter, PhiloxKey key);
 // FNV-1a hash of the name. Distinct schemes get unrelated streams.
 PhiloxKey DeriveKey(std::uint64_t seed, std::string_view scheme_name);
 
+// The reserved stream indices, named here once. Substreams of a unit: each
+// keeps its use for good (changing one would move every count).
 enum class Substream : std::uint32_t {
   kBits = 0,      // information bits of the bit source
   kNoise = 1,     // channel noise
-  kChannel = 2,   // channel state (fading, phase), reserved for later parts
+  kChannel = 2,   // guard symbols of shaped chains; the signal views' draws
   kCode = 3,      // anything a code needs at run time (e.g. interleavers)
+  kChannelProcess = 4,  // channel processes: fading gains, phase noise
 };
+
+// Point indices that are never sweep points (a sweep has far fewer points):
+// streams for pictures and measurements that must not touch a counted unit.
+inline constexpr std::uint32_t kSpectrumPointIndex = 0xFFFFFFFFu;    // Welch PSD
+inline constexpr std::uint32_t kDisplayPointIndex = 0xFFFFFFFEu;     // constellation view
+inline constexpr std::uint32_t kEyePointIndex = 0xFFFFFFFDu;         // eye diagram
 
 class RngStream {
  public:

@@ -8,6 +8,7 @@
 #include <cmath>
 
 #include "analysis/capacity.h"
+#include "blocks/channel/awgn_channel.h"
 #include "sim/engine/engine.h"
 
 namespace capgap {
