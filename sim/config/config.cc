@@ -47,8 +47,8 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
   *key_out = key;
   if (section == "sweep") {
     if (!FindKey(SweepKeyTables(), key)) {
-      return Status::Error(source + ": unknown key '" + where + "'; [sweep] keys: " +
-                           KeyNames(SweepKeyTables()));
+      return Status::Error(source + ": unknown key '" + where +
+                           "'; [sweep] keys: " + KeyNames(SweepKeyTables()));
     }
     *section_out = &given.sweep;
     return Status::Ok();
@@ -60,8 +60,8 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
                            "' may contain only letters, digits, '_' and '-'");
     }
     if (!FindKey(SchemeKeyTables(), key)) {
-      return Status::Error(source + ": unknown key '" + where + "'; [scheme.NAME] keys: " +
-                           KeyNames(SchemeKeyTables()));
+      return Status::Error(source + ": unknown key '" + where +
+                           "'; [scheme.NAME] keys: " + KeyNames(SchemeKeyTables()));
     }
     auto& names = given.scheme_names;
     if (std::find(names.begin(), names.end(), name) == names.end()) {
@@ -76,8 +76,7 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
     *section_out = &given.schemes[name];
     return Status::Ok();
   }
-  return Status::Error(source + ": unknown section [" + Printable(section) + "]; " +
-                       kSectionsHint);
+  return Status::Error(source + ": unknown section [" + Printable(section) + "]; " + kSectionsHint);
 }
 
 // `m` divides the value of `key` (frame_bits, LDPC length).
@@ -207,8 +206,7 @@ std::string ToString(SourceKind kind) {
 }
 
 std::string ConfigKeysHelp() {
-  return KeyHelp(SweepKeyTables(), "[sweep]") + "\n" +
-         KeyHelp(SchemeKeyTables(), "[scheme.NAME]");
+  return KeyHelp(SweepKeyTables(), "[sweep]") + "\n" + KeyHelp(SchemeKeyTables(), "[scheme.NAME]");
 }
 
 std::string LdpcSchemeConfig::ResolvePath(const std::string& path) const {
@@ -224,11 +222,11 @@ std::uint32_t SchemeConfig::ResolvedUnitFrames() const {
     // A multiple of 64 frames, so the decoder's SIMD batches (16 to 64
     // codewords across lanes) are full on every target; frame_bits is the
     // code's k once the chain has built the code (0 before: one batch).
-    const std::uint32_t frames =
-        frame_bits == 0 ? 64 : (kUnitBits + frame_bits - 1) / frame_bits;
+    const std::uint32_t frames = frame_bits == 0 ? 64 : (kUnitBits + frame_bits - 1) / frame_bits;
     return (frames + 63) / 64 * 64;
   }
-  return std::max<std::uint32_t>(1, (kUnitBits + frame_bits - 1) / std::max<std::uint32_t>(frame_bits, 1));
+  return std::max<std::uint32_t>(
+      1, (kUnitBits + frame_bits - 1) / std::max<std::uint32_t>(frame_bits, 1));
 }
 
 Result<std::vector<double>> ParseDbList(const std::string& text, const std::string& what) {
@@ -327,7 +325,8 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
   return config;
 }
 
-Result<RunConfig> LoadRunConfig(const std::string& path, const std::vector<std::string>& overrides) {
+Result<RunConfig> LoadRunConfig(const std::string& path,
+                                const std::vector<std::string>& overrides) {
   auto text = ReadConfigFile(path);
   if (!text.ok()) return text.status();
   return ParseRunConfig(text.value(), path, overrides);

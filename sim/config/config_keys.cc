@@ -32,7 +32,8 @@ Status CheckDemapper(const std::string& value) {
 
 // ---------------------------------------------------------------- [sweep]
 constexpr KeySpec kSweepKeys[] = {
-    {"ebno_db", nullptr, Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
+    {"ebno_db", nullptr,
+     Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
      "Eb/N0 points (per information bit), increasing, within [-20, 60] dB"},
     {"target_errors", "100", IntegerAtLeast(1), "bit errors that end a point"},
     {"max_bits", "100000000", IntegerAtLeast(1), "information bits that end a point"},
@@ -52,7 +53,8 @@ constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
 constexpr std::string_view kLdpcWord[] = {"ldpc"};
 
 constexpr KeySpec kSchemeKeys[] = {
-    {"modulation", nullptr, Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
+    {"modulation", nullptr,
+     Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
      "Gray-labelled constellation, unit average energy"},
     {"ebno_db", "", Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
      "this scheme's points instead of sweep.ebno_db"},
@@ -74,7 +76,8 @@ constexpr KeySpec kShapingKeys[] = {
      "pulse shaping: none (one sample per symbol), raised cosine, root raised cosine"},
     {"rolloff", "0.35", NumberIn(Open(0), Closed(1)), "roll-off factor",
      OnlyWith("shaping", kShapedWords)},
-    {"span", "16", IntegerIn(1, 256), "filter length in symbols", OnlyWith("shaping", kShapedWords)},
+    {"span", "16", IntegerIn(1, 256), "filter length in symbols",
+     OnlyWith("shaping", kShapedWords)},
     {"samples_per_symbol", "8", IntegerIn(2, 64), "oversampling factor",
      OnlyWith("shaping", kShapedWords)},
     {"timing_offset", "0", NumberIn(Closed(-0.5), Closed(0.5), "symbols"),
@@ -131,8 +134,7 @@ constexpr KeySpec kLdpcKeys[] = {
      OnlyWith("construction", kPegWord)},
     {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
      OnlyWith("construction", kPegWord)},
-    {"degrees", "3",
-     Text("D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2"),
+    {"degrees", "3", Text("D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2"),
      "variable-node degree distribution", OnlyWith("construction", kPegWord)},
     {"construction_seed", "1", IntegerAtLeast(0), "seed of the PEG construction",
      OnlyWith("construction", kPegWord)},
@@ -150,7 +152,8 @@ constexpr KeySpec kLdpcKeys[] = {
      "belief propagation, or min-sum with a factor or an offset"},
     {"schedule", "layered", OneOf(kScheduleWords),
      "all checks then all variables, or check by check"},
-    {"max_iterations", "50", IntegerIn(1, 1000), "iteration budget (stops early on a zero syndrome)"},
+    {"max_iterations", "50", IntegerIn(1, 1000),
+     "iteration budget (stops early on a zero syndrome)"},
     {"arithmetic", "auto", OneOf(kArithmeticWords),
      "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
     {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",

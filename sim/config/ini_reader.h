@@ -27,8 +27,8 @@ struct IniEntry {
 };
 
 struct IniSection {
-  std::string name;  // without brackets, e.g. "scheme.qpsk"
-  int line = 0;      // line of the [NAME] header
+  std::string name;               // without brackets, e.g. "scheme.qpsk"
+  int line = 0;                   // line of the [NAME] header
   std::vector<IniEntry> entries;  // in file order
 };
 

@@ -45,9 +45,10 @@ class TempDir {
 };
 
 TEST(ParseIni, KeepsSectionsKeysValuesAndLinesInFileOrder) {
-  auto r = ParseIni("# head\n[sweep]\nebno_db = 0:1:4  # comment\n\n[scheme.a]\n  modulation=qpsk\n"
-                    "empty =\n",
-                    "t.ini");
+  auto r = ParseIni(
+      "# head\n[sweep]\nebno_db = 0:1:4  # comment\n\n[scheme.a]\n  modulation=qpsk\n"
+      "empty =\n",
+      "t.ini");
   ASSERT_TRUE(r.ok()) << r.status().message();
   const auto& s = r.value();
   ASSERT_EQ(s.size(), 2u);
@@ -85,7 +86,8 @@ TEST(ParseIni, RefusesARepeatedKey) {
 TEST(ParseIni, RefusesKeysOutsideASectionAndBadLines) {
   EXPECT_EQ(ErrorOf("seed = 1\n[sweep]\n"),
             "t.ini:1: key 'seed' is outside a section; sections: [sweep], [scheme.NAME]");
-  EXPECT_EQ(ErrorOf("[sweep]\nseed 1\n"), "t.ini:2: expected KEY = VALUE or [SECTION], got 'seed 1'");
+  EXPECT_EQ(ErrorOf("[sweep]\nseed 1\n"),
+            "t.ini:2: expected KEY = VALUE or [SECTION], got 'seed 1'");
   EXPECT_EQ(ErrorOf("[sweep\n"), "t.ini:1: section header '[sweep' does not end with ']'");
   EXPECT_EQ(ErrorOf("[]\n"),
             "t.ini:1: bad section name ''; expected letters, digits, '_', '-' and '.' between the "
@@ -95,7 +97,8 @@ TEST(ParseIni, RefusesKeysOutsideASectionAndBadLines) {
             "between the brackets, e.g. [scheme.qpsk]");
   EXPECT_EQ(ErrorOf("[sweep]\na.b = 1\n"),
             "t.ini:2: bad key name 'a.b'; keys are letters, digits, '_' and '-'");
-  EXPECT_EQ(ErrorOf("[sweep]\n= 1\n"), "t.ini:2: bad key name ''; keys are letters, digits, '_' and '-'");
+  EXPECT_EQ(ErrorOf("[sweep]\n= 1\n"),
+            "t.ini:2: bad key name ''; keys are letters, digits, '_' and '-'");
 }
 
 TEST(ParseIni, EchoesAHugeBinaryLineShortenedAndEscaped) {

@@ -27,7 +27,8 @@ constexpr std::string_view kExtraWord[] = {"extra"};
 
 constexpr KeySpec kToyKeys[] = {
     // Depends on `mode`, declared later in the list: conditions see defaults.
-    {"width", "4", IntegerIn(1, 64, "1: narrow"), "width in cells", NotWith("mode", kOdd, "odd has no width")},
+    {"width", "4", IntegerIn(1, 64, "1: narrow"), "width in cells",
+     NotWith("mode", kOdd, "odd has no width")},
     {"name", nullptr, Text("a name", "must name something"), "what it is called"},
     {"mode", "plain", OneOf(kModeWords), "how it looks"},
     {"gain", "0.5", NumberIn(Open(0), Closed(1), "volts"), "gain", OnlyWith("mode", kFancy)},
@@ -57,7 +58,8 @@ TEST(KeyTable, RuleTextsComeFromTheTypedRules) {
   EXPECT_EQ(RuleText(IntegerAtLeast(1)), "an integer > 0");
   EXPECT_EQ(RuleText(IntegerAtLeast(0, "0: automatic")), "an integer >= 0 (0: automatic)");
   EXPECT_EQ(RuleText(NumberIn(Closed(0), Open(0.5))), "a number in [0, 0.5)");
-  EXPECT_EQ(RuleText(NumberIn(Closed(0), Closed(86400), "seconds")), "a number in [0, 86400] seconds");
+  EXPECT_EQ(RuleText(NumberIn(Closed(0), Closed(86400), "seconds")),
+            "a number in [0, 86400] seconds");
   EXPECT_EQ(RuleText(AnyFiniteNumber()), "a finite number");
   EXPECT_EQ(RuleText(OneOf(kModeWords)), "plain, fancy, odd");
 }
@@ -80,12 +82,14 @@ TEST(KeyTable, ChecksNameTheBrokenRule) {
             "not a decimal number (no hexadecimal); must be in (0, 1]");
   EXPECT_EQ(CheckValue(AnyFiniteNumber(), "inf").message(), "not a finite number");
   EXPECT_EQ(CheckValue(OneOf(kModeWords), "Plain").message(), "valid: plain, fancy, odd");
-  EXPECT_EQ(CheckValue(OneOf(kModeWords, "valid here"), "x").message(), "valid here: plain, fancy, odd");
+  EXPECT_EQ(CheckValue(OneOf(kModeWords, "valid here"), "x").message(),
+            "valid here: plain, fancy, odd");
 }
 
 TEST(KeyTable, DefaultsFillInAndOptionalKeysStayAbsent) {
   EXPECT_EQ(Resolve({{"name", "a"}}), "width=4;name=a;mode=plain;tilt=0;count=2;");
-  EXPECT_EQ(Resolve({{"name", "a"}, {"label", "x"}}), "width=4;name=a;mode=plain;tilt=0;count=2;label=x;");
+  EXPECT_EQ(Resolve({{"name", "a"}, {"label", "x"}}),
+            "width=4;name=a;mode=plain;tilt=0;count=2;label=x;");
 }
 
 TEST(KeyTable, ConditionsSelectKeysWhateverTheirOrder) {
@@ -93,7 +97,8 @@ TEST(KeyTable, ConditionsSelectKeysWhateverTheirOrder) {
             "width=4;name=a;mode=fancy;gain=0.5;tilt=0;count=2;");
   EXPECT_EQ(Resolve({{"name", "a"}, {"mode", "odd"}}), "name=a;mode=odd;tilt=0;count=2;");
   // A key declared by two tables resolves through the one that applies.
-  EXPECT_EQ(Resolve({{"name", "a"}, {"mode", "extra"}, {"gain", "9"}}), "f.ini: toy.mode = 'extra': valid: plain, fancy, odd");
+  EXPECT_EQ(Resolve({{"name", "a"}, {"mode", "extra"}, {"gain", "9"}}),
+            "f.ini: toy.mode = 'extra': valid: plain, fancy, odd");
 }
 
 TEST(KeyTable, RefusalsNameKeyConditionAndRule) {
@@ -119,16 +124,19 @@ TEST(KeyTable, NamesAndHelpComeFromTheSameTables) {
   EXPECT_EQ(FindKey(kToy, "gain")->default_value, std::string("0.5"));
   EXPECT_EQ(FindKey(kToy, "nope"), nullptr);
   const std::string help = KeyHelp(kToy, "[toy]");
-  EXPECT_EQ(help.rfind("[toy]\n  width = 4\n      an integer in [1, 64] (1: narrow); width in cells "
-                       "(not with mode = odd)\n  name (required)\n      a name; what it is called\n",
-                       0),
-            0u)
+  EXPECT_EQ(
+      help.rfind("[toy]\n  width = 4\n      an integer in [1, 64] (1: narrow); width in cells "
+                 "(not with mode = odd)\n  name (required)\n      a name; what it is called\n",
+                 0),
+      0u)
       << help;
-  EXPECT_NE(help.find("  gain = 0.5\n      a number in (0, 1] volts; gain (only with mode = fancy)\n"),
-            std::string::npos)
+  EXPECT_NE(
+      help.find("  gain = 0.5\n      a number in (0, 1] volts; gain (only with mode = fancy)\n"),
+      std::string::npos)
       << help;
   EXPECT_NE(help.find("  label (optional)\n"), std::string::npos) << help;
-  EXPECT_NE(help.find("  -- extra (only with mode = extra)\n  gain = 7\n"), std::string::npos) << help;
+  EXPECT_NE(help.find("  -- extra (only with mode = extra)\n  gain = 7\n"), std::string::npos)
+      << help;
 }
 
 // ------------------------------------------------------- the scheme tables
@@ -166,9 +174,10 @@ TEST(SchemeKeys, IntegersAreDecimalDigitsAndNumbersDecimalNotation) {
   EXPECT_EQ(ErrorOf(kBase, {"scheme.q.ebno_db=1,inf"}),
             "cfg.ini: scheme.q.ebno_db = '1,inf': 'inf' is not a finite number; expected "
             "START:STEP:STOP or a comma list");
-  EXPECT_EQ(ErrorOf(kBase, {"sweep.ber_floor=0x1p-3"}),
-            "cfg.ini: sweep.ber_floor = '0x1p-3': not a decimal number (no hexadecimal); must be in "
-            "[0, 0.5)");
+  EXPECT_EQ(
+      ErrorOf(kBase, {"sweep.ber_floor=0x1p-3"}),
+      "cfg.ini: sweep.ber_floor = '0x1p-3': not a decimal number (no hexadecimal); must be in "
+      "[0, 0.5)");
   EXPECT_EQ(ErrorOf(kBase, {"scheme.q.frame_bits=0"}),
             "cfg.ini: scheme.q.frame_bits = '0': must be an integer in [1, 16777216]");
 }
@@ -189,8 +198,8 @@ TEST(SchemeKeys, HugeAndBinaryValuesAreEchoedShortenedAndEscaped) {
   EXPECT_LT(a.size(), 300u);
   const std::string b = ErrorOf(kBase, {"scheme.q.modulation=" + huge});
   EXPECT_LT(b.size(), 300u) << b.substr(0, 400);
-  EXPECT_EQ(b, "cfg.ini: scheme.q.modulation = '\\x01\\xFF" + tail + ": not a modulation; valid: " +
-                   ModulationChoices());
+  EXPECT_EQ(b, "cfg.ini: scheme.q.modulation = '\\x01\\xFF" + tail +
+                   ": not a modulation; valid: " + ModulationChoices());
   const std::string c = ErrorOf(kBase, {"sweep.ebno_db=" + huge});
   EXPECT_EQ(c, "cfg.ini: sweep.ebno_db = '\\x01\\xFF" + tail +
                    ": not a number; expected START:STEP:STOP or a comma list");
@@ -201,9 +210,12 @@ TEST(SchemeKeys, HugeAndBinaryValuesAreEchoedShortenedAndEscaped) {
 
 TEST(SchemeKeys, HelpListsEveryKeyWithItsDefaultAndRule) {
   const std::string help = ConfigKeysHelp();
-  EXPECT_NE(help.find("  frame_bits = 1920\n      an integer in [1, 16777216]; "), std::string::npos) << help;
+  EXPECT_NE(help.find("  frame_bits = 1920\n      an integer in [1, 16777216]; "),
+            std::string::npos)
+      << help;
   EXPECT_NE(help.find("  -- convolutional code (only with code = conv)\n  generators = 133,171\n"),
-            std::string::npos) << help;
+            std::string::npos)
+      << help;
   EXPECT_NE(help.find("  offset = 0.5\n      a number in [0, 10]; "), std::string::npos) << help;
 }
 

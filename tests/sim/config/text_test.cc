@@ -56,9 +56,12 @@ TEST(ParseUint64, RefusesOverflowSignsPointsExponentsAndHex) {
   EXPECT_EQ(ErrorOf(ParseUint64("18446744073709551616")), "exceeds 18446744073709551615");
   EXPECT_EQ(ErrorOf(ParseUint64("99999999999999999999999")), "exceeds 18446744073709551615");
   EXPECT_EQ(ErrorOf(ParseUint64("-3")), "must be >= 0");
-  EXPECT_EQ(ErrorOf(ParseUint64("1e3")), "not an integer (decimal digits only, no point or exponent)");
-  EXPECT_EQ(ErrorOf(ParseUint64("2.0")), "not an integer (decimal digits only, no point or exponent)");
-  EXPECT_EQ(ErrorOf(ParseUint64("+5")), "not an integer (decimal digits only, no point or exponent)");
+  EXPECT_EQ(ErrorOf(ParseUint64("1e3")),
+            "not an integer (decimal digits only, no point or exponent)");
+  EXPECT_EQ(ErrorOf(ParseUint64("2.0")),
+            "not an integer (decimal digits only, no point or exponent)");
+  EXPECT_EQ(ErrorOf(ParseUint64("+5")),
+            "not an integer (decimal digits only, no point or exponent)");
   EXPECT_EQ(ErrorOf(ParseUint64("0x10")), "not an integer");
   EXPECT_EQ(ErrorOf(ParseUint64(" 5")), "not an integer");
   EXPECT_EQ(ErrorOf(ParseUint64("abc")), "not an integer");
@@ -72,7 +75,8 @@ TEST(ParseInt64, AcceptsBothEndsAndRefusesBeyond) {
   EXPECT_EQ(ErrorOf(ParseInt64("9223372036854775808")), "exceeds 9223372036854775807");
   EXPECT_EQ(ErrorOf(ParseInt64("-9223372036854775809")), "below -9223372036854775808");
   EXPECT_EQ(ErrorOf(ParseInt64("-")), "not an integer");
-  EXPECT_EQ(ErrorOf(ParseInt64("-1.5")), "not an integer (decimal digits only, no point or exponent)");
+  EXPECT_EQ(ErrorOf(ParseInt64("-1.5")),
+            "not an integer (decimal digits only, no point or exponent)");
 }
 
 TEST(ParseDouble, AcceptsDecimalNotation) {
