@@ -5,7 +5,7 @@
 //
 // Apply takes a block of transmitted samples at samples_per_symbol samples
 // per symbol, draws its noise from `noise` and any channel process (fading
-// gains, phase noise) from `process` (the unit's Substream::kChannelProcess
+// gains, phase noise) from `process` (the unit's Substream::kFading
 // stream: AWGN draws nothing from it), and describes the per-symbol state the
 // receiver and the demapper must use (channel_state.h), writing any
 // per-symbol values into `storage`, which the caller sizes to the block's

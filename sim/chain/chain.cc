@@ -131,7 +131,7 @@ Chain::Streams Chain::UnitStreams(std::uint32_t point_index, std::uint32_t unit_
   return Streams{RngStream(key_, point_index, unit_index, Substream::kBits),
                  RngStream(key_, point_index, unit_index, Substream::kNoise),
                  RngStream(key_, point_index, unit_index, Substream::kChannel),
-                 RngStream(key_, point_index, unit_index, Substream::kChannelProcess)};
+                 RngStream(key_, point_index, unit_index, Substream::kFading)};
 }
 
 void Chain::ApplyChannel(const Channel& channel, std::span<cf32> samples, Streams& s,

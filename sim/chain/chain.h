@@ -15,7 +15,7 @@
 // Randomness of unit u at point p comes only from the streams
 // (key(seed, scheme), p, u, substream), so a unit's counts are a pure function
 // of (seed, scheme, point, unit). Substreams: kBits (bit source), kNoise
-// (channel noise), kChannel (guard symbols of shaped chains), kChannelProcess
+// (channel noise), kChannel (guard symbols of shaped chains), kFading
 // (channel processes such as fading), kCode (codes' run-time randomness).
 #ifndef CAPGAP_SIM_CHAIN_CHAIN_H_
 #define CAPGAP_SIM_CHAIN_CHAIN_H_
