@@ -12,6 +12,7 @@
 #include <string>
 #include <vector>
 
+#include "sim/config/config.h"
 #include "sim/io/build_info.h"
 #include "sim/run/run.h"
 #include "sim/run/theory_command.h"
@@ -107,7 +108,9 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
               << "\nCONFIG is an INI scheme file; see configs/ and the README.\n"
                  "Exit status: 0 done, 1 bad config/file or resume refused, 2 usage (a malformed\n"
                  "or out-of-range command-line value), 75 stopped by SIGINT/SIGTERM with the\n"
-                 "checkpoint saved (--resume continues), 130 second SIGINT (exits at once).\n";
+                 "checkpoint saved (--resume continues), 130 second SIGINT (exits at once).\n"
+              << "\nConfig keys (every one can be set with --set SECTION.KEY=VALUE):\n\n"
+              << ConfigKeysHelp();
     return 0;
   }
   if (vm.count("output")) run.output = output;

@@ -1,17 +1,19 @@
-// Run configuration: the INI scheme file (read by Boost.Program_options),
+// Run configuration: the INI scheme file (sim/config/ini_reader.h),
 // command-line overrides, validation of every key before the first frame, and
 // the resolved configuration text stored in every output file.
 //
 // Format: a [sweep] section and one [scheme.NAME] section per scheme, in the
-// order they are simulated. Keys and defaults are listed in kSweepKeys /
-// kSchemeKeys (config.cc) and in the README. Every error names the file, the
-// full key, the value and the rule.
+// order they are simulated. Keys, defaults and rules are declared once in the
+// key tables (sim/config/config_keys.cc), which also give the messages and
+// ConfigKeysHelp(); the README documents them. Every error names the file,
+// the full key, the value and the rule.
 #ifndef CAPGAP_SIM_CONFIG_H_
 #define CAPGAP_SIM_CONFIG_H_
 
 #include <cstdint>
 #include <map>
 #include <string>
+#include <string_view>
 #include <utility>
 #include <vector>
 
@@ -23,6 +25,9 @@
 namespace capgap {
 
 enum class SourceKind { kRandom, kPrbs9, kPrbs15, kPrbs23, kPrbs31 };
+// The words of SourceKind, in enum order (the `source` key's word list).
+inline constexpr std::string_view kSourceKindWords[] = {"random", "prbs9", "prbs15", "prbs23",
+                                                        "prbs31"};
 
 struct SweepConfig {
   std::vector<double> ebno_db;          // points in simulation order
@@ -127,7 +132,14 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
 // STOP >= START) or a comma list "a,b,c". `what` names the key in messages.
 Result<std::vector<double>> ParseDbList(const std::string& text, const std::string& what);
 
+// The ParseSourceKind / ToString pair; the message lists the valid words
+// ("valid: random, prbs9, prbs15, prbs23, prbs31").
+Result<SourceKind> ParseSourceKind(std::string_view word);
 std::string ToString(SourceKind kind);
+
+// Every config key with its default, rule and meaning, generated from the key
+// tables (printed by `capgap run --help`).
+std::string ConfigKeysHelp();
 
 }  // namespace capgap
 

@@ -13,6 +13,7 @@
 #include <sstream>
 
 #include "blocks/core/hash.h"
+#include "sim/config/text.h"
 #include "sim/io/atomic_file.h"
 
 namespace capgap {
@@ -24,22 +25,17 @@ std::string Double17(double v) {
   return buf;
 }
 
+// The shared decimal parsers (sim/config/text.h) as out-parameter tests.
 bool ParseU64(const std::string& s, std::uint64_t* out) {
-  if (s.empty() || s[0] < '0' || s[0] > '9') return false;
-  errno = 0;
-  char* end = nullptr;
-  const unsigned long long v = std::strtoull(s.c_str(), &end, 10);
-  if (errno == ERANGE || end != s.c_str() + s.size()) return false;
-  *out = v;
-  return true;
+  auto v = ParseUint64(s);
+  if (v.ok()) *out = v.value();
+  return v.ok();
 }
 
 bool ParseDouble(const std::string& s, double* out) {
-  if (s.empty()) return false;
-  errno = 0;
-  char* end = nullptr;
-  *out = std::strtod(s.c_str(), &end);
-  return errno != ERANGE && end == s.c_str() + s.size() && std::isfinite(*out);
+  auto v = capgap::ParseDouble(s);
+  if (v.ok()) *out = v.value();
+  return v.ok();
 }
 
 std::vector<std::string> Words(const std::string& line) {

@@ -18,6 +18,7 @@
 #include "sim/chain/chain.h"
 #include "sim/chain/scheme_result.h"
 #include "sim/config/config.h"
+#include "sim/config/text.h"
 #include "sim/io/atomic_file.h"
 #include "sim/io/build_info.h"
 #include "sim/io/checkpoint.h"
@@ -91,18 +92,11 @@ class ProgressPrinter {
   bool bar_drawn_ = false;
 };
 
-// "--seed" value: decimal digits only, at most 2^64 - 1.
+// "--seed" value: decimal digits only, at most 2^64 - 1 (sim/config/text.h).
 bool ParseSeed(const std::string& text, std::uint64_t* seed) {
-  if (text.empty() || text.size() > 20) return false;
-  for (char c : text) {
-    if (c < '0' || c > '9') return false;
-  }
-  errno = 0;
-  char* end = nullptr;
-  const unsigned long long v = std::strtoull(text.c_str(), &end, 10);
-  if (errno == ERANGE || end != text.c_str() + text.size()) return false;
-  *seed = v;
-  return true;
+  auto v = ParseUint64(text);
+  if (v.ok()) *seed = v.value();
+  return v.ok();
 }
 
 // The output path against the file system (after CheckRunArguments): not a

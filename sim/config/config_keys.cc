@@ -1,0 +1,236 @@
+// The key tables of [sweep] and [scheme.NAME] (see config_keys.h): one
+// declaration per key gives its default, rule, help line and applicability;
+// sim/config/key_table.cc turns them into checks, messages and help.
+#include "sim/config/config_keys.h"
+
+#include <cmath>
+#include <sstream>
+#include <string_view>
+
+#include "blocks/mapping/demapper.h"
+#include "blocks/mapping/modulation.h"
+#include "sim/config/config.h"
+#include "sim/config/text.h"
+
+namespace capgap {
+namespace {
+
+// True when `value` can be quoted whole in a message (short, printable);
+// every valid word is. Block parsers quote the word they refuse, so a value
+// that is not goes without it.
+bool Quotable(const std::string& value) { return Printable(value) == value; }
+
+Status CheckModulation(const std::string& value) {
+  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ModulationChoices());
+  return ParseModulation(value).status();
+}
+
+Status CheckDemapper(const std::string& value) {
+  if (!Quotable(value)) return Status::Error("not a demap method; valid: " + DemapMethodChoices());
+  return ParseDemapMethod(value).status();
+}
+
+// ---------------------------------------------------------------- [sweep]
+constexpr KeySpec kSweepKeys[] = {
+    {"ebno_db", nullptr,
+     Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
+     "Eb/N0 points (per information bit), increasing, within [-20, 60] dB"},
+    {"target_errors", "100", IntegerAtLeast(1), "bit errors that end a point"},
+    {"max_bits", "100000000", IntegerAtLeast(1), "information bits that end a point"},
+    {"ber_floor", "1e-7", NumberIn(Closed(0), Open(0.5)),
+     "a scheme's sweep stops after a point below it"},
+    {"target_ber", "1e-5", NumberIn(Open(0), Open(0.5)), "BER at which the summary is taken"},
+    {"seed", "1", IntegerAtLeast(0), "master seed"},
+    {"threads", "0", IntegerIn(0, 4096, "0: all cores"), "worker threads"},
+    {"checkpoint_seconds", "60", NumberIn(Closed(0), Closed(86400), "seconds"),
+     "time between checkpoints while a point runs (0: only when a point finishes or the run "
+     "stops)"},
+};
+
+constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
+
+// ------------------------------------------------------- [scheme.NAME]
+constexpr std::string_view kLdpcWord[] = {"ldpc"};
+
+constexpr KeySpec kSchemeKeys[] = {
+    {"modulation", nullptr,
+     Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
+     "Gray-labelled constellation, unit average energy"},
+    {"ebno_db", "", Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
+     "this scheme's points instead of sweep.ebno_db"},
+    {"frame_bits", "1920", IntegerIn(1, 16777216),
+     "information bits per frame, a multiple of bits per symbol",
+     NotWith("code", kLdpcWord, "a frame is one codeword; the code sets its information bits")},
+    {"demapper", "maxlog", Custom("hard, maxlog, logmap", CheckDemapper),
+     "hard decisions, max-log or exact log-MAP LLRs"},
+    {"source", "random", OneOf(kSourceKindWords), "i.i.d. random bits or an ITU-T O.150 sequence"},
+    {"unit_frames", "0", IntegerIn(0, 1u << 20, "0: automatic"),
+     "frames per work unit (automatic: about 64 kbit)"},
+};
+
+constexpr std::string_view kShapingWords[] = {"none", "rc", "rrc"};
+constexpr std::string_view kShapedWords[] = {"rc", "rrc"};
+
+constexpr KeySpec kShapingKeys[] = {
+    {"shaping", "none", OneOf(kShapingWords),
+     "pulse shaping: none (one sample per symbol), raised cosine, root raised cosine"},
+    {"rolloff", "0.35", NumberIn(Open(0), Closed(1)), "roll-off factor",
+     OnlyWith("shaping", kShapedWords)},
+    {"span", "16", IntegerIn(1, 256), "filter length in symbols",
+     OnlyWith("shaping", kShapedWords)},
+    {"samples_per_symbol", "8", IntegerIn(2, 64), "oversampling factor",
+     OnlyWith("shaping", kShapedWords)},
+    {"timing_offset", "0", NumberIn(Closed(-0.5), Closed(0.5), "symbols"),
+     "receiver sampling offset", OnlyWith("shaping", kShapedWords)},
+};
+
+constexpr KeySpec kImpairmentKeys[] = {
+    {"phase_offset_deg", "0", AnyFiniteNumber(), "carrier phase offset in degrees"},
+    {"frequency_offset", "0", NumberIn(Closed(-0.5), Closed(0.5), "cycles per symbol"),
+     "carrier frequency offset"},
+};
+
+constexpr std::string_view kCodeWords[] = {"none", "conv", "ldpc"};
+
+constexpr KeySpec kCodeChoiceKeys[] = {
+    {"code", "none", OneOf(kCodeWords), "channel code, decoded from the demapper's LLRs"},
+};
+
+// ----------------------------------------------- code = conv
+constexpr std::string_view kConvWord[] = {"conv"};
+constexpr std::string_view kTerminationWords[] = {"tail", "tailbiting"};
+constexpr std::string_view kConvDecoderWords[] = {"viterbi_soft", "viterbi_hard", "bcjr"};
+
+constexpr KeySpec kConvKeys[] = {
+    {"generators", "133,171", Text("octal generator list, one per coded output, e.g. 133,171"),
+     "generator polynomials, MSB = tap on the current input bit"},
+    {"constraint_length", "7", IntegerIn(3, 9), "constraint length K"},
+    {"puncture", "none",
+     Text("none, or pattern rows separated by ',' (one row of 0/1 per generator), e.g. 110,101"),
+     "puncturing pattern; punctured positions reach the decoder as erasures"},
+    {"termination", "tail", OneOf(kTerminationWords),
+     "K-1 zero tail bits (counted in the rate) or tail-biting"},
+    {"decoder", "viterbi_soft", OneOf(kConvDecoderWords), "decoder (bcjr: max-log, tail only)"},
+    {"traceback", "0", IntegerIn(0, 100000, "0: automatic"),
+     "Viterbi traceback depth in trellis steps (automatic: 5 K, 10 K when punctured)"},
+};
+
+// ----------------------------------------------- code = ldpc
+constexpr std::string_view kConstructionWords[] = {"peg", "qc", "file"};
+constexpr std::string_view kPegWord[] = {"peg"};
+constexpr std::string_view kQcWord[] = {"qc"};
+constexpr std::string_view kFileWord[] = {"file"};
+constexpr std::string_view kLdpcDecoderWords[] = {"sum_product", "min_sum_normalized",
+                                                  "min_sum_offset"};
+constexpr std::string_view kNormalizedWord[] = {"min_sum_normalized"};
+constexpr std::string_view kOffsetWord[] = {"min_sum_offset"};
+constexpr std::string_view kScheduleWords[] = {"flooding", "layered"};
+constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float"};
+
+constexpr KeySpec kLdpcKeys[] = {
+    {"construction", "peg", OneOf(kConstructionWords),
+     "progressive edge growth, a lifted quasi-cyclic base matrix, or a parity-check matrix file"},
+    {"length", "2016", IntegerIn(8, 1u << 20), "code length n, a multiple of bits per symbol",
+     OnlyWith("construction", kPegWord)},
+    {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
+     OnlyWith("construction", kPegWord)},
+    {"degrees", "3", Text("D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2"),
+     "variable-node degree distribution", OnlyWith("construction", kPegWord)},
+    {"construction_seed", "1", IntegerAtLeast(0), "seed of the PEG construction",
+     OnlyWith("construction", kPegWord)},
+    {"base_matrix", nullptr,
+     Text("path of a base-matrix file (relative to the config file), e.g. codes/qc_r1-2_24x12.txt",
+          "must name a base-matrix file"),
+     "base (exponent) matrix", OnlyWith("construction", kQcWord)},
+    {"lifting", "0", IntegerIn(0, 65536, "0: the file's own"), "lifting size Z",
+     OnlyWith("construction", kQcWord)},
+    {"matrix_file", nullptr,
+     Text("path of a parity-check matrix file (relative to the config file)",
+          "must name a matrix file"),
+     "parity-check matrix in capgap's sparse text format", OnlyWith("construction", kFileWord)},
+    {"decoder", "min_sum_normalized", OneOf(kLdpcDecoderWords, "valid with code = ldpc"),
+     "belief propagation, or min-sum with a factor or an offset"},
+    {"schedule", "layered", OneOf(kScheduleWords),
+     "all checks then all variables, or check by check"},
+    {"max_iterations", "50", IntegerIn(1, 1000),
+     "iteration budget (stops early on a zero syndrome)"},
+    {"arithmetic", "auto", OneOf(kArithmeticWords),
+     "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
+    {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",
+     OnlyWith("decoder", kNormalizedWord)},
+    {"offset", "0.5", NumberIn(Closed(0), Closed(10)), "offset min-sum offset in LLR units",
+     OnlyWith("decoder", kOffsetWord)},
+};
+
+constexpr KeyTable kSchemeTables[] = {
+    {"common", kSchemeKeys},
+    {"pulse shaping", kShapingKeys},
+    {"carrier impairments", kImpairmentKeys},
+    {"channel code", kCodeChoiceKeys},
+    {"convolutional code", kConvKeys, OnlyWith("code", kConvWord)},
+    {"LDPC code", kLdpcKeys, OnlyWith("code", kLdpcWord)},
+};
+
+}  // namespace
+
+std::span<const KeyTable> SweepKeyTables() { return kSweepTables; }
+
+std::span<const KeyTable> SchemeKeyTables() { return kSchemeTables; }
+
+Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
+  const std::string text = Trim(text_in);
+  const auto parse_one = [](const std::string& s, double& out) {
+    auto v = ParseDouble(Trim(s));
+    if (v.ok()) out = v.value();
+    return v.status();
+  };
+  std::vector<double> out;
+  if (text.find(':') != std::string::npos) {
+    std::vector<std::string> parts;
+    std::stringstream ss(text);
+    std::string part;
+    while (std::getline(ss, part, ':')) parts.push_back(part);
+    double start = 0, step = 0, stop = 0;
+    if (parts.size() != 3 || !parse_one(parts[0], start).ok() || !parse_one(parts[1], step).ok() ||
+        !parse_one(parts[2], stop).ok()) {
+      return Status::Error("expected START:STEP:STOP (numbers, in dB) or a comma list");
+    }
+    if (!(step > 0)) return Status::Error("STEP must be > 0");
+    if (stop < start) return Status::Error("STOP must be >= START");
+    const double count = std::floor((stop - start) / step + 1e-9) + 1;
+    if (count > 10000) return Status::Error("more than 10000 points");
+    for (int i = 0; i < static_cast<int>(count); ++i) {
+      // Round to 1e-9 dB so that 0:0.1:1 gives 0.3, not 0.30000000000000004.
+      out.push_back(std::round((start + i * step) * 1e9) / 1e9);
+    }
+  } else {
+    std::stringstream ss(text);
+    std::string part;
+    while (std::getline(ss, part, ',')) {
+      double v = 0;
+      if (Status s = parse_one(part, v); !s.ok()) {
+        // A one-item list is the value itself, which the caller quotes.
+        const bool single = text.find(',') == std::string::npos;
+        return Status::Error((single ? "" : QuoteValue(Trim(part)) + " is ") + s.message() +
+                             "; expected START:STEP:STOP or a comma list");
+      }
+      out.push_back(v);
+    }
+    if (out.empty()) return Status::Error("empty list");
+  }
+  for (std::size_t i = 1; i < out.size(); ++i) {
+    if (!(out[i] > out[i - 1])) return Status::Error("points must increase");
+  }
+  return out;
+}
+
+Status CheckEbnoList(const std::string& value) {
+  auto points = ParseDbPoints(value);
+  if (!points.ok()) return points.status();
+  for (double x : points.value()) {
+    if (x < -20 || x > 60) return Status::Error("points must lie in [-20, 60] dB");
+  }
+  return Status::Ok();
+}
+
+}  // namespace capgap
