@@ -1,11 +1,13 @@
-// The registry: explicit tables of the code families, channels and
-// constellations a scheme can name. The one chain (chain.h) looks a scheme's
-// choice up here and never asks which family it runs; adding a family is its
-// own files (blocks/ for the blocks, sim/families/ for building them from a
-// scheme's keys) plus one line in a table of registry.cc.
+// The registry: explicit tables of the code families and channels a scheme
+// can name. The chain (chain.h), the config key tables (sim/config/) and the
+// analysis (scheme_result.h) look a scheme's choice up here and never ask
+// which family it runs. Adding a family is its own files (blocks/ for the
+// blocks, one sim/families/ file for its keys, parse, build and analysis)
+// plus one line in a table of registry.cc.
 #ifndef CAPGAP_SIM_CHAIN_REGISTRY_H_
 #define CAPGAP_SIM_CHAIN_REGISTRY_H_
 
+#include <cstdint>
 #include <memory>
 #include <span>
 #include <string>
@@ -16,16 +18,27 @@
 #include "blocks/core/status.h"
 #include "blocks/fec/channel_code.h"
 #include "sim/config/config.h"
+#include "sim/config/key_table.h"
 
 namespace capgap {
+
 struct SchemeResult;  // sim/chain/scheme_result.h
-}  // namespace capgap
-
-namespace capgap {
 
 // A code family, named by the scheme's `code` key.
 struct CodeFamily {
   const char* name;
+  // The family's own keys of [scheme.NAME] (a table that applies only with
+  // code = name), or nullptr when it has none.
+  const KeyTable* keys;
+  // True when a frame is one codeword whose information bits the code fixes
+  // (frame_bits does not apply).
+  bool fixed_frame;
+  // Automatic work units hold a multiple of this many frames (decoders that
+  // take frames across SIMD lanes want full batches).
+  std::uint32_t unit_frames_multiple;
+  // Reads the family's validated keys into the scheme's typed options
+  // (checks that span keys go here); nullptr: nothing to read.
+  Status (*parse)(const ResolvedKeys& keys, const std::string& source, SchemeConfig& scheme);
   // Builds the family's code for `scheme`. Every message names the full key
   // (`key_prefix` is "scheme.NAME.") with its value and the rule.
   Result<std::shared_ptr<const ChannelCode>> (*build)(const SchemeConfig& scheme,
@@ -43,12 +56,16 @@ struct ChannelFamily {
   std::unique_ptr<const Channel> (*make)(const NoiseSpec& spec);
 };
 
-std::span<const CodeFamily> CodeFamilies();
-std::span<const ChannelFamily> ChannelFamilies();
+std::span<const CodeFamily* const> CodeFamilies();
+std::span<const ChannelFamily* const> ChannelFamilies();
 // nullptr when no family has that name.
 const CodeFamily* FindCodeFamily(std::string_view name);
 const ChannelFamily* FindChannelFamily(std::string_view name);
-// "none, conv, ldpc" etc., for messages and help text.
+// The families' names in registry order (the words of the `code` key), and
+// those of the fixed-frame families.
+std::span<const std::string_view> CodeFamilyWords();
+std::span<const std::string_view> FixedFrameCodeWords();
+// "none, conv, ldpc, ...", for messages.
 std::string CodeFamilyNames();
 
 }  // namespace capgap

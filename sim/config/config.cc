@@ -5,6 +5,8 @@
 // "FILE: KEY = 'VALUE': RULE".
 #include "sim/config/config.h"
 
+#include "sim/chain/registry.h"
+
 #include <algorithm>
 #include <filesystem>
 
@@ -79,6 +81,8 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
   return Status::Error(source + ": unknown section [" + Printable(section) + "]; " + kSectionsHint);
 }
 
+}  // namespace
+
 // `m` divides the value of `key` (frame_bits, LDPC length).
 Status CheckMultipleOfBitsPerSymbol(const ResolvedKeys& keys, const char* key,
                                     const Modulation& modulation) {
@@ -87,6 +91,8 @@ Status CheckMultipleOfBitsPerSymbol(const ResolvedKeys& keys, const char* key,
   return keys.Fail(key, "must be a multiple of " + std::to_string(m) + " (bits per symbol of " +
                             ToString(modulation) + ")");
 }
+
+namespace {
 
 Result<SweepConfig> BuildSweep(const ResolvedKeys& k) {
   if (Status s = k.Validate(); !s.ok()) return s;
@@ -102,44 +108,6 @@ Result<SweepConfig> BuildSweep(const ResolvedKeys& k) {
   c.threads = static_cast<int>(k.integer("threads"));
   c.checkpoint_seconds = k.number("checkpoint_seconds");
   return c;
-}
-
-Status BuildConv(const ResolvedKeys& k, ConvSchemeConfig& c) {
-  c.generators = k.text("generators");
-  c.constraint_length = static_cast<int>(k.integer("constraint_length"));
-  c.puncture = k.text("puncture");
-  c.termination = k.text("termination");
-  c.decoder = k.text("decoder");
-  c.traceback = static_cast<int>(k.integer("traceback"));
-  return Status::Ok();
-}
-
-Status BuildLdpc(const ResolvedKeys& k, const Modulation& modulation, const std::string& source,
-                 LdpcSchemeConfig& c) {
-  c.config_dir = std::filesystem::path(source).parent_path().string();
-  c.construction = k.text("construction");
-  if (c.construction == "peg") {
-    if (Status s = CheckMultipleOfBitsPerSymbol(k, "length", modulation); !s.ok()) return s;
-    c.length = static_cast<int>(k.integer("length"));
-    c.rate = k.number("rate");
-    c.degrees = k.text("degrees");
-    c.construction_seed = k.integer("construction_seed");
-  } else if (c.construction == "qc") {
-    c.base_matrix = k.text("base_matrix");
-    c.lifting = static_cast<int>(k.integer("lifting"));
-  } else {
-    c.matrix_file = k.text("matrix_file");
-  }
-  c.decoder = k.text("decoder");
-  c.schedule = k.text("schedule");
-  c.max_iterations = static_cast<int>(k.integer("max_iterations"));
-  c.arithmetic = k.text("arithmetic");
-  if (c.decoder == "sum_product" && (c.arithmetic == "int8" || c.arithmetic == "int16")) {
-    return k.Fail("arithmetic", "sum_product runs in float only (valid with it: auto, float)");
-  }
-  if (k.has("normalization")) c.normalization = k.number("normalization");
-  if (k.has("offset")) c.offset = k.number("offset");
-  return Status::Ok();
 }
 
 Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
@@ -181,10 +149,9 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
   }
   s.phase_offset_deg = k.number("phase_offset_deg");
   s.frequency_offset = k.number("frequency_offset");
-  if (s.code == "conv") {
-    if (Status st = BuildConv(k, s.conv); !st.ok()) return st;
-  } else if (s.code == "ldpc") {
-    if (Status st = BuildLdpc(k, s.modulation, source, s.ldpc); !st.ok()) return st;
+  // The code family reads its own keys (sim/families/).
+  if (const CodeFamily* family = FindCodeFamily(s.code); family && family->parse) {
+    if (Status st = family->parse(k, source, s); !st.ok()) return st;
   }
   return s;
 }
@@ -218,12 +185,16 @@ std::string LdpcSchemeConfig::ResolvePath(const std::string& path) const {
 std::uint32_t SchemeConfig::ResolvedUnitFrames() const {
   if (unit_frames > 0) return unit_frames;
   constexpr std::uint32_t kUnitBits = 65536;
-  if (code == "ldpc") {
-    // A multiple of 64 frames, so the decoder's SIMD batches (16 to 64
-    // codewords across lanes) are full on every target; frame_bits is the
-    // code's k once the chain has built the code (0 before: one batch).
-    const std::uint32_t frames = frame_bits == 0 ? 64 : (kUnitBits + frame_bits - 1) / frame_bits;
-    return (frames + 63) / 64 * 64;
+  const CodeFamily* family = FindCodeFamily(code);
+  const std::uint32_t multiple = family ? family->unit_frames_multiple : 1;
+  if (multiple > 1) {
+    // A multiple of the family's batch (LDPC: 64 frames, so the decoder's
+    // SIMD batches of 16 to 64 codewords across lanes are full on every
+    // target); frame_bits is the code's k once the chain has built the code
+    // (0 before: one batch).
+    const std::uint32_t frames =
+        frame_bits == 0 ? multiple : (kUnitBits + frame_bits - 1) / frame_bits;
+    return (frames + multiple - 1) / multiple * multiple;
   }
   return std::max<std::uint32_t>(
       1, (kUnitBits + frame_bits - 1) / std::max<std::uint32_t>(frame_bits, 1));

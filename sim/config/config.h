@@ -10,6 +10,7 @@
 #ifndef CAPGAP_SIM_CONFIG_H_
 #define CAPGAP_SIM_CONFIG_H_
 
+#include <any>
 #include <cstdint>
 #include <map>
 #include <string>
@@ -98,9 +99,12 @@ struct SchemeConfig {
   double timing_offset = 0;      // receiver sampling offset, symbols
   double phase_offset_deg = 0;   // carrier phase offset
   double frequency_offset = 0;   // carrier frequency offset, cycles per symbol
-  std::string code = "none";  // none, conv, ldpc
+  std::string code = "none";  // a code family of the registry (sim/chain/registry.cc)
   ConvSchemeConfig conv;
   LdpcSchemeConfig ldpc;
+  // Typed options of code families that keep them outside the structs above
+  // (set by the family's parse, read by its build; sim/families/).
+  std::any code_options;
   // Frames per work unit after resolving "automatic" (a function of the
   // scheme only, never of the thread count or the CPU): about 64 kbit, for
   // LDPC a multiple of 64 codewords.
@@ -136,6 +140,12 @@ Result<std::vector<double>> ParseDbList(const std::string& text, const std::stri
 // ("valid: random, prbs9, prbs15, prbs23, prbs31").
 Result<SourceKind> ParseSourceKind(std::string_view word);
 std::string ToString(SourceKind kind);
+
+class ResolvedKeys;  // sim/config/key_table.h
+// "FILE: KEY = 'VALUE': must be a multiple of m (bits per symbol of MOD)"
+// unless m divides the integer value of `key`.
+Status CheckMultipleOfBitsPerSymbol(const ResolvedKeys& keys, const char* key,
+                                    const Modulation& modulation);
 
 // Every config key with its default, rule and meaning, generated from the key
 // tables (printed by `capgap run --help`).

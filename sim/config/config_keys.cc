@@ -3,6 +3,10 @@
 // sim/config/key_table.cc turns them into checks, messages and help.
 #include "sim/config/config_keys.h"
 
+#include <vector>
+
+#include "sim/chain/registry.h"
+
 #include <cmath>
 #include <sstream>
 #include <string_view>
@@ -50,9 +54,9 @@ constexpr KeySpec kSweepKeys[] = {
 constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
 
 // ------------------------------------------------------- [scheme.NAME]
-constexpr std::string_view kLdpcWord[] = {"ldpc"};
 
-constexpr KeySpec kSchemeKeys[] = {
+std::span<const KeySpec> SchemeCommonKeys() {
+  static const KeySpec keys[] = {
     {"modulation", nullptr,
      Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
      "Gray-labelled constellation, unit average energy"},
@@ -60,13 +64,16 @@ constexpr KeySpec kSchemeKeys[] = {
      "this scheme's points instead of sweep.ebno_db"},
     {"frame_bits", "1920", IntegerIn(1, 16777216),
      "information bits per frame, a multiple of bits per symbol",
-     NotWith("code", kLdpcWord, "a frame is one codeword; the code sets its information bits")},
+     NotWith("code", FixedFrameCodeWords(),
+             "a frame is one codeword; the code sets its information bits")},
     {"demapper", "maxlog", Custom("hard, maxlog, logmap", CheckDemapper),
      "hard decisions, max-log or exact log-MAP LLRs"},
     {"source", "random", OneOf(kSourceKindWords), "i.i.d. random bits or an ITU-T O.150 sequence"},
     {"unit_frames", "0", IntegerIn(0, 1u << 20, "0: automatic"),
      "frames per work unit (automatic: about 64 kbit)"},
-};
+  };
+  return keys;
+}
 
 constexpr std::string_view kShapingWords[] = {"none", "rc", "rrc"};
 constexpr std::string_view kShapedWords[] = {"rc", "rrc"};
@@ -90,92 +97,32 @@ constexpr KeySpec kImpairmentKeys[] = {
      "carrier frequency offset"},
 };
 
-constexpr std::string_view kCodeWords[] = {"none", "conv", "ldpc"};
 
-constexpr KeySpec kCodeChoiceKeys[] = {
-    {"code", "none", OneOf(kCodeWords), "channel code, decoded from the demapper's LLRs"},
-};
-
-// ----------------------------------------------- code = conv
-constexpr std::string_view kConvWord[] = {"conv"};
-constexpr std::string_view kTerminationWords[] = {"tail", "tailbiting"};
-constexpr std::string_view kConvDecoderWords[] = {"viterbi_soft", "viterbi_hard", "bcjr"};
-
-constexpr KeySpec kConvKeys[] = {
-    {"generators", "133,171", Text("octal generator list, one per coded output, e.g. 133,171"),
-     "generator polynomials, MSB = tap on the current input bit"},
-    {"constraint_length", "7", IntegerIn(3, 9), "constraint length K"},
-    {"puncture", "none",
-     Text("none, or pattern rows separated by ',' (one row of 0/1 per generator), e.g. 110,101"),
-     "puncturing pattern; punctured positions reach the decoder as erasures"},
-    {"termination", "tail", OneOf(kTerminationWords),
-     "K-1 zero tail bits (counted in the rate) or tail-biting"},
-    {"decoder", "viterbi_soft", OneOf(kConvDecoderWords), "decoder (bcjr: max-log, tail only)"},
-    {"traceback", "0", IntegerIn(0, 100000, "0: automatic"),
-     "Viterbi traceback depth in trellis steps (automatic: 5 K, 10 K when punctured)"},
-};
-
-// ----------------------------------------------- code = ldpc
-constexpr std::string_view kConstructionWords[] = {"peg", "qc", "file"};
-constexpr std::string_view kPegWord[] = {"peg"};
-constexpr std::string_view kQcWord[] = {"qc"};
-constexpr std::string_view kFileWord[] = {"file"};
-constexpr std::string_view kLdpcDecoderWords[] = {"sum_product", "min_sum_normalized",
-                                                  "min_sum_offset"};
-constexpr std::string_view kNormalizedWord[] = {"min_sum_normalized"};
-constexpr std::string_view kOffsetWord[] = {"min_sum_offset"};
-constexpr std::string_view kScheduleWords[] = {"flooding", "layered"};
-constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float"};
-
-constexpr KeySpec kLdpcKeys[] = {
-    {"construction", "peg", OneOf(kConstructionWords),
-     "progressive edge growth, a lifted quasi-cyclic base matrix, or a parity-check matrix file"},
-    {"length", "2016", IntegerIn(8, 1u << 20), "code length n, a multiple of bits per symbol",
-     OnlyWith("construction", kPegWord)},
-    {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
-     OnlyWith("construction", kPegWord)},
-    {"degrees", "3", Text("D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2"),
-     "variable-node degree distribution", OnlyWith("construction", kPegWord)},
-    {"construction_seed", "1", IntegerAtLeast(0), "seed of the PEG construction",
-     OnlyWith("construction", kPegWord)},
-    {"base_matrix", nullptr,
-     Text("path of a base-matrix file (relative to the config file), e.g. codes/qc_r1-2_24x12.txt",
-          "must name a base-matrix file"),
-     "base (exponent) matrix", OnlyWith("construction", kQcWord)},
-    {"lifting", "0", IntegerIn(0, 65536, "0: the file's own"), "lifting size Z",
-     OnlyWith("construction", kQcWord)},
-    {"matrix_file", nullptr,
-     Text("path of a parity-check matrix file (relative to the config file)",
-          "must name a matrix file"),
-     "parity-check matrix in capgap's sparse text format", OnlyWith("construction", kFileWord)},
-    {"decoder", "min_sum_normalized", OneOf(kLdpcDecoderWords, "valid with code = ldpc"),
-     "belief propagation, or min-sum with a factor or an offset"},
-    {"schedule", "layered", OneOf(kScheduleWords),
-     "all checks then all variables, or check by check"},
-    {"max_iterations", "50", IntegerIn(1, 1000),
-     "iteration budget (stops early on a zero syndrome)"},
-    {"arithmetic", "auto", OneOf(kArithmeticWords),
-     "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
-    {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",
-     OnlyWith("decoder", kNormalizedWord)},
-    {"offset", "0.5", NumberIn(Closed(0), Closed(10)), "offset min-sum offset in LLR units",
-     OnlyWith("decoder", kOffsetWord)},
-};
-
-constexpr KeyTable kSchemeTables[] = {
-    {"common", kSchemeKeys},
-    {"pulse shaping", kShapingKeys},
-    {"carrier impairments", kImpairmentKeys},
-    {"channel code", kCodeChoiceKeys},
-    {"convolutional code", kConvKeys, OnlyWith("code", kConvWord)},
-    {"LDPC code", kLdpcKeys, OnlyWith("code", kLdpcWord)},
-};
 
 }  // namespace
 
 std::span<const KeyTable> SweepKeyTables() { return kSweepTables; }
 
-std::span<const KeyTable> SchemeKeyTables() { return kSchemeTables; }
+std::span<const KeyTable> SchemeKeyTables() {
+  // The code choice and each family's own table come from the registry
+  // (sim/chain/registry.cc): a new family adds its keys there, not here.
+  static const KeySpec code_choice[] = {
+      {"code", "none", OneOf(CodeFamilyWords()), "channel code, decoded from the demapper's LLRs"},
+  };
+  static const std::vector<KeyTable> tables = [] {
+    std::vector<KeyTable> t = {
+        {"common", SchemeCommonKeys()},
+        {"pulse shaping", kShapingKeys},
+        {"carrier impairments", kImpairmentKeys},
+        {"channel code", code_choice},
+    };
+    for (const CodeFamily* f : CodeFamilies()) {
+      if (f->keys) t.push_back(*f->keys);
+    }
+    return t;
+  }();
+  return tables;
+}
 
 Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
   const std::string text = Trim(text_in);

@@ -1,15 +1,51 @@
 // Code family `conv`: convolutional codes (generators, constraint_length,
 // puncture, termination, decoder, traceback) built into a ConvChannelCode.
+#include "sim/families/conv_family.h"
+
 #include <memory>
 
 #include <algorithm>
 
 #include "blocks/fec/conv_channel_code.h"
 #include "blocks/fec/distance_spectrum.h"
-#include "sim/families/families.h"
+#include "sim/chain/scheme_result.h"
+#include "sim/config/key_table.h"
 
 namespace capgap {
 namespace {
+
+// The keys of code = conv.
+constexpr std::string_view kConvWord[] = {"conv"};
+constexpr std::string_view kTerminationWords[] = {"tail", "tailbiting"};
+constexpr std::string_view kConvDecoderWords[] = {"viterbi_soft", "viterbi_hard", "bcjr"};
+
+constexpr KeySpec kConvKeys[] = {
+    {"generators", "133,171", Text("octal generator list, one per coded output, e.g. 133,171"),
+     "generator polynomials, MSB = tap on the current input bit"},
+    {"constraint_length", "7", IntegerIn(3, 9), "constraint length K"},
+    {"puncture", "none",
+     Text("none, or pattern rows separated by ',' (one row of 0/1 per generator), e.g. 110,101"),
+     "puncturing pattern; punctured positions reach the decoder as erasures"},
+    {"termination", "tail", OneOf(kTerminationWords),
+     "K-1 zero tail bits (counted in the rate) or tail-biting"},
+    {"decoder", "viterbi_soft", OneOf(kConvDecoderWords), "decoder (bcjr: max-log, tail only)"},
+    {"traceback", "0", IntegerIn(0, 100000, "0: automatic"),
+     "Viterbi traceback depth in trellis steps (automatic: 5 K, 10 K when punctured)"},
+};
+
+constexpr KeyTable kConvKeyTable = {"convolutional code", kConvKeys, OnlyWith("code", kConvWord)};
+
+Status ParseConv(const ResolvedKeys& k, const std::string& /*source*/, SchemeConfig& s) {
+  ConvSchemeConfig& c = s.conv;
+  c.generators = k.text("generators");
+  c.constraint_length = static_cast<int>(k.integer("constraint_length"));
+  c.puncture = k.text("puncture");
+  c.termination = k.text("termination");
+  c.decoder = k.text("decoder");
+  c.traceback = static_cast<int>(k.integer("traceback"));
+  return Status::Ok();
+}
+
 
 Result<ConvDecoderKind> ParseConvDecoder(const std::string& word) {
   if (word == "viterbi_soft") return ConvDecoderKind::kViterbiSoft;
@@ -17,8 +53,6 @@ Result<ConvDecoderKind> ParseConvDecoder(const std::string& word) {
   if (word == "bcjr") return ConvDecoderKind::kBcjr;
   return Status::Error("valid: viterbi_soft, viterbi_hard, bcjr");
 }
-
-}  // namespace
 
 Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
                                                      const std::string& p) {
@@ -95,5 +129,11 @@ void AnalyseConv(const ChannelCode& code, const SchemeConfig& scheme, SchemeResu
     }
   }
 }
+
+}  // namespace
+
+const CodeFamily kConvFamily = {"conv",     &kConvKeyTable, /*fixed_frame=*/false,
+                                /*unit_frames_multiple=*/1, &ParseConv, &BuildConv,
+                                &AnalyseConv};
 
 }  // namespace capgap

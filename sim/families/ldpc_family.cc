@@ -1,6 +1,9 @@
 // Code family `ldpc`: LDPC codes from a PEG construction, a lifted QC base
 // matrix or a parity-check matrix file, with their systematic encoder and
 // decoder, built into an LdpcChannelCode. frame_bits becomes the code's k.
+#include "sim/families/ldpc_family.h"
+
+#include <filesystem>
 #include <memory>
 
 #include "blocks/fec/ldpc_channel_code.h"
@@ -8,9 +11,91 @@
 #include "blocks/fec/ldpc_matrix_file.h"
 #include "analysis/capacity.h"
 #include "analysis/density_evolution.h"
-#include "sim/families/families.h"
+#include "sim/chain/scheme_result.h"
+#include "sim/config/key_table.h"
 
 namespace capgap {
+namespace {
+
+// The keys of code = ldpc.
+constexpr std::string_view kConstructionWords[] = {"peg", "qc", "file"};
+constexpr std::string_view kPegWord[] = {"peg"};
+constexpr std::string_view kQcWord[] = {"qc"};
+constexpr std::string_view kFileWord[] = {"file"};
+constexpr std::string_view kLdpcDecoderWords[] = {"sum_product", "min_sum_normalized",
+                                                  "min_sum_offset"};
+constexpr std::string_view kNormalizedWord[] = {"min_sum_normalized"};
+constexpr std::string_view kOffsetWord[] = {"min_sum_offset"};
+constexpr std::string_view kScheduleWords[] = {"flooding", "layered"};
+constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float"};
+
+constexpr KeySpec kLdpcKeys[] = {
+    {"construction", "peg", OneOf(kConstructionWords),
+     "progressive edge growth, a lifted quasi-cyclic base matrix, or a parity-check matrix file"},
+    {"length", "2016", IntegerIn(8, 1u << 20), "code length n, a multiple of bits per symbol",
+     OnlyWith("construction", kPegWord)},
+    {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
+     OnlyWith("construction", kPegWord)},
+    {"degrees", "3", Text("D (all nodes) or D:FRACTION,... of nodes, e.g. 2:0.5,3:0.3,8:0.2"),
+     "variable-node degree distribution", OnlyWith("construction", kPegWord)},
+    {"construction_seed", "1", IntegerAtLeast(0), "seed of the PEG construction",
+     OnlyWith("construction", kPegWord)},
+    {"base_matrix", nullptr,
+     Text("path of a base-matrix file (relative to the config file), e.g. codes/qc_r1-2_24x12.txt",
+          "must name a base-matrix file"),
+     "base (exponent) matrix", OnlyWith("construction", kQcWord)},
+    {"lifting", "0", IntegerIn(0, 65536, "0: the file's own"), "lifting size Z",
+     OnlyWith("construction", kQcWord)},
+    {"matrix_file", nullptr,
+     Text("path of a parity-check matrix file (relative to the config file)",
+          "must name a matrix file"),
+     "parity-check matrix in capgap's sparse text format", OnlyWith("construction", kFileWord)},
+    {"decoder", "min_sum_normalized", OneOf(kLdpcDecoderWords, "valid with code = ldpc"),
+     "belief propagation, or min-sum with a factor or an offset"},
+    {"schedule", "layered", OneOf(kScheduleWords),
+     "all checks then all variables, or check by check"},
+    {"max_iterations", "50", IntegerIn(1, 1000),
+     "iteration budget (stops early on a zero syndrome)"},
+    {"arithmetic", "auto", OneOf(kArithmeticWords),
+     "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
+    {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",
+     OnlyWith("decoder", kNormalizedWord)},
+    {"offset", "0.5", NumberIn(Closed(0), Closed(10)), "offset min-sum offset in LLR units",
+     OnlyWith("decoder", kOffsetWord)},
+};
+
+constexpr std::string_view kLdpcWord[] = {"ldpc"};
+constexpr KeyTable kLdpcKeyTable = {"LDPC code", kLdpcKeys, OnlyWith("code", kLdpcWord)};
+
+Status ParseLdpc(const ResolvedKeys& k, const std::string& source, SchemeConfig& s) {
+  LdpcSchemeConfig& c = s.ldpc;
+  const Modulation& modulation = s.modulation;
+  c.config_dir = std::filesystem::path(source).parent_path().string();
+  c.construction = k.text("construction");
+  if (c.construction == "peg") {
+    if (Status s = CheckMultipleOfBitsPerSymbol(k, "length", modulation); !s.ok()) return s;
+    c.length = static_cast<int>(k.integer("length"));
+    c.rate = k.number("rate");
+    c.degrees = k.text("degrees");
+    c.construction_seed = k.integer("construction_seed");
+  } else if (c.construction == "qc") {
+    c.base_matrix = k.text("base_matrix");
+    c.lifting = static_cast<int>(k.integer("lifting"));
+  } else {
+    c.matrix_file = k.text("matrix_file");
+  }
+  c.decoder = k.text("decoder");
+  c.schedule = k.text("schedule");
+  c.max_iterations = static_cast<int>(k.integer("max_iterations"));
+  c.arithmetic = k.text("arithmetic");
+  if (c.decoder == "sum_product" && (c.arithmetic == "int8" || c.arithmetic == "int16")) {
+    return k.Fail("arithmetic", "sum_product runs in float only (valid with it: auto, float)");
+  }
+  if (k.has("normalization")) c.normalization = k.number("normalization");
+  if (k.has("offset")) c.offset = k.number("offset");
+  return Status::Ok();
+}
+
 
 Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
                                                      const std::string& p) {
@@ -139,5 +224,11 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
                "binary-input AWGN); no gap is quoted";
 }
 
+
+}  // namespace
+
+const CodeFamily kLdpcFamily = {"ldpc",      &kLdpcKeyTable, /*fixed_frame=*/true,
+                                /*unit_frames_multiple=*/64, &ParseLdpc, &BuildLdpc,
+                                &AnalyseLdpc};
 
 }  // namespace capgap
