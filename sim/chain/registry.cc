@@ -4,6 +4,7 @@
 #include <vector>
 
 #include "sim/families/awgn_family.h"
+#include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
 #include "sim/families/ldpc_family.h"
 #include "sim/families/uncoded_family.h"
@@ -15,6 +16,7 @@ const CodeFamily* const kCodeFamilies[] = {
     &kUncodedFamily,
     &kConvFamily,
     &kLdpcFamily,
+    &kBlockFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {
