@@ -22,6 +22,7 @@
 #include "analysis/uncoded_theory.h"
 #include "blocks/core/energy.h"
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/demap_kernels.h"
 #include "blocks/mapping/mapper.h"
 #include "sim/atomic_file.h"
 #include "sim/build_info.h"
@@ -362,6 +363,7 @@ int RunMain(const RunArgs& args, [[maybe_unused]] MpiWorld* world) {
   meta.threads = nthreads;
   meta.seed = cfg.sweep.seed;
   meta.kernel_target = NoiseKernelTarget();
+  meta.demap_kernel_target = DemapKernelTarget();
   meta.created_utc = UtcNow();
   if (Status s = WriteCurvesFile(output, meta, results); !s.ok()) return Fail(s.message());
   ckpt.complete = true;
