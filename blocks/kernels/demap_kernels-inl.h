@@ -26,6 +26,7 @@
 #include <algorithm>
 #include <cstddef>
 #include <cstdint>
+#include <cstring>
 #include <numbers>
 #include <type_traits>
 
@@ -105,8 +106,8 @@ HWY_INLINE VF LogPositive(DF df, VF x) {
 }
 
 // reference::demap_detail::LlrsFromMetrics for a vector of items.
-template <int B>
-HWY_INLINE void LlrsFromMetrics(DF df, const VF* e, VF scale, bool exact, VF* o) {
+template <int B, bool kExact>
+HWY_INLINE void LlrsFromMetrics(DF df, const VF* e, VF scale, VF* o) {
   constexpr int N = 1 << B;
   const VF inf = hn::Set(df, reference::demap_detail::kInf);
   for (int k = 0; k < B; ++k) {
@@ -119,7 +120,7 @@ HWY_INLINE void LlrsFromMetrics(DF df, const VF* e, VF scale, bool exact, VF* o)
       }
     }
     VF llr = hn::Mul(hn::Sub(m1, m0), scale);
-    if (exact) {
+    if constexpr (kExact) {
       VF s0 = hn::Zero(df), s1 = hn::Zero(df);
       for (int l = 0; l < N; ++l) {
         if ((l >> (B - 1 - k)) & 1) {
@@ -160,8 +161,8 @@ HWY_INLINE void StoreItems(D d, const hn::Vec<D>* v, T* HWY_RESTRICT out) {
 
 // Runs body(in, out) on each full vector of the n items (kIn input floats and
 // kOut outputs of type T per item), then on a zero-padded copy of the rest.
-template <int kIn, int kOut, typename T, class Body>
-HWY_INLINE void ForEachVector(DF df, const float* HWY_RESTRICT in, std::size_t n,
+template <int kIn, int kOut, typename T, class D, class Body>
+HWY_INLINE void ForEachVector(D df, const float* HWY_RESTRICT in, std::size_t n,
                               T* HWY_RESTRICT out, Body body) {
   const std::size_t lanes = hn::Lanes(df);
   std::size_t t = 0;
@@ -177,8 +178,8 @@ HWY_INLINE void ForEachVector(DF df, const float* HWY_RESTRICT in, std::size_t n
 }
 
 // ----------------------------------------------------------------- soft
-template <int P>
-HWY_INLINE void PamSoft(DF df, const float* z, std::size_t n, float inv_s, float scale, bool exact,
+template <int P, bool kExact>
+HWY_INLINE void PamSoft(DF df, const float* z, std::size_t n, float inv_s, float scale,
                         float* out) {
   constexpr int L = 1 << P;
   const VF two_inv_s = hn::Set(df, 2.0f * inv_s);
@@ -191,7 +192,7 @@ HWY_INLINE void PamSoft(DF df, const float* z, std::size_t n, float inv_s, float
       e[Gray(j)] = hn::Sub(hn::Set(df, c * c), hn::Mul(hn::Set(df, c), u2));
     }
     VF llr[P];
-    LlrsFromMetrics<P>(df, e, vscale, exact && P > 1, llr);
+    LlrsFromMetrics<P, kExact>(df, e, vscale, llr);
     StoreItems<P>(df, llr, o);
   });
 }
@@ -213,9 +214,9 @@ HWY_INLINE void Pam4MaxLog(DF df, const float* z, std::size_t n, float s, float 
   });
 }
 
-template <int B>
+template <int B, bool kExact>
 HWY_INLINE void PskSoft(DF df, const float* y, std::size_t n, const float* xr, const float* xi,
-                        float inv_n0, bool exact, float* out) {
+                        float inv_n0, float* out) {
   constexpr int N = 1 << B;
   const VF scale = hn::Set(df, inv_n0);
   const VF minus2 = hn::Set(df, -2.0f);
@@ -236,7 +237,7 @@ HWY_INLINE void PskSoft(DF df, const float* y, std::size_t n, const float* xr, c
       }
     }
     VF llr[B];
-    LlrsFromMetrics<B>(df, e, scale, exact, llr);
+    LlrsFromMetrics<B, kExact>(df, e, scale, llr);
     StoreItems<B>(df, llr, o);
   });
 }
@@ -254,10 +255,16 @@ HWY_INLINE void WithBits(int bits, F f) {
 }
 
 // ----------------------------------------------------------------- hard
+// The hard decisions are few integer and mask operations per item, bound by
+// the vector shuffle/mask port; 256-bit vectors were measured faster than
+// 512-bit ones for them (tests/bench/demap_bench), so they cap the width.
+using DH = hn::CappedTag<float, 8>;
+
 // Nearest labels of a vector of items (reference::demap_detail::HardLabel).
-HWY_INLINE VI PamLabels(DF df, VF u, int levels) {
-  const DI di;
-  VI j = hn::Zero(di);
+template <class D>
+HWY_INLINE hn::Vec<hn::RebindToSigned<D>> PamLabels(D df, hn::Vec<D> u, int levels) {
+  const hn::RebindToSigned<D> di;
+  auto j = hn::Zero(di);
   for (int i = 0; i < levels - 1; ++i) {
     const auto below = hn::Lt(u, hn::Set(df, static_cast<float>(levels - 2 - 2 * i)));
     j = hn::Sub(j, hn::VecFromMask(di, hn::RebindMask(di, below)));  // mask lanes are -1
@@ -265,18 +272,121 @@ HWY_INLINE VI PamLabels(DF df, VF u, int levels) {
   return hn::Xor(j, hn::ShiftRight<1>(j));
 }
 
-HWY_INLINE VI PskLabels(DF df, VF yr, VF yi, const DemapKernelArgs& a) {
-  const DI di;
+template <class D>
+HWY_INLINE hn::Vec<hn::RebindToSigned<D>> PskLabels(D df, hn::Vec<D> yr, hn::Vec<D> yi,
+                                                    const DemapKernelArgs& a) {
+  const hn::RebindToSigned<D> di;
   const int order = 1 << a.bits_per_symbol;
-  VI c = hn::Zero(di);
+  auto c = hn::Zero(di);
   for (int i = 0; i < order / 2; ++i) {
-    const VF side = hn::Sub(hn::Mul(yi, hn::Set(df, a.boundary_cos[i])),
-                            hn::Mul(yr, hn::Set(df, a.boundary_sin[i])));
+    const auto side = hn::Sub(hn::Mul(yi, hn::Set(df, a.boundary_cos[i])),
+                              hn::Mul(yr, hn::Set(df, a.boundary_sin[i])));
     c = hn::Sub(c, hn::VecFromMask(di, hn::RebindMask(di, hn::Ge(side, hn::Zero(df)))));
   }
   const auto upper = hn::RebindMask(di, hn::Ge(yi, hn::Zero(df)));
-  const VI k = hn::IfThenElse(upper, hn::Sub(c, hn::Set(di, 1)), hn::Sub(hn::Set(di, order - 1), c));
+  const auto k =
+      hn::IfThenElse(upper, hn::Sub(c, hn::Set(di, 1)), hn::Sub(hn::Set(di, order - 1), c));
   return hn::Xor(k, hn::ShiftRight<1>(k));
+}
+
+// 1 where y < 0, else 0.
+template <class D>
+HWY_INLINE hn::Vec<hn::RebindToSigned<D>> Negative(D df, hn::Vec<D> y) {
+  const hn::RebindToSigned<D> di;
+  return hn::Neg(hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(y, hn::Zero(df)))));
+}
+
+// Stores the B label bits of each lane's label g (MSB first) as +-1 floats
+// or as 0/1 bytes (Bit is one byte; the byte path assumes little endian, as
+// every Highway x86 and Arm target is). The float is built from its bits: the label bit moved to
+// the sign of 1.0f, which is exactly the oracle's 1 - 2 bit.
+template <int B, typename T, class D>
+HWY_INLINE void StoreLabelBits(D df, hn::Vec<hn::RebindToSigned<D>> g, T* HWY_RESTRICT out) {
+  const hn::RebindToSigned<D> di;
+  if constexpr (std::is_same_v<T, float>) {
+    hn::Vec<D> v[B];
+    for (int k = 0; k < B; ++k) {
+      const auto sign = hn::And(hn::ShiftLeftSame(g, 31 - (B - 1 - k)),
+                                hn::Set(di, static_cast<std::int32_t>(0x80000000u)));
+      v[k] = hn::BitCast(df, hn::Or(sign, hn::Set(di, 0x3F800000)));
+    }
+    StoreItems<B>(df, v, out);
+  } else if constexpr (B <= 4) {
+    // The item's B bytes packed into one 32-bit lane (bit k to byte k, little
+    // endian), then stored B bytes per item.
+    auto word = hn::Zero(di);
+    for (int k = 0; k < B; ++k) {
+      word = hn::Or(word, hn::ShiftLeftSame(hn::And(hn::ShiftRightSame(g, B - 1 - k),
+                                                    hn::Set(di, 1)),
+                                            8 * k));
+    }
+    if constexpr (B == 4) {
+      hn::StoreU(word, di, reinterpret_cast<std::int32_t*>(out));
+    } else if constexpr (B == 2) {
+      const hn::Rebind<std::uint16_t, D> d16;
+      hn::StoreU(hn::DemoteTo(d16, word), d16, reinterpret_cast<std::uint16_t*>(out));
+    } else if constexpr (B == 1) {
+      const hn::Rebind<std::uint8_t, D> d8;
+      hn::StoreU(hn::DemoteTo(d8, word), d8, reinterpret_cast<std::uint8_t*>(out));
+    } else {  // B = 3: 4-byte stores that overlap the next item, the last one 3 bytes
+      constexpr std::size_t kMax = hn::MaxLanes(df);
+      HWY_ALIGN std::int32_t stage[kMax];
+      hn::Store(word, di, stage);
+      const std::size_t last = hn::Lanes(df) - 1;
+      for (std::size_t t = 0; t < last; ++t) std::memcpy(out + 3 * t, stage + t, 4);
+      std::memcpy(out + 3 * last, stage + last, 3);
+    }
+  } else {
+    const hn::Rebind<T, D> d8;
+    hn::Vec<decltype(d8)> v[B];
+    for (int k = 0; k < B; ++k) {
+      v[k] = hn::DemoteTo(d8, hn::And(hn::ShiftRightSame(g, B - 1 - k), hn::Set(di, 1)));
+    }
+    StoreItems<B>(d8, v, out);
+  }
+}
+
+template <typename T>
+HWY_INLINE void HardKernel(const DemapKernelArgs& a, const float* y, std::size_t n, T* out) {
+  const DH df;
+  using V = hn::Vec<DH>;
+  switch (a.path) {
+    case DemapKernelPath::kBpsk:
+      ForEachVector<2, 1>(df, y, n, out, [&](const float* in, T* o) HWY_ATTR {
+        V yr, yi;
+        hn::LoadInterleaved2(df, in, yr, yi);
+        StoreLabelBits<1>(df, Negative(df, yr), o);
+      });
+      return;
+    case DemapKernelPath::kQpsk:  // b0 from Im y, b1 from Re y
+      ForEachVector<2, 2>(df, y, n, out, [&](const float* in, T* o) HWY_ATTR {
+        V yr, yi;
+        hn::LoadInterleaved2(df, in, yr, yi);
+        const auto b0 = Negative(df, yi);
+        StoreLabelBits<2>(df, hn::Add(hn::Add(b0, b0), Negative(df, yr)), o);
+      });
+      return;
+    case DemapKernelPath::kPam: {
+      const V inv_s = hn::Set(df, 1.0f / a.level_scale);
+      WithBits<1, 5>(a.axis_bits, [&](auto p) HWY_ATTR {
+        constexpr int kP = decltype(p)::value;
+        ForEachVector<1, kP>(df, y, 2 * n, out, [&](const float* in, T* o) HWY_ATTR {
+          StoreLabelBits<kP>(df, PamLabels(df, hn::Mul(inv_s, hn::LoadU(df, in)), 1 << kP), o);
+        });
+      });
+      return;
+    }
+    case DemapKernelPath::kPsk:
+      WithBits<3, 6>(a.bits_per_symbol, [&](auto b) HWY_ATTR {
+        constexpr int kB = decltype(b)::value;
+        ForEachVector<2, kB>(df, y, n, out, [&](const float* in, T* o) HWY_ATTR {
+          V yr, yi;
+          hn::LoadInterleaved2(df, in, yr, yi);
+          StoreLabelBits<kB>(df, PskLabels(df, yr, yi, a), o);
+        });
+      });
+      return;
+  }
 }
 
 }  // namespace demap_simd
@@ -321,74 +431,40 @@ HWY_MAYBE_UNUSED static void DemapSoftKernel(const DemapKernelArgs& a, bool exac
         Pam4MaxLog(df, y, 2 * n, s, scale, out);
       } else {
         WithBits<1, 5>(a.axis_bits, [&](auto p) HWY_ATTR {
-          PamSoft<decltype(p)::value>(df, y, 2 * n, inv_s, scale, exact, out);
+          constexpr int kP = decltype(p)::value;
+          // 2-PAM: the exact LLR is linear, max-log gives it.
+          if (exact && kP > 1) {
+            PamSoft<kP, true>(df, y, 2 * n, inv_s, scale, out);
+          } else {
+            PamSoft<kP, false>(df, y, 2 * n, inv_s, scale, out);
+          }
         });
       }
       return;
     }
     case DemapKernelPath::kPsk:
       WithBits<3, 6>(a.bits_per_symbol, [&](auto b) HWY_ATTR {
-        PskSoft<decltype(b)::value>(df, y, n, a.point_re, a.point_im, inv_n0, exact, out);
+        constexpr int kB = decltype(b)::value;
+        if (exact) {
+          PskSoft<kB, true>(df, y, n, a.point_re, a.point_im, inv_n0, out);
+        } else {
+          PskSoft<kB, false>(df, y, n, a.point_re, a.point_im, inv_n0, out);
+        }
       });
       return;
   }
 #endif
 }
 
-HWY_MAYBE_UNUSED static void DemapHardKernel(const DemapKernelArgs& a, const float* y, std::size_t n,
-                                      float* signs, Bit* bits) {
+HWY_MAYBE_UNUSED static void DemapHardKernel(const DemapKernelArgs& a, const float* y,
+                                             std::size_t n, float* signs, Bit* bits) {
 #if HWY_TARGET == HWY_SCALAR
   reference::DemapHard(a, y, n, signs, bits);
 #else
-  using namespace demap_simd;  // NOLINT(google-build-using-namespace)
-  const DF df;
-  const DI di;
-  const bool pam = a.path == DemapKernelPath::kPam;
-  const int b = pam ? a.axis_bits : a.bits_per_symbol;
-  const auto bb = static_cast<std::size_t>(b);
-  const std::size_t items = pam ? 2 * n : n;
-  // Labels of up to kChunk items go to a stage, then become b outputs each.
-  constexpr std::size_t kChunk = 256;
-  HWY_ALIGN std::int32_t labels[kChunk];
-  const float inv_s = pam ? 1.0f / a.level_scale : 1.0f;
-  const int levels = 1 << a.axis_bits;
-  for (std::size_t base = 0; base < items; base += kChunk) {
-    const std::size_t count = std::min(kChunk, items - base);
-    if (pam) {
-      ForEachVector<1, 1>(df, y + base, count, labels, [&](const float* in, std::int32_t* o)
-                                                            HWY_ATTR {
-        hn::StoreU(PamLabels(df, hn::Mul(hn::Set(df, inv_s), hn::LoadU(df, in)), levels), di, o);
-      });
-    } else {
-      ForEachVector<2, 1>(df, y + 2 * base, count, labels, [&](const float* in, std::int32_t* o)
-                                                                HWY_ATTR {
-        VF yr, yi;
-        hn::LoadInterleaved2(df, in, yr, yi);
-        VI g;
-        if (a.path == DemapKernelPath::kBpsk) {
-          g = hn::Neg(hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(yr, hn::Zero(df)))));
-        } else if (a.path == DemapKernelPath::kQpsk) {
-          const VI b0 = hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(yi, hn::Zero(df))));
-          const VI b1 = hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(yr, hn::Zero(df))));
-          g = hn::Neg(hn::Add(hn::Add(b0, b0), b1));
-        } else {
-          g = PskLabels(df, yr, yi, a);
-        }
-        hn::StoreU(g, di, o);
-      });
-    }
-    for (std::size_t t = 0; t < count; ++t) {
-      const std::int32_t g = labels[t];
-      const std::size_t at = bb * (base + t);
-      for (int k = 0; k < b; ++k) {
-        const int bit = (g >> (b - 1 - k)) & 1;
-        if (signs != nullptr) {
-          signs[at + static_cast<std::size_t>(k)] = 1.0f - 2.0f * static_cast<float>(bit);
-        } else {
-          bits[at + static_cast<std::size_t>(k)] = static_cast<Bit>(bit);
-        }
-      }
-    }
+  if (signs != nullptr) {
+    demap_simd::HardKernel(a, y, n, signs);
+  } else {
+    demap_simd::HardKernel(a, y, n, bits);
   }
 #endif
 }

@@ -49,6 +49,23 @@ void RunDemap(benchmark::State& state, const char* modulation, DemapMethod metho
   state.SetLabel(NoiseKernelTarget());
 }
 
+void RunHardDecide(benchmark::State& state, const char* modulation) {
+  const Mapper mapper = Mapper::Create(ParseModulation(modulation).value()).value();
+  const Demapper demapper = Demapper::Create(mapper, DemapMethod::kHard).value();
+  const auto m = static_cast<std::size_t>(mapper.bits_per_symbol());
+  std::mt19937 gen(8u);
+  std::vector<Bit> bits(m * kSymbols);
+  for (Bit& b : bits) b = static_cast<Bit>(gen() & 1u);
+  std::vector<cf32> y(kSymbols);
+  mapper.Map(bits, y);
+  for (auto _ : state) {
+    demapper.HardDecide(y, bits);
+    benchmark::DoNotOptimize(bits.data());
+    benchmark::ClobberMemory();
+  }
+  state.SetItemsProcessed(state.iterations() * static_cast<std::int64_t>(kSymbols));
+}
+
 void BM_Demap_16qam_MaxLog(benchmark::State& s) { RunDemap(s, "16qam", DemapMethod::kMaxLog); }
 void BM_Demap_16qam_LogMap(benchmark::State& s) { RunDemap(s, "16qam", DemapMethod::kLogMap); }
 void BM_Demap_64psk_MaxLog(benchmark::State& s) { RunDemap(s, "64psk", DemapMethod::kMaxLog); }
@@ -57,6 +74,9 @@ void BM_Demap_64qam_MaxLog(benchmark::State& s) { RunDemap(s, "64qam", DemapMeth
 void BM_Demap_8psk_MaxLog(benchmark::State& s) { RunDemap(s, "8psk", DemapMethod::kMaxLog); }
 void BM_Demap_16qam_Hard(benchmark::State& s) { RunDemap(s, "16qam", DemapMethod::kHard); }
 
+void BM_HardDecide_16qam(benchmark::State& s) { RunHardDecide(s, "16qam"); }
+void BM_HardDecide_8psk(benchmark::State& s) { RunHardDecide(s, "8psk"); }
+
 BENCHMARK(BM_Demap_16qam_MaxLog);
 BENCHMARK(BM_Demap_16qam_LogMap);
 BENCHMARK(BM_Demap_64psk_MaxLog);
@@ -64,6 +84,8 @@ BENCHMARK(BM_Demap_64psk_LogMap);
 BENCHMARK(BM_Demap_64qam_MaxLog);
 BENCHMARK(BM_Demap_8psk_MaxLog);
 BENCHMARK(BM_Demap_16qam_Hard);
+BENCHMARK(BM_HardDecide_16qam);
+BENCHMARK(BM_HardDecide_8psk);
 
 }  // namespace
 }  // namespace capgap
