@@ -3,7 +3,7 @@
 # its path here. They run on this one machine (shared memory), oversubscribe
 # the cores when asked for more ranks than there are, and set OpenMPI's
 # run-as-root variables in the child environment so CI containers work.
-foreach(_capgap_mpi_test mpi_mpi_run_test)
+foreach(_capgap_mpi_test mpi_mpi_run_test mpi_golden_mpi_test)
   if(TARGET ${_capgap_mpi_test})
     target_compile_definitions(${_capgap_mpi_test} PRIVATE
       CAPGAP_MPIEXEC="${MPIEXEC_EXECUTABLE}")

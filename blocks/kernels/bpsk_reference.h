@@ -2,7 +2,7 @@
 //
 // Header-only, and nothing but the composed uncoded BPSK chain written out
 // sample by sample on the scalar path: x_i = 1 - 2 b_i (bit 0 -> +1, bit 1 ->
-// -1, as in sim/chain.cc), y_i = reference::NoisySample(x_i, sigma, z_i) with
+// -1, as in sim/chain/chain.cc), y_i = reference::NoisySample(x_i, sigma, z_i) with
 // z_i the normals of reference::ForEachNormal (the mapping of awgn_kernels.h),
 // decided bit = (y_i < 0), error when it differs from b_i. So it gives exactly
 // the count of the bits + reference::AddRealNoise + decisions, and it

@@ -24,25 +24,25 @@
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/demap_kernels.h"
 #include "blocks/mapping/mapper.h"
-#include "sim/atomic_file.h"
-#include "sim/build_info.h"
-#include "sim/chain.h"
-#include "sim/checkpoint.h"
-#include "sim/config.h"
-#include "sim/curves_file.h"
-#include "sim/engine.h"
-#include "sim/sweep_session.h"
+#include "sim/io/atomic_file.h"
+#include "sim/io/build_info.h"
+#include "sim/chain/chain.h"
+#include "sim/io/checkpoint.h"
+#include "sim/config/config.h"
+#include "sim/io/curves_file.h"
+#include "sim/engine/engine.h"
+#include "sim/engine/sweep_session.h"
 #if CAPGAP_MPI
-#include "sim/mpi_run.h"
+#include "sim/mpi/mpi_run.h"
 #endif
-#include "sim/scheme_result.h"
-#include "sim/summary_table.h"
+#include "sim/chain/scheme_result.h"
+#include "sim/io/summary_table.h"
 
 namespace po = boost::program_options;
 using namespace capgap;
 
 namespace capgap {
-class MpiWorld;  // sim/mpi_run.h (MPI builds only)
+class MpiWorld;  // sim/mpi/mpi_run.h (MPI builds only)
 }  // namespace capgap
 
 namespace {

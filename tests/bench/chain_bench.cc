@@ -18,9 +18,9 @@
 
 #include "blocks/channel/awgn_channel.h"
 #include "blocks/kernels/awgn_kernels.h"
-#include "sim/build_info.h"
+#include "sim/io/build_info.h"
 #include "blocks/shaping/fir_filter.h"
-#include "sim/chain.h"
+#include "sim/chain/chain.h"
 
 namespace capgap {
 namespace {

@@ -19,7 +19,7 @@
 #include "blocks/core/types.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/awgn_reference.h"
-#include "sim/build_info.h"
+#include "sim/io/build_info.h"
 
 namespace capgap {
 namespace {

@@ -16,7 +16,7 @@
 
 #include <gtest/gtest.h>
 
-#include "sim/checkpoint.h"
+#include "sim/io/checkpoint.h"
 #include "tests/sim/capgap_process.h"
 
 namespace capgap {

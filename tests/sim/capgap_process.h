@@ -22,8 +22,8 @@
 #include <H5Cpp.h>
 #include <gtest/gtest.h>
 
-#include "sim/checkpoint.h"
-#include "sim/curves_file.h"
+#include "sim/io/checkpoint.h"
+#include "sim/io/curves_file.h"
 
 namespace capgap {
 namespace test {

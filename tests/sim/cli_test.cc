@@ -12,7 +12,7 @@
 
 #include <gtest/gtest.h>
 
-#include "sim/curves_file.h"
+#include "sim/io/curves_file.h"
 
 namespace capgap {
 namespace {

@@ -20,9 +20,9 @@
 
 #include <gtest/gtest.h>
 
-#include "sim/checkpoint.h"
-#include "sim/curves_file.h"
-#include "sim/engine.h"
+#include "sim/io/checkpoint.h"
+#include "sim/io/curves_file.h"
+#include "sim/engine/engine.h"
 #include "tests/sim/capgap_process.h"
 
 namespace capgap {

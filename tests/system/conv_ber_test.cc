@@ -16,8 +16,8 @@
 #include <gtest/gtest.h>
 
 #include "analysis/uncoded_theory.h"
-#include "sim/engine.h"
-#include "sim/scheme_result.h"
+#include "sim/engine/engine.h"
+#include "sim/chain/scheme_result.h"
 
 namespace capgap {
 namespace {

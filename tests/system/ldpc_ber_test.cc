@@ -19,8 +19,8 @@
 #include "analysis/uncoded_theory.h"
 #include "blocks/fec/ldpc_construction.h"
 #include "blocks/fec/ldpc_matrix_file.h"
-#include "sim/engine.h"
-#include "sim/scheme_result.h"
+#include "sim/engine/engine.h"
+#include "sim/chain/scheme_result.h"
 
 namespace capgap {
 namespace {

@@ -16,7 +16,7 @@
 #include <gtest/gtest.h>
 
 #include "analysis/uncoded_theory.h"
-#include "sim/engine.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
 namespace {

@@ -1,0 +1,136 @@
+// Everything reported for one scheme of a run: the simulated points, uncoded
+// theory on a fine grid, the capacity limits for its information bits per
+// symbol, and the summary at target_ber (Eb/N0 needed with its interval from
+// the CI bounds, coding gain, gaps to the limits).
+#ifndef CAPGAP_SIM_SCHEME_RESULT_H_
+#define CAPGAP_SIM_SCHEME_RESULT_H_
+
+#include <limits>
+#include <string>
+#include <vector>
+
+#include "sim/chain/chain.h"
+#include "sim/config/config.h"
+#include "sim/engine/engine.h"
+
+namespace capgap {
+
+struct TheoryCurve {
+  std::vector<double> ebno_db;
+  std::vector<double> ber_uncoded;
+  std::vector<double> ser_uncoded;
+  // Soft-decision union bound of a convolutional code (empty when it does not
+  // apply: uncoded, or a mapper other than BPSK/QPSK).
+  std::vector<double> ber_bound;
+  std::string bound_channel;
+};
+
+// What the output records of a convolutional code.
+struct CodeResult {
+  bool present = false;
+  int free_distance = 0;
+  std::vector<int> spectrum_distance;
+  std::vector<std::uint64_t> spectrum_info_weight;
+  std::vector<std::uint64_t> spectrum_events;
+};
+
+// What the output records of an LDPC code and its decoder.
+struct LdpcResult {
+  bool present = false;
+  std::string construction;  // peg, qc, file
+  std::string description;   // e.g. "peg n=2016 m=1008 degrees=3 seed=1"
+  int length = 0, info_bits = 0, checks = 0, rank = 0, lifting = 0;
+  int girth = 0;             // 0: no cycle
+  std::string degree_profile;  // "variables 3:2016; checks 6:1008"
+  std::vector<int> variable_nodes_by_degree, check_nodes_by_degree;
+  std::string encoder;         // "dual-diagonal" or "gaussian elimination"
+  std::string decoder, schedule, kernel_target;
+  int max_iterations = 0;
+  double normalization = 0, offset = 0;
+};
+
+struct Limits {
+  double shannon_ebno_db;      // unconstrained Gaussian input at spectral_efficiency
+  double constrained_ebno_db;  // this constellation at rho; +inf when rho = m
+  std::string spectral_efficiency_basis;
+  std::string notes;
+  // The constellation's constrained-capacity curve on the power-bandwidth
+  // plane at ideal Nyquist signalling: rho from 0.05 m to 0.97 m bits per
+  // symbol and the Eb/N0 it needs (for the comparison chart).
+  std::vector<double> constrained_curve_rho;
+  std::vector<double> constrained_curve_ebno_db;
+  // LDPC schemes: the belief-propagation threshold of the code's degree
+  // distribution on the binary-input AWGN channel (quantised density
+  // evolution; the Gaussian approximation beside it), and the binary-input
+  // capacity limit at the code rate. NaN otherwise.
+  double threshold_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double threshold_sigma = std::numeric_limits<double>::quiet_NaN();
+  std::string threshold_method, threshold_description;
+  double threshold_ga_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double binary_input_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  std::string threshold_channel;
+};
+
+struct Summary {
+  double ebno_at_target_db;
+  double ebno_at_target_low_db;   // from the lower CI bound (optimistic)
+  double ebno_at_target_high_db;  // from the upper CI bound (pessimistic)
+  double uncoded_ebno_at_target_db;
+  double coding_gain_db;
+  double gap_to_shannon_db;
+  double gap_to_constrained_db;
+  // LDPC on BPSK/QPSK (where the binary-input analysis applies), else NaN.
+  double gap_to_threshold_db = std::numeric_limits<double>::quiet_NaN();
+  double gap_to_binary_input_db = std::numeric_limits<double>::quiet_NaN();
+};
+
+// Power spectral density of the transmitted signal of a shaped scheme
+// (Welch's method), frequency in units of the symbol rate.
+struct SpectrumResult {
+  bool present = false;
+  std::vector<double> frequency;
+  std::vector<double> psd_db;
+  double occupied_bandwidth_99 = 0;  // symbol rates
+  double bandwidth_3db = 0;          // symbol rates
+};
+
+// Pictures of the signal for the plots: the demapper's input at the
+// operating point (constellation after the matched filter, impairments and
+// noise included) and, for shaped schemes, the noise-free eye of the
+// matched-filter output at S samples per symbol.
+struct SignalViews {
+  bool present = false;
+  double constellation_ebno_db = 0;
+  std::vector<double> constellation_i, constellation_q;
+  // Eye: eye_traces rows of eye_time.size() samples each (row-major), the
+  // in-phase matched-filter output over [-1, 1] symbol periods around each
+  // ideal sampling instant (t = 0), noise-free and without impairments.
+  int eye_traces = 0;
+  std::vector<double> eye_time;
+  std::vector<double> eye;
+};
+
+struct SchemeResult {
+  SchemeConfig scheme;
+  double code_rate = 1;
+  double info_bits_per_symbol = 1;
+  double spectral_efficiency = 1;        // what the Shannon gap uses
+  double spectral_efficiency_ideal = 1;  // rho / (1 + rolloff); rho without shaping
+  SpectrumResult spectrum;
+  SignalViews signal;
+  CodeResult code;
+  LdpcResult ldpc;
+  double target_ber = 1e-5;
+  std::vector<PointResult> points;
+  TheoryCurve theory;
+  Limits limits;
+  Summary summary;
+};
+
+// Fills theory, limits and summary for simulated points of `chain`.
+SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
+                           std::vector<PointResult> points);
+
+}  // namespace capgap
+
+#endif  // CAPGAP_SIM_SCHEME_RESULT_H_

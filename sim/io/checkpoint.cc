@@ -1,0 +1,446 @@
+// Checkpoint text format: writer, strict reader (every line checked, FNV-1a
+// checksum over the body), and the resume compatibility rules.
+#include "sim/io/checkpoint.h"
+
+#include <cerrno>
+#include <cinttypes>
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <fstream>
+#include <map>
+#include <set>
+#include <sstream>
+
+#include "sim/io/atomic_file.h"
+
+namespace capgap {
+namespace {
+
+// FNV-1a, 64 bit (Fowler, Noll, Vo; parameters from memory: offset basis
+// 0xcbf29ce484222325, prime 0x100000001b3). Detects a damaged file; a kill
+// cannot produce one (the file is replaced atomically).
+std::uint64_t Fnv1a64(const std::string& bytes, std::size_t n) {
+  std::uint64_t h = 0xcbf29ce484222325ull;
+  for (std::size_t i = 0; i < n; ++i) {
+    h ^= static_cast<unsigned char>(bytes[i]);
+    h *= 0x100000001b3ull;
+  }
+  return h;
+}
+
+std::string Double17(double v) {
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%.17g", v);
+  return buf;
+}
+
+bool ParseU64(const std::string& s, std::uint64_t* out) {
+  if (s.empty() || s[0] < '0' || s[0] > '9') return false;
+  errno = 0;
+  char* end = nullptr;
+  const unsigned long long v = std::strtoull(s.c_str(), &end, 10);
+  if (errno == ERANGE || end != s.c_str() + s.size()) return false;
+  *out = v;
+  return true;
+}
+
+bool ParseDouble(const std::string& s, double* out) {
+  if (s.empty()) return false;
+  errno = 0;
+  char* end = nullptr;
+  *out = std::strtod(s.c_str(), &end);
+  return errno != ERANGE && end == s.c_str() + s.size() && std::isfinite(*out);
+}
+
+std::vector<std::string> Words(const std::string& line) {
+  std::vector<std::string> out;
+  std::istringstream in(line);
+  std::string w;
+  while (in >> w) out.push_back(w);
+  return out;
+}
+
+// Sequential reader over the body with line numbers for messages.
+class LineReader {
+ public:
+  LineReader(const std::string& bytes, std::size_t end, const std::string& source)
+      : bytes_(bytes), end_(end), source_(source) {}
+  bool Next(std::string* line) {
+    if (pos_ >= end_) return false;
+    const std::size_t nl = bytes_.find('\n', pos_);
+    if (nl == std::string::npos || nl >= end_) return false;
+    *line = bytes_.substr(pos_, nl - pos_);
+    pos_ = nl + 1;
+    ++line_no_;
+    return true;
+  }
+  bool Take(std::size_t n, std::string* out) {
+    if (end_ - pos_ < n) return false;
+    *out = bytes_.substr(pos_, n);
+    for (char c : *out) line_no_ += c == '\n';
+    pos_ += n;
+    return true;
+  }
+  Status Error(const std::string& what) const {
+    return Status::Error(source_ + ": line " + std::to_string(line_no_) + ": " + what);
+  }
+  bool at_end() const { return pos_ == end_; }
+
+ private:
+  const std::string& bytes_;
+  std::size_t end_;
+  const std::string& source_;
+  std::size_t pos_ = 0;
+  int line_no_ = 0;
+};
+
+// "KEY VALUE" line with a fixed key; VALUE is the rest of the line.
+bool KeyLine(LineReader& r, const char* key, std::string* value) {
+  std::string line;
+  if (!r.Next(&line)) return false;
+  const std::string k = std::string(key) + " ";
+  if (line.rfind(k, 0) != 0) return false;
+  *value = line.substr(k.size());
+  return true;
+}
+
+std::map<std::string, std::string> SectionEntries(const RunConfig& cfg, const std::string& prefix) {
+  std::map<std::string, std::string> out;
+  for (const auto& [key, value] : cfg.resolved) {
+    if (key.rfind(prefix, 0) == 0) out[key] = value;
+  }
+  return out;
+}
+
+std::string Quoted(const std::string& v) { return "'" + v + "'"; }
+
+}  // namespace
+
+void PackCounts(const UnitCounts& c, std::uint64_t* words) {
+  std::size_t i = 0;
+  ForEachCountField(c, [&](const char*, const auto& field) {
+    words[i++] = static_cast<std::uint64_t>(field);
+  });
+}
+
+UnitCounts UnpackCounts(const std::uint64_t* words) {
+  UnitCounts c;
+  std::size_t i = 0;
+  ForEachCountField(c, [&](const char*, auto& field) {
+    field = static_cast<std::remove_reference_t<decltype(field)>>(words[i++]);
+  });
+  return c;
+}
+
+SchemeRecord* Checkpoint::Find(const std::string& name) {
+  for (auto& s : schemes) {
+    if (s.name == name) return &s;
+  }
+  return nullptr;
+}
+
+const SchemeRecord* Checkpoint::Find(const std::string& name) const {
+  for (const auto& s : schemes) {
+    if (s.name == name) return &s;
+  }
+  return nullptr;
+}
+
+std::size_t Checkpoint::FinishedPoints() const {
+  std::size_t n = 0;
+  for (const auto& s : schemes) {
+    for (const auto& p : s.points) n += p.finished;
+  }
+  return n;
+}
+
+std::size_t Checkpoint::RecordedPoints() const {
+  std::size_t n = 0;
+  for (const auto& s : schemes) n += s.points.size();
+  return n;
+}
+
+std::string CheckpointPath(const std::string& output_path) { return output_path + ".ckpt"; }
+
+std::string SerializeCheckpoint(const Checkpoint& c) {
+  std::string out;
+  out += std::string(kCheckpointFormat) + " " + std::to_string(kCheckpointVersion) + "\n";
+  out += std::string("state ") + (c.complete ? "complete" : "running") + "\n";
+  out += "seed " + std::to_string(c.seed) + "\n";
+  out += "kernel_target " + (c.kernel_target.empty() ? std::string("unknown") : c.kernel_target) + "\n";
+  out += "updated_utc " + (c.updated_utc.empty() ? std::string("unknown") : c.updated_utc) + "\n";
+  out += "config_bytes " + std::to_string(c.config_text.size()) + "\n";
+  out += c.config_text;
+  if (!c.config_text.empty() && c.config_text.back() != '\n') out += "\n";
+  out += "schemes " + std::to_string(c.schemes.size()) + "\n";
+  for (const SchemeRecord& s : c.schemes) {
+    out += "scheme " + s.name + " " + std::to_string(s.points.size()) + "\n";
+    for (std::size_t i = 0; i < s.points.size(); ++i) {
+      const PointRecord& p = s.points[i];
+      out += "point " + std::to_string(i) + " ebno_db=" + Double17(p.ebno_db) +
+             " units=" + std::to_string(p.units) + " finished=" + (p.finished ? "1" : "0") +
+             " stop=" + ToString(p.stop_reason) + " seconds=" + Double17(p.seconds);
+      ForEachCountField(p.counts, [&](const char* name, const auto& field) {
+        out += std::string(" ") + name + "=" + std::to_string(field);
+      });
+      out += "\n";
+    }
+  }
+  char sum[40];
+  std::snprintf(sum, sizeof sum, "checksum %016" PRIx64 "\n", Fnv1a64(out, out.size()));
+  out += sum;
+  return out;
+}
+
+Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& source) {
+  // The checksum line closes the file; everything before it is the body.
+  const std::string key = "checksum ";
+  if (bytes.empty() || bytes.back() != '\n') {
+    return Status::Error(source + ": truncated checkpoint (no final checksum line)");
+  }
+  const std::size_t last = bytes.rfind('\n', bytes.size() - 2);
+  const std::size_t body_end = last == std::string::npos ? 0 : last + 1;
+  const std::string tail = bytes.substr(body_end, bytes.size() - 1 - body_end);
+  if (tail.rfind(key, 0) != 0) {
+    if (bytes.rfind(std::string(kCheckpointFormat), 0) != 0) {
+      return Status::Error(source + ": not a capgap checkpoint (first line is not '" +
+                           std::string(kCheckpointFormat) + " N')");
+    }
+    return Status::Error(source + ": truncated checkpoint (no final checksum line)");
+  }
+  char expected[20];
+  std::snprintf(expected, sizeof expected, "%016" PRIx64, Fnv1a64(bytes, body_end));
+  if (tail.substr(key.size()) != expected) {
+    return Status::Error(source + ": checksum mismatch (file damaged): stored " +
+                         tail.substr(key.size()) + ", computed " + expected);
+  }
+
+  LineReader r(bytes, body_end, source);
+  Checkpoint c;
+  std::string v;
+  if (!KeyLine(r, kCheckpointFormat, &v)) {
+    return Status::Error(source + ": not a capgap checkpoint (first line is not '" +
+                         std::string(kCheckpointFormat) + " N')");
+  }
+  if (v != std::to_string(kCheckpointVersion)) {
+    return Status::Error(source + ": checkpoint version " + v + " is not supported (this program reads " +
+                         std::to_string(kCheckpointVersion) + ")");
+  }
+  if (!KeyLine(r, "state", &v) || (v != "running" && v != "complete")) {
+    return r.Error("expected 'state running' or 'state complete'");
+  }
+  c.complete = v == "complete";
+  if (!KeyLine(r, "seed", &v) || !ParseU64(v, &c.seed)) return r.Error("expected 'seed <integer>'");
+  if (!KeyLine(r, "kernel_target", &c.kernel_target)) return r.Error("expected 'kernel_target <name>'");
+  if (!KeyLine(r, "updated_utc", &c.updated_utc)) return r.Error("expected 'updated_utc <time>'");
+  std::uint64_t config_bytes = 0;
+  if (!KeyLine(r, "config_bytes", &v) || !ParseU64(v, &config_bytes)) {
+    return r.Error("expected 'config_bytes <integer>'");
+  }
+  if (!r.Take(static_cast<std::size_t>(config_bytes), &c.config_text)) {
+    return r.Error("config text shorter than config_bytes");
+  }
+  if (!c.config_text.empty() && c.config_text.back() != '\n') {
+    std::string nl;
+    if (!r.Take(1, &nl) || nl != "\n") return r.Error("config text not followed by a newline");
+  }
+  std::uint64_t scheme_count = 0;
+  if (!KeyLine(r, "schemes", &v) || !ParseU64(v, &scheme_count)) {
+    return r.Error("expected 'schemes <count>'");
+  }
+  for (std::uint64_t s = 0; s < scheme_count; ++s) {
+    std::string line;
+    if (!r.Next(&line)) return r.Error("expected 'scheme NAME POINTS'");
+    const auto w = Words(line);
+    std::uint64_t npoints = 0;
+    if (w.size() != 3 || w[0] != "scheme" || !ParseU64(w[2], &npoints)) {
+      return r.Error("expected 'scheme NAME POINTS', got '" + line + "'");
+    }
+    SchemeRecord rec;
+    rec.name = w[1];
+    for (std::uint64_t i = 0; i < npoints; ++i) {
+      if (!r.Next(&line)) return r.Error("expected 'point " + std::to_string(i) + " ...'");
+      const auto pw = Words(line);
+      if (pw.size() < 2 || pw[0] != "point" || pw[1] != std::to_string(i)) {
+        return r.Error("expected 'point " + std::to_string(i) + " ...', got '" + line + "'");
+      }
+      std::map<std::string, std::string> kv;
+      for (std::size_t k = 2; k < pw.size(); ++k) {
+        const auto eq = pw[k].find('=');
+        if (eq == std::string::npos || !kv.emplace(pw[k].substr(0, eq), pw[k].substr(eq + 1)).second) {
+          return r.Error("malformed or repeated field '" + pw[k] + "'");
+        }
+      }
+      PointRecord p;
+      std::set<std::string> used;
+      auto field = [&](const std::string& name) -> const std::string* {
+        auto it = kv.find(name);
+        if (it == kv.end()) return nullptr;
+        used.insert(name);
+        return &it->second;
+      };
+      auto missing = [&](const std::string& name) {
+        return r.Error("point " + std::to_string(i) + ": field '" + name + "' missing or invalid");
+      };
+      const std::string* f = field("ebno_db");
+      if (!f || !ParseDouble(*f, &p.ebno_db)) return missing("ebno_db");
+      std::uint64_t u = 0;
+      f = field("units");
+      if (!f || !ParseU64(*f, &u) || u > UINT32_MAX) return missing("units");
+      p.units = static_cast<std::uint32_t>(u);
+      f = field("finished");
+      if (!f || (*f != "0" && *f != "1")) return missing("finished");
+      p.finished = *f == "1";
+      f = field("stop");
+      if (!f) return missing("stop");
+      auto reason = ParseStopReason(*f);
+      if (!reason.ok()) return missing("stop");
+      p.stop_reason = reason.value();
+      f = field("seconds");
+      if (!f || !ParseDouble(*f, &p.seconds)) return missing("seconds");
+      Status counts_status = Status::Ok();
+      ForEachCountField(p.counts, [&](const char* name, auto& value) {
+        if (!counts_status.ok()) return;
+        const std::string* text = field(name);
+        std::uint64_t x = 0;
+        using T = std::remove_reference_t<decltype(value)>;
+        if (!text || !ParseU64(*text, &x) || x > static_cast<std::uint64_t>(static_cast<T>(-1))) {
+          counts_status = missing(name);
+          return;
+        }
+        value = static_cast<T>(x);
+      });
+      if (!counts_status.ok()) return counts_status;
+      for (const auto& [name, value] : kv) {
+        if (!used.count(name)) return r.Error("point " + std::to_string(i) + ": unknown field '" + name + "'");
+      }
+      if (p.finished == (p.stop_reason == StopReason::kInterrupted)) {
+        return r.Error("point " + std::to_string(i) + ": finished and stop disagree");
+      }
+      rec.points.push_back(p);
+    }
+    c.schemes.push_back(std::move(rec));
+  }
+  if (!r.at_end()) return r.Error("unexpected text after the last point");
+  return c;
+}
+
+Status WriteCheckpoint(const std::string& path, const Checkpoint& c) {
+  return WriteFileAtomically(path, SerializeCheckpoint(c));
+}
+
+Result<Checkpoint> ReadCheckpoint(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return Status::Error(path + ": cannot open checkpoint");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  if (in.bad()) return Status::Error(path + ": read error");
+  return ParseCheckpoint(ss.str(), path);
+}
+
+Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::string& ckpt_path) {
+  const std::string head = "cannot resume from " + ckpt_path + ": ";
+  auto old_or = ParseRunConfig(ckpt.config_text, ckpt_path + " (stored configuration)", {});
+  if (!old_or.ok()) {
+    return Status::Error(head + "its stored configuration does not load with this version (" +
+                         old_or.status().message() + "); start a new output file");
+  }
+  const RunConfig& old = old_or.value();
+  const std::string fixed =
+      "; it fixes the random streams of the recorded work (start a new output file to change "
+      "it)";
+
+  // Sweep keys: the seed is fixed, limits may only grow, stored points keep
+  // their Eb/N0, the rest of the free keys may change; an unlisted key is
+  // refused so that a future key that changes the streams is not let through.
+  static const std::set<std::string> kFree = {"sweep.ber_floor", "sweep.target_ber",
+                                              "sweep.threads", "sweep.checkpoint_seconds"};
+  const auto old_sweep = SectionEntries(old, "sweep.");
+  const auto new_sweep = SectionEntries(cfg, "sweep.");
+  if (old.sweep.seed != cfg.sweep.seed) {
+    return Status::Error(head + "sweep.seed changed from " + std::to_string(old.sweep.seed) +
+                         " to " + std::to_string(cfg.sweep.seed) + fixed);
+  }
+  if (cfg.sweep.target_errors < old.sweep.target_errors) {
+    return Status::Error(head + "sweep.target_errors decreased from " +
+                         std::to_string(old.sweep.target_errors) + " to " +
+                         std::to_string(cfg.sweep.target_errors) +
+                         "; a resume may only raise it (finished points may hold more errors than "
+                         "the new target)");
+  }
+  if (cfg.sweep.max_bits < old.sweep.max_bits) {
+    return Status::Error(head + "sweep.max_bits decreased from " + std::to_string(old.sweep.max_bits) +
+                         " to " + std::to_string(cfg.sweep.max_bits) +
+                         "; a resume may only raise it (finished points may hold more bits than "
+                         "the new limit)");
+  }
+  for (const SchemeRecord& s : ckpt.schemes) {
+    // The scheme's own points (scheme.NAME.ebno_db, else sweep.ebno_db).
+    const std::vector<double>* points = &cfg.sweep.ebno_db;
+    bool own = false;
+    for (const SchemeConfig& sc : cfg.schemes) {
+      if (sc.name == s.name) points = &sc.ebno_db;
+    }
+    for (const auto& [key, value] : cfg.resolved) own |= key == "scheme." + s.name + ".ebno_db";
+    const std::string where = own ? "scheme." + s.name + ".ebno_db" : "sweep.ebno_db";
+    for (std::size_t i = 0; i < s.points.size() && i < points->size(); ++i) {
+      if (std::fabs(s.points[i].ebno_db - (*points)[i]) > 1e-9) {
+        return Status::Error(head + where + " point " + std::to_string(i) + " (scheme " +
+                             s.name + ") changed from " + Double17(s.points[i].ebno_db) +
+                             " dB to " + Double17((*points)[i]) +
+                             " dB; recorded points keep their Eb/N0 (append new points at the end)");
+      }
+    }
+  }
+  for (const auto& [key, value] : new_sweep) {
+    if (key == "sweep.seed" || key == "sweep.target_errors" || key == "sweep.max_bits" ||
+        key == "sweep.ebno_db" || kFree.count(key)) {
+      continue;
+    }
+    auto it = old_sweep.find(key);
+    const std::string was = it == old_sweep.end() ? "(absent)" : Quoted(it->second);
+    if (it == old_sweep.end() || it->second != value) {
+      return Status::Error(head + key + " changed from " + was + " to " + Quoted(value) + fixed);
+    }
+  }
+
+  // Schemes: every recorded scheme must still be there, defined identically.
+  for (const SchemeRecord& s : ckpt.schemes) {
+    const std::string prefix = "scheme." + s.name + ".";
+    bool present = false;
+    for (const SchemeConfig& sc : cfg.schemes) present |= sc.name == s.name;
+    if (!present) {
+      return Status::Error(head + "scheme '" + s.name +
+                           "' is recorded in the checkpoint but missing from the configuration");
+    }
+    // Changed values first (in config order), then keys that appeared or
+    // went away (e.g. the shaping keys when shaping itself changed).
+    const auto a = SectionEntries(old, prefix);
+    const auto b = SectionEntries(cfg, prefix);
+    // The scheme's own Eb/N0 list is checked point by point above (it may
+    // grow, as sweep.ebno_db may).
+    const std::string points_key = prefix + "ebno_db";
+    for (const auto& [key, value] : cfg.resolved) {
+      if (key.rfind(prefix, 0) != 0 || key == points_key) continue;
+      auto it = a.find(key);
+      if (it != a.end() && it->second != value) {
+        return Status::Error(head + key + " changed from " + Quoted(it->second) + " to " +
+                             Quoted(value) + fixed);
+      }
+    }
+    for (const auto& [key, value] : cfg.resolved) {
+      if (key.rfind(prefix, 0) == 0 && key != points_key && !a.count(key)) {
+        return Status::Error(head + key + " changed from (absent) to " + Quoted(value) + fixed);
+      }
+    }
+    for (const auto& [key, value] : old.resolved) {
+      if (key.rfind(prefix, 0) == 0 && key != points_key && !b.count(key)) {
+        return Status::Error(head + key + " changed from " + Quoted(value) + " to (absent)" + fixed);
+      }
+    }
+  }
+  return Status::Ok();
+}
+
+}  // namespace capgap

@@ -1,0 +1,412 @@
+// HDF5 writer and reader of the curves file (HDF5 C++ API).
+#include "sim/io/curves_file.h"
+
+#include <unistd.h>
+
+#include <cstdio>
+#include <ctime>
+#include <filesystem>
+
+#include <H5Cpp.h>
+
+#include "sim/io/atomic_file.h"
+#include "sim/io/build_info.h"
+
+namespace capgap {
+namespace {
+
+void StrAttr(H5::H5Object& obj, const char* name, const std::string& value) {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  type.setCset(H5T_CSET_UTF8);
+  H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+  a.write(type, value);
+}
+
+template <typename T>
+void NumAttr(H5::H5Object& obj, const char* name, const H5::PredType& type, T value) {
+  H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+  a.write(type, &value);
+}
+
+template <typename T>
+void Dataset(H5::Group& g, const char* name, const H5::PredType& type, const std::vector<T>& v) {
+  const hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  if (!v.empty()) ds.write(v.data(), type);
+}
+
+// Row-major rows x cols matrix.
+void Matrix(H5::Group& g, const char* name, const H5::PredType& type, const std::vector<double>& v,
+            hsize_t rows, hsize_t cols) {
+  const hsize_t dims[2] = {rows, cols};
+  H5::DataSpace space(2, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  if (!v.empty()) ds.write(v.data(), type);
+}
+
+void StringDataset(H5::Group& g, const char* name, const std::vector<std::string>& v) {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  type.setCset(H5T_CSET_UTF8);
+  const hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::DataSet ds = g.createDataSet(name, type, space);
+  std::vector<const char*> ptrs;
+  for (const auto& s : v) ptrs.push_back(s.c_str());
+  if (!ptrs.empty()) ds.write(ptrs.data(), type);
+}
+
+std::string ReadStrAttr(const H5::H5Object& obj, const char* name) {
+  H5::Attribute a = obj.openAttribute(name);
+  H5::StrType type = a.getStrType();
+  std::string out;
+  a.read(type, out);
+  return out;
+}
+
+double ReadDoubleAttr(const H5::H5Object& obj, const char* name) {
+  double v = 0;
+  obj.openAttribute(name).read(H5::PredType::NATIVE_DOUBLE, &v);
+  return v;
+}
+
+template <typename T>
+std::vector<T> ReadDataset(const H5::Group& g, const char* name, const H5::PredType& type) {
+  H5::DataSet ds = g.openDataSet(name);
+  hsize_t dims[1] = {0};
+  ds.getSpace().getSimpleExtentDims(dims);
+  std::vector<T> v(dims[0]);
+  if (!v.empty()) ds.read(v.data(), type);
+  return v;
+}
+
+}  // namespace
+
+std::string UtcNow() {
+  const std::time_t t = std::time(nullptr);
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &tm);
+  return buf;
+}
+
+Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
+                       const std::vector<SchemeResult>& schemes) {
+  namespace fs = std::filesystem;
+  const fs::path final_path(path);
+  std::error_code ec;
+  if (final_path.has_parent_path()) fs::create_directories(final_path.parent_path(), ec);
+  const std::string tmp = path + ".tmp-" + std::to_string(::getpid());
+  H5::Exception::dontPrint();
+  try {
+    H5::H5File file(tmp, H5F_ACC_TRUNC);
+    StrAttr(file, "format", kCurvesFormat);
+    NumAttr(file, "format_version", H5::PredType::NATIVE_INT, kCurvesFormatVersion);
+    StrAttr(file, "program_version", ProgramVersion());
+    StrAttr(file, "git_revision", GitRevision());
+    StrAttr(file, "compiler", CompilerId());
+    StrAttr(file, "build_type", BuildType());
+    StrAttr(file, "created_utc", meta.created_utc);
+    StrAttr(file, "command_line", meta.command_line);
+    StrAttr(file, "config", meta.config_text);
+    NumAttr(file, "threads", H5::PredType::NATIVE_INT, meta.threads);
+    NumAttr(file, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
+    StrAttr(file, "kernel_target", meta.kernel_target);
+    StrAttr(file, "demap_kernel_target", meta.demap_kernel_target);
+    std::string order;
+    for (const SchemeResult& r : schemes) order += (order.empty() ? "" : ",") + r.scheme.name;
+    StrAttr(file, "schemes", order);
+
+    for (const SchemeResult& r : schemes) {
+      H5::Group g = file.createGroup("/" + r.scheme.name);
+      StrAttr(g, "modulation", ToString(r.scheme.modulation));
+      NumAttr(g, "bits_per_symbol", H5::PredType::NATIVE_INT, r.scheme.modulation.bits_per_symbol());
+      StrAttr(g, "code", r.scheme.code);
+      NumAttr(g, "code_rate", H5::PredType::NATIVE_DOUBLE, r.code_rate);
+      NumAttr(g, "info_bits_per_symbol", H5::PredType::NATIVE_DOUBLE, r.info_bits_per_symbol);
+      NumAttr(g, "spectral_efficiency", H5::PredType::NATIVE_DOUBLE, r.spectral_efficiency);
+      StrAttr(g, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
+      NumAttr(g, "spectral_efficiency_ideal", H5::PredType::NATIVE_DOUBLE,
+              r.spectral_efficiency_ideal);
+      StrAttr(g, "shaping", ToString(r.scheme.shaping));
+      NumAttr(g, "samples_per_symbol", H5::PredType::NATIVE_INT,
+              r.scheme.shaping == PulseShape::kNone ? 1 : r.scheme.samples_per_symbol);
+      if (r.scheme.shaping != PulseShape::kNone) {
+        NumAttr(g, "rolloff", H5::PredType::NATIVE_DOUBLE, r.scheme.rolloff);
+        NumAttr(g, "span", H5::PredType::NATIVE_INT, r.scheme.span);
+        NumAttr(g, "timing_offset", H5::PredType::NATIVE_DOUBLE, r.scheme.timing_offset);
+      }
+      NumAttr(g, "phase_offset_deg", H5::PredType::NATIVE_DOUBLE, r.scheme.phase_offset_deg);
+      NumAttr(g, "frequency_offset", H5::PredType::NATIVE_DOUBLE, r.scheme.frequency_offset);
+      NumAttr(g, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
+      NumAttr(g, "target_ber", H5::PredType::NATIVE_DOUBLE, r.target_ber);
+      StrAttr(g, "demapper", ToString(r.scheme.demapper));
+      StrAttr(g, "source", ToString(r.scheme.source));
+      NumAttr(g, "frame_bits", H5::PredType::NATIVE_UINT32, r.scheme.frame_bits);
+      NumAttr(g, "unit_frames", H5::PredType::NATIVE_UINT32, r.scheme.ResolvedUnitFrames());
+
+      std::vector<double> ebno, esno, ber, ber_low, ber_high, fer, fer_low, fer_high, seconds;
+      std::vector<std::uint64_t> bits, bit_errors, frames, frame_errors;
+      std::vector<std::string> stop;
+      for (const PointResult& p : r.points) {
+        ebno.push_back(p.ebno_db);
+        esno.push_back(p.esno_db);
+        bits.push_back(p.counts.bits);
+        bit_errors.push_back(p.counts.bit_errors);
+        frames.push_back(p.counts.frames);
+        frame_errors.push_back(p.counts.frame_errors);
+        ber.push_back(p.ber());
+        ber_low.push_back(p.ber_ci.low);
+        ber_high.push_back(p.ber_ci.high);
+        fer.push_back(p.fer());
+        fer_low.push_back(p.fer_ci.low);
+        fer_high.push_back(p.fer_ci.high);
+        seconds.push_back(p.seconds);
+        stop.push_back(ToString(p.stop_reason));
+      }
+      const auto& F64 = H5::PredType::NATIVE_DOUBLE;
+      const auto& U64 = H5::PredType::NATIVE_UINT64;
+      Dataset(g, "ebno_db", F64, ebno);
+      Dataset(g, "esno_db", F64, esno);
+      Dataset(g, "bits", U64, bits);
+      Dataset(g, "bit_errors", U64, bit_errors);
+      Dataset(g, "frames", U64, frames);
+      Dataset(g, "frame_errors", U64, frame_errors);
+      Dataset(g, "ber", F64, ber);
+      Dataset(g, "ber_low", F64, ber_low);
+      Dataset(g, "ber_high", F64, ber_high);
+      Dataset(g, "fer", F64, fer);
+      Dataset(g, "fer_low", F64, fer_low);
+      Dataset(g, "fer_high", F64, fer_high);
+      Dataset(g, "seconds", F64, seconds);
+      if (r.ldpc.present) {
+        // Iterative decoding per point: mean and largest iteration count of a
+        // frame, and frames that converged to a wrong codeword.
+        std::vector<double> it_mean;
+        std::vector<std::uint64_t> it_max, undetected;
+        for (const PointResult& p : r.points) {
+          it_mean.push_back(p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
+                                                  static_cast<double>(p.counts.frames)
+                                            : 0.0);
+          it_max.push_back(p.counts.max_decoder_iterations);
+          undetected.push_back(p.counts.undetected_frame_errors);
+        }
+        Dataset(g, "decoder_iterations_mean", F64, it_mean);
+        Dataset(g, "decoder_iterations_max", U64, it_max);
+        Dataset(g, "undetected_frame_errors", U64, undetected);
+      }
+      StringDataset(g, "stop_reason", stop);
+
+      H5::Group th = g.createGroup("theory");
+      Dataset(th, "ebno_db", F64, r.theory.ebno_db);
+      Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
+      Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
+      if (!r.theory.ber_bound.empty()) {
+        Dataset(th, "ber_bound", F64, r.theory.ber_bound);
+        StrAttr(th, "ber_bound_channel", r.theory.bound_channel);
+      }
+
+      if (r.ldpc.present) {
+        const LdpcResult& l = r.ldpc;
+        H5::Group code = g.createGroup("code");
+        StrAttr(code, "construction", l.construction);
+        StrAttr(code, "description", l.description);
+        NumAttr(code, "length", H5::PredType::NATIVE_INT, l.length);
+        NumAttr(code, "info_bits", H5::PredType::NATIVE_INT, l.info_bits);
+        NumAttr(code, "checks", H5::PredType::NATIVE_INT, l.checks);
+        NumAttr(code, "rank", H5::PredType::NATIVE_INT, l.rank);
+        NumAttr(code, "lifting", H5::PredType::NATIVE_INT, l.lifting);
+        NumAttr(code, "girth", H5::PredType::NATIVE_INT, l.girth);
+        StrAttr(code, "degree_profile", l.degree_profile);
+        StrAttr(code, "encoder", l.encoder);
+        StrAttr(code, "decoder", l.decoder);
+        StrAttr(code, "schedule", l.schedule);
+        StrAttr(code, "kernel_target", l.kernel_target);
+        NumAttr(code, "max_iterations", H5::PredType::NATIVE_INT, l.max_iterations);
+        NumAttr(code, "normalization", H5::PredType::NATIVE_DOUBLE, l.normalization);
+        NumAttr(code, "offset", H5::PredType::NATIVE_DOUBLE, l.offset);
+        StrAttr(code, "code_rate_basis", "information bits k / code length n (k = n - rank H)");
+        std::vector<std::int32_t> vd(l.variable_nodes_by_degree.begin(), l.variable_nodes_by_degree.end());
+        std::vector<std::int32_t> cd(l.check_nodes_by_degree.begin(), l.check_nodes_by_degree.end());
+        Dataset(code, "variable_nodes_by_degree", H5::PredType::NATIVE_INT32, vd);
+        Dataset(code, "check_nodes_by_degree", H5::PredType::NATIVE_INT32, cd);
+      }
+      if (r.code.present) {
+        const ConvSchemeConfig& c = r.scheme.conv;
+        H5::Group code = g.createGroup("code");
+        NumAttr(code, "free_distance", H5::PredType::NATIVE_INT, r.code.free_distance);
+        StrAttr(code, "generators", c.generators);
+        NumAttr(code, "constraint_length", H5::PredType::NATIVE_INT, c.constraint_length);
+        StrAttr(code, "puncture", c.puncture);
+        StrAttr(code, "termination", c.termination);
+        StrAttr(code, "decoder", c.decoder);
+        NumAttr(code, "traceback", H5::PredType::NATIVE_INT, c.traceback);
+        StrAttr(code, "code_rate_basis",
+                "effective rate: information bits / transmitted coded bits per frame, tail bits "
+                "and puncturing included");
+        std::vector<std::int32_t> dist(r.code.spectrum_distance.begin(), r.code.spectrum_distance.end());
+        Dataset(code, "spectrum_distance", H5::PredType::NATIVE_INT32, dist);
+        Dataset(code, "spectrum_info_weight", U64, r.code.spectrum_info_weight);
+        Dataset(code, "spectrum_events", U64, r.code.spectrum_events);
+      }
+
+      if (r.spectrum.present) {
+        H5::Group sp = g.createGroup("spectrum");
+        Dataset(sp, "frequency", F64, r.spectrum.frequency);
+        Dataset(sp, "psd_db", F64, r.spectrum.psd_db);
+        NumAttr(sp, "occupied_bandwidth_99", F64, r.spectrum.occupied_bandwidth_99);
+        NumAttr(sp, "bandwidth_3db", F64, r.spectrum.bandwidth_3db);
+        StrAttr(sp, "method", "Welch, Hann window, 50 % overlap; frequency in symbol rates");
+      }
+
+      if (r.signal.present) {
+        H5::Group sg = g.createGroup("signal");
+        Dataset(sg, "constellation_i", F64, r.signal.constellation_i);
+        Dataset(sg, "constellation_q", F64, r.signal.constellation_q);
+        NumAttr(sg, "constellation_ebno_db", F64, r.signal.constellation_ebno_db);
+        StrAttr(sg, "constellation_basis",
+                "demapper input: matched-filter output at the symbol instants, impairments and "
+                "noise included, at the Eb/N0 needed for target_ber (else the last point)");
+        if (r.signal.eye_traces > 0) {
+          Dataset(sg, "eye_time", F64, r.signal.eye_time);
+          Matrix(sg, "eye", F64, r.signal.eye, static_cast<hsize_t>(r.signal.eye_traces),
+                 static_cast<hsize_t>(r.signal.eye_time.size()));
+          StrAttr(sg, "eye_basis",
+                  "in-phase matched-filter output, noise-free, no impairments; time in symbol "
+                  "periods around the ideal sampling instant");
+        }
+      }
+
+      H5::Group lim = g.createGroup("limits");
+      NumAttr(lim, "shannon_ebno_db", F64, r.limits.shannon_ebno_db);
+      NumAttr(lim, "constrained_ebno_db", F64, r.limits.constrained_ebno_db);
+      StrAttr(lim, "spectral_efficiency_basis", r.limits.spectral_efficiency_basis);
+      StrAttr(lim, "notes", r.limits.notes);
+      if (r.ldpc.present) {
+        NumAttr(lim, "threshold_ebno_db", F64, r.limits.threshold_ebno_db);
+        NumAttr(lim, "threshold_sigma", F64, r.limits.threshold_sigma);
+        StrAttr(lim, "threshold_method", r.limits.threshold_method);
+        StrAttr(lim, "threshold_description", r.limits.threshold_description);
+        StrAttr(lim, "threshold_channel", r.limits.threshold_channel);
+        NumAttr(lim, "threshold_ga_ebno_db", F64, r.limits.threshold_ga_ebno_db);
+        NumAttr(lim, "binary_input_ebno_db", F64, r.limits.binary_input_ebno_db);
+      }
+      Dataset(lim, "constrained_curve_rho", F64, r.limits.constrained_curve_rho);
+      Dataset(lim, "constrained_curve_ebno_db", F64, r.limits.constrained_curve_ebno_db);
+
+      H5::Group sum = g.createGroup("summary");
+      const Summary& s = r.summary;
+      NumAttr(sum, "ebno_at_target_db", F64, s.ebno_at_target_db);
+      NumAttr(sum, "ebno_at_target_low_db", F64, s.ebno_at_target_low_db);
+      NumAttr(sum, "ebno_at_target_high_db", F64, s.ebno_at_target_high_db);
+      NumAttr(sum, "uncoded_ebno_at_target_db", F64, s.uncoded_ebno_at_target_db);
+      NumAttr(sum, "coding_gain_db", F64, s.coding_gain_db);
+      NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
+      NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
+      if (r.ldpc.present) {
+        NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
+        NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);
+      }
+    }
+    file.close();
+  } catch (const H5::Exception& e) {
+    std::remove(tmp.c_str());
+    return Status::Error(path + ": HDF5 write failed: " + e.getDetailMsg());
+  }
+  // fsync, rename, fsync of the directory: a kill or power loss at any
+  // instant leaves the previous file or the new one, both complete.
+  return CommitFile(tmp, final_path.string());
+}
+
+Result<StoredRun> ReadCurvesFile(const std::string& path) {
+  H5::Exception::dontPrint();
+  if (!std::filesystem::exists(path)) return Status::Error(path + ": no such file");
+  try {
+    if (!H5::H5File::isHdf5(path)) return Status::Error(path + ": not an HDF5 file");
+    H5::H5File file(path, H5F_ACC_RDONLY);
+    if (!file.attrExists("format") || ReadStrAttr(file, "format") != kCurvesFormat) {
+      return Status::Error(path + ": not a capgap curves file (attribute format != '" +
+                           std::string(kCurvesFormat) + "')");
+    }
+    int version = 0;
+    file.openAttribute("format_version").read(H5::PredType::NATIVE_INT, &version);
+    if (version != kCurvesFormatVersion) {
+      return Status::Error(path + ": format_version " + std::to_string(version) +
+                           " is not supported (this program reads " +
+                           std::to_string(kCurvesFormatVersion) + ")");
+    }
+    StoredRun run;
+    run.program_version = ReadStrAttr(file, "program_version");
+    run.created_utc = ReadStrAttr(file, "created_utc");
+    file.openAttribute("threads").read(H5::PredType::NATIVE_INT, &run.threads);
+    // HDF5 lists groups by name; the root attribute "schemes" keeps run order.
+    std::vector<std::string> names;
+    if (file.attrExists("schemes")) {
+      const std::string order = ReadStrAttr(file, "schemes");
+      std::size_t start = 0;
+      while (start < order.size()) {
+        std::size_t comma = order.find(',', start);
+        if (comma == std::string::npos) comma = order.size();
+        names.push_back(order.substr(start, comma - start));
+        start = comma + 1;
+      }
+    } else {
+      for (hsize_t i = 0; i < file.getNumObjs(); ++i) names.push_back(file.getObjnameByIdx(i));
+    }
+    for (const std::string& name : names) {
+      H5::Group g = file.openGroup("/" + name);
+      StoredScheme s;
+      s.name = name;
+      s.modulation = ReadStrAttr(g, "modulation");
+      s.demapper = ReadStrAttr(g, "demapper");
+      s.code = ReadStrAttr(g, "code");
+      s.code_rate = ReadDoubleAttr(g, "code_rate");
+      s.info_bits_per_symbol = ReadDoubleAttr(g, "info_bits_per_symbol");
+      s.spectral_efficiency = ReadDoubleAttr(g, "spectral_efficiency");
+      s.spectral_efficiency_ideal = g.attrExists("spectral_efficiency_ideal")
+                                        ? ReadDoubleAttr(g, "spectral_efficiency_ideal")
+                                        : s.spectral_efficiency;
+      s.target_ber = ReadDoubleAttr(g, "target_ber");
+      s.ebno_db = ReadDataset<double>(g, "ebno_db", H5::PredType::NATIVE_DOUBLE);
+      s.ber = ReadDataset<double>(g, "ber", H5::PredType::NATIVE_DOUBLE);
+      s.bits = ReadDataset<std::uint64_t>(g, "bits", H5::PredType::NATIVE_UINT64);
+      s.bit_errors = ReadDataset<std::uint64_t>(g, "bit_errors", H5::PredType::NATIVE_UINT64);
+      H5::Group lim = g.openGroup("limits");
+      s.shannon_ebno_db = ReadDoubleAttr(lim, "shannon_ebno_db");
+      s.constrained_ebno_db = ReadDoubleAttr(lim, "constrained_ebno_db");
+      H5::Group sum = g.openGroup("summary");
+      s.summary.ebno_at_target_db = ReadDoubleAttr(sum, "ebno_at_target_db");
+      s.summary.ebno_at_target_low_db = ReadDoubleAttr(sum, "ebno_at_target_low_db");
+      s.summary.ebno_at_target_high_db = ReadDoubleAttr(sum, "ebno_at_target_high_db");
+      s.summary.uncoded_ebno_at_target_db = ReadDoubleAttr(sum, "uncoded_ebno_at_target_db");
+      s.summary.coding_gain_db = ReadDoubleAttr(sum, "coding_gain_db");
+      s.summary.gap_to_shannon_db = ReadDoubleAttr(sum, "gap_to_shannon_db");
+      s.summary.gap_to_constrained_db = ReadDoubleAttr(sum, "gap_to_constrained_db");
+      if (lim.attrExists("threshold_ebno_db")) {
+        s.ldpc = true;
+        s.threshold_ebno_db = ReadDoubleAttr(lim, "threshold_ebno_db");
+        s.threshold_method = ReadStrAttr(lim, "threshold_method");
+        s.binary_input_ebno_db = ReadDoubleAttr(lim, "binary_input_ebno_db");
+        s.summary.gap_to_threshold_db = ReadDoubleAttr(sum, "gap_to_threshold_db");
+        s.summary.gap_to_binary_input_db = ReadDoubleAttr(sum, "gap_to_binary_input_db");
+        s.decoder_iterations_mean =
+            ReadDataset<double>(g, "decoder_iterations_mean", H5::PredType::NATIVE_DOUBLE);
+        s.undetected_frame_errors =
+            ReadDataset<std::uint64_t>(g, "undetected_frame_errors", H5::PredType::NATIVE_UINT64);
+        H5::Group code = g.openGroup("code");
+        s.ldpc_description = ReadStrAttr(code, "description");
+        s.ldpc_decoder = ReadStrAttr(code, "decoder") + ", " + ReadStrAttr(code, "schedule");
+        int girth = 0;
+        code.openAttribute("girth").read(H5::PredType::NATIVE_INT, &girth);
+        s.ldpc_girth = girth;
+      }
+      run.schemes.push_back(std::move(s));
+    }
+    return run;
+  } catch (const H5::Exception& e) {
+    return Status::Error(path + ": cannot read curves file: " + e.getDetailMsg());
+  }
+}
+
+}  // namespace capgap

@@ -1,0 +1,146 @@
+// What AnalyseScheme adds for the figures: the noise-free eye of a shaped
+// scheme, the constellation at the demapper input, and the constrained-
+// capacity curve on the power-bandwidth plane.
+#include "sim/chain/scheme_result.h"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include "analysis/capacity.h"
+#include "sim/engine/engine.h"
+
+namespace capgap {
+namespace {
+
+SchemeConfig Qpsk(PulseShape shaping) {
+  SchemeConfig s;
+  s.name = "views";
+  s.modulation = ParseModulation("qpsk").value();
+  s.demapper = DemapMethod::kMaxLog;
+  s.frame_bits = 960;
+  s.shaping = shaping;
+  s.rolloff = 0.35;
+  s.span = 16;
+  s.samples_per_symbol = 4;
+  return s;
+}
+
+SweepConfig Sweep() {
+  SweepConfig sweep;
+  sweep.ebno_db = {4, 6, 8};
+  sweep.target_errors = 300;
+  sweep.max_bits = 4000000;
+  sweep.ber_floor = 0;
+  sweep.target_ber = 1e-3;
+  sweep.seed = 3;
+  return sweep;
+}
+
+SchemeResult Analyse(const SchemeConfig& scheme) {
+  auto chain = Chain::Create(scheme, 3);
+  EXPECT_TRUE(chain.ok()) << chain.status().message();
+  EngineOptions eo;
+  eo.threads = 1;
+  const SweepConfig sweep = Sweep();
+  return AnalyseScheme(chain.value(), sweep, RunSweep(chain.value(), sweep, eo));
+}
+
+// RRC transmit and matched filter cascade to a raised cosine, which is zero
+// at every nonzero multiple of T (Nyquist criterion; Proakis & Salehi,
+// Digital Communications, 5th ed., ch. 9): at the ideal instant the eye is
+// closed to +-1/sqrt(2) up to the truncation ISI of a span-16 pair (-51 dB,
+// tests/blocks/shaping/fir_filter_test.cc), while half a symbol away the
+// neighbours' tails spread it widely.
+TEST(SchemeResultViews, RrcEyeIsOpenAtTheIdealInstantOnly) {
+  const SchemeResult r = Analyse(Qpsk(PulseShape::kRootRaisedCosine));
+  const SignalViews& v = r.signal;
+  ASSERT_TRUE(v.present);
+  ASSERT_GT(v.eye_traces, 100);
+  const std::size_t width = v.eye_time.size();
+  ASSERT_EQ(width % 2, 1u);
+  ASSERT_EQ(v.eye.size(), static_cast<std::size_t>(v.eye_traces) * width);
+  const std::size_t centre = width / 2, half = width / 4;
+  EXPECT_DOUBLE_EQ(v.eye_time[centre], 0.0);
+  EXPECT_NEAR(v.eye_time[centre - half], -0.5, 1e-12);
+  double worst = 0, spread = 0;
+  for (int t = 0; t < v.eye_traces; ++t) {
+    const double* row = &v.eye[static_cast<std::size_t>(t) * width];
+    worst = std::max(worst, std::abs(std::abs(row[centre]) - 1.0 / std::sqrt(2.0)));
+    spread = std::max(spread, std::abs(row[centre - half]));
+  }
+  EXPECT_LT(worst, 0.01);
+  EXPECT_GT(spread, 0.8);  // some trace at t = -T/2 far from the +-0.707 levels
+}
+
+// An RC transmit pulse followed by an RC "matched" filter is not Nyquist: the
+// eye at the ideal instant is no longer closed to two levels.
+TEST(SchemeResultViews, RcTwiceShowsIntersymbolInterference) {
+  const SchemeResult r = Analyse(Qpsk(PulseShape::kRaisedCosine));
+  const SignalViews& v = r.signal;
+  ASSERT_GT(v.eye_traces, 100);
+  const std::size_t width = v.eye_time.size(), centre = width / 2;
+  double lo = 1e9, hi = 0;
+  for (int t = 0; t < v.eye_traces; ++t) {
+    const double a = std::abs(v.eye[static_cast<std::size_t>(t) * width + centre]);
+    lo = std::min(lo, a);
+    hi = std::max(hi, a);
+  }
+  EXPECT_GT(hi - lo, 0.05);
+}
+
+// Constellation at the demapper input: a noisy QPSK cloud whose mean squared
+// distance to the nearest point estimates N0 (Es = 1, complex noise of
+// variance N0, FIELD_NOTES s1; matched filter of unit-energy taps passes N0).
+// At 10 dB Eb/N0 (Es/N0 = 13 dB) wrong-nearest-point events have probability
+// ~1e-10, so the estimate is unbiased; 2000 samples of an exponential
+// variable give a standard error of N0/sqrt(2000) = 2.2 %: the band is +-4
+// sigma (9 %), common practice.
+TEST(SchemeResultViews, ConstellationNoiseMatchesN0) {
+  for (PulseShape shaping : {PulseShape::kNone, PulseShape::kRootRaisedCosine}) {
+    auto chain = Chain::Create(Qpsk(shaping), 3);
+    ASSERT_TRUE(chain.ok());
+    NoiseSpec spec;
+    spec.ebn0_db = 10;
+    spec.bits_per_symbol = 2;
+    spec.samples_per_symbol = chain.value().samples_per_symbol();
+    const AwgnChannel channel(spec);
+    const std::vector<cf32> y = chain.value().CaptureDemapperInput(channel, 2000);
+    ASSERT_EQ(y.size(), 2000u);
+    const double a = 1.0 / std::sqrt(2.0);
+    double sum = 0;
+    for (const cf32& z : y) {
+      const double di = std::abs(z.real()) - a, dq = std::abs(z.imag()) - a;
+      sum += di * di + dq * dq;
+    }
+    const double n0 = channel.n0();
+    EXPECT_NEAR(sum / 2000.0 / n0, 1.0, 0.09) << ToString(shaping);
+  }
+}
+
+// The operating point of the picture: Eb/N0 needed for target_ber when the
+// curve crosses it.
+TEST(SchemeResultViews, ConstellationIsDrawnAtTheOperatingPoint) {
+  const SchemeResult r = Analyse(Qpsk(PulseShape::kNone));
+  ASSERT_TRUE(std::isfinite(r.summary.ebno_at_target_db));
+  EXPECT_DOUBLE_EQ(r.signal.constellation_ebno_db, r.summary.ebno_at_target_db);
+  EXPECT_EQ(r.signal.eye_traces, 0);  // unshaped: no eye
+  EXPECT_EQ(r.signal.constellation_i.size(), 2000u);
+}
+
+// Gray QPSK is two independent BPSK channels at half the Es/N0 each, so its
+// constrained capacity at rho bits per symbol needs the Eb/N0 of binary input
+// at rate rho/2 (common practice; an identity independent of the 2-D
+// quadrature, which BinaryInputMinEbn0Db evaluates in 1-D).
+TEST(SchemeResultViews, QpskConstrainedCurveEqualsBinaryInputAtHalfRate) {
+  const SchemeResult r = Analyse(Qpsk(PulseShape::kNone));
+  ASSERT_EQ(r.limits.constrained_curve_rho.size(), 24u);
+  for (std::size_t i = 0; i < r.limits.constrained_curve_rho.size(); ++i) {
+    const double rho = r.limits.constrained_curve_rho[i];
+    EXPECT_NEAR(r.limits.constrained_curve_ebno_db[i], analysis::BinaryInputMinEbn0Db(rho / 2), 0.01)
+        << "rho = " << rho;
+  }
+}
+
+}  // namespace
+}  // namespace capgap

@@ -1,0 +1,191 @@
+// Config parsing and validation: every error names the file, the key, the
+// value and the rule (exact message checks), and defaults resolve.
+#include "sim/config/config.h"
+
+#include <gtest/gtest.h>
+
+namespace capgap {
+namespace {
+
+constexpr char kGood[] = R"(
+[sweep]
+ebno_db = 0:2:8
+target_errors = 200
+seed = 7
+
+[scheme.qpsk]
+modulation = qpsk
+frame_bits = 1000
+
+[scheme.q16]
+modulation = 16qam
+demapper = logmap
+)";
+
+std::string ErrorOf(const std::string& text, const std::vector<std::string>& overrides = {}) {
+  auto r = ParseRunConfig(text, "test.ini", overrides);
+  return r.ok() ? "OK" : r.status().message();
+}
+
+TEST(Config, ParsesSweepAndSchemesInFileOrder) {
+  auto r = ParseRunConfig(kGood, "test.ini", {});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  const RunConfig& c = r.value();
+  EXPECT_EQ(c.sweep.ebno_db, (std::vector<double>{0, 2, 4, 6, 8}));
+  EXPECT_EQ(c.sweep.target_errors, 200u);
+  EXPECT_EQ(c.sweep.seed, 7u);
+  EXPECT_EQ(c.sweep.max_bits, 100000000u);  // default
+  ASSERT_EQ(c.schemes.size(), 2u);
+  EXPECT_EQ(c.schemes[0].name, "qpsk");
+  EXPECT_EQ(c.schemes[0].frame_bits, 1000u);
+  EXPECT_EQ(c.schemes[1].name, "q16");
+  EXPECT_EQ(c.schemes[1].demapper, DemapMethod::kLogMap);
+  EXPECT_EQ(c.schemes[1].frame_bits, 1920u);  // default
+}
+
+TEST(Config, OverridesApplyBeforeValidation) {
+  auto r = ParseRunConfig(kGood, "test.ini",
+                          {"sweep.target_errors=50", "scheme.q16.frame_bits=400"});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().sweep.target_errors, 50u);
+  EXPECT_EQ(r.value().schemes[1].frame_bits, 400u);
+}
+
+TEST(Config, ResolvedTextRoundTrips) {
+  auto r = ParseRunConfig(kGood, "test.ini", {"sweep.seed=9"});
+  ASSERT_TRUE(r.ok());
+  const std::string text = r.value().ResolvedText();
+  auto again = ParseRunConfig(text, "resolved", {});
+  ASSERT_TRUE(again.ok()) << again.status().message();
+  EXPECT_EQ(again.value().ResolvedText(), text);
+  EXPECT_EQ(again.value().sweep.seed, 9u);
+}
+
+TEST(Config, BadValuesNameFileKeyValueAndRule) {
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=-3"}),
+            "test.ini: sweep.target_errors = '-3': must be an integer > 0");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=abc"}),
+            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer > 0");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:0:4"}),
+            "test.ini: sweep.ebno_db = '0:0:4': STEP must be > 0");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:1"}),
+            "test.ini: sweep.ebno_db = '0:1': expected START:STEP:STOP (numbers, in dB) or a "
+            "comma list");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.frame_bits=999"}),
+            "test.ini: scheme.qpsk.frame_bits = '999': must be a multiple of 2 (bits per symbol "
+            "of qpsk)");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.demapper=soft"}),
+            "test.ini: scheme.qpsk.demapper = 'soft': " + ParseDemapMethod("soft").status().message());
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_ber=0.7"}),
+            "test.ini: sweep.target_ber = '0.7': must be in (0, 0.5)");
+}
+
+TEST(Config, UnknownModulationListsValidWords) {
+  const std::string msg = ErrorOf(kGood, {"scheme.qpsk.modulation=qpsq"});
+  EXPECT_EQ(msg.rfind("test.ini: scheme.qpsk.modulation = 'qpsq': ", 0), 0u) << msg;
+  EXPECT_NE(msg.find("16qam"), std::string::npos) << msg;
+}
+
+TEST(Config, UnknownKeysAndSectionsAreRejected) {
+  EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nroll_off = 0.3\n"),
+            "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
+            "ebno_db, frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
+            "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
+            "constraint_length, puncture, termination, decoder, traceback, construction, length, "
+            "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
+            "max_iterations, arithmetic, normalization, offset");
+  EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
+            "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
+            "--set scheme.bpsk.frame_bits: no scheme 'bpsk' in test.ini; schemes: qpsk, q16");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.targets=100"}),
+            "test.ini: unknown key '--set sweep.targets'; [sweep] keys: ebno_db, target_errors, "
+            "max_bits, ber_floor, target_ber, seed, threads, checkpoint_seconds");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.seed"}),
+            "--set 'sweep.seed': expected KEY=VALUE, e.g. sweep.target_errors=500");
+}
+
+TEST(Config, MissingRequiredKeysAreNamed) {
+  EXPECT_EQ(ErrorOf("[scheme.a]\nmodulation = bpsk\n"),
+            "test.ini: missing required key 'sweep.ebno_db' (START:STEP:STOP (inclusive) or a "
+            "comma list, in dB)");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n"),
+            "test.ini: no [scheme.NAME] section; at least one scheme is required");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nframe_bits = 8\n"),
+            "test.ini: missing required key 'scheme.a.modulation' (bpsk, qpsk, 8psk, 16qam, "
+            "64qam, 256qam, <M>psk, <M>qam)");
+}
+
+TEST(Config, CodeKeysApplyOnlyToTheirCode) {
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.generators=5,7"}),
+            "test.ini: scheme.qpsk.generators applies only with code = conv (this scheme has "
+            "code = none)");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=turbo"}),
+            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv, ldpc");
+  auto r = ParseRunConfig(kGood, "test.ini",
+                          {"scheme.qpsk.code=conv", "scheme.qpsk.generators=5,7",
+                           "scheme.qpsk.constraint_length=3"});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().schemes[0].conv.generators, "5,7");
+  EXPECT_EQ(r.value().schemes[0].conv.constraint_length, 3);
+  EXPECT_EQ(r.value().schemes[0].conv.decoder, "viterbi_soft");  // default
+  // Uncoded schemes carry no code keys in the resolved text.
+  int q16_code_keys = 0, qpsk_code_keys = 0;
+  for (const auto& [key, value] : r.value().resolved) {
+    q16_code_keys += key == "scheme.q16.generators" || key == "scheme.q16.decoder";
+    qpsk_code_keys += key == "scheme.qpsk.generators" || key == "scheme.qpsk.decoder";
+  }
+  EXPECT_EQ(q16_code_keys, 0);
+  EXPECT_EQ(qpsk_code_keys, 2);
+  EXPECT_NE(r.value().ResolvedText().find("generators = 5,7"), std::string::npos);
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=conv", "scheme.qpsk.constraint_length=12"}),
+            "test.ini: scheme.qpsk.constraint_length = '12': must be an integer in [3, 9]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=conv", "scheme.qpsk.decoder=fano"}),
+            "test.ini: scheme.qpsk.decoder = 'fano': valid: viterbi_soft, viterbi_hard, bcjr");
+}
+
+TEST(Config, ShapingKeysApplyOnlyToShapedSchemes) {
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.rolloff=0.2"}),
+            "test.ini: scheme.qpsk.rolloff applies only with shaping = rc or rrc (this scheme "
+            "has shaping = none)");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=rrc", "scheme.qpsk.rolloff=1.5"}),
+            "test.ini: scheme.qpsk.rolloff = '1.5': must be in (0, 1]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=rrc", "scheme.qpsk.samples_per_symbol=1"}),
+            "test.ini: scheme.qpsk.samples_per_symbol = '1': must be an integer in [2, 64]");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.shaping=gauss"}),
+            "test.ini: scheme.qpsk.shaping = 'gauss': valid: none, rc, rrc");
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.frequency_offset=0.7"}),
+            "test.ini: scheme.qpsk.frequency_offset = '0.7': must be in [-0.5, 0.5] cycles per "
+            "symbol");
+  auto r = ParseRunConfig(kGood, "test.ini", {"scheme.qpsk.shaping=rrc", "scheme.qpsk.span=10"});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().schemes[0].shaping, PulseShape::kRootRaisedCosine);
+  EXPECT_EQ(r.value().schemes[0].span, 10);
+  EXPECT_EQ(r.value().schemes[0].samples_per_symbol, 8);  // default
+  EXPECT_DOUBLE_EQ(r.value().schemes[0].rolloff, 0.35);    // default
+}
+
+TEST(Config, DuplicateKeysAreRejected) {
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\nebno_db = 2\n[scheme.a]\nmodulation = bpsk\n"),
+            "test.ini: key 'sweep.ebno_db' given twice");
+}
+
+TEST(ParseDbList, AcceptsInclusiveRangesAndLists) {
+  auto r = ParseDbList("0:0.1:0.3", "x");
+  ASSERT_TRUE(r.ok());
+  EXPECT_EQ(r.value(), (std::vector<double>{0, 0.1, 0.2, 0.3}));
+  auto l = ParseDbList(" 1, 2.5 ,4", "x");
+  ASSERT_TRUE(l.ok());
+  EXPECT_EQ(l.value(), (std::vector<double>{1, 2.5, 4}));
+  EXPECT_EQ(ParseDbList("3,2", "x").status().message(), "x = '3,2': points must increase");
+  EXPECT_EQ(ParseDbList("4:1:2", "x").status().message(), "x = '4:1:2': STOP must be >= START");
+}
+
+TEST(Config, MissingFileIsReported) {
+  auto r = LoadRunConfig("/nonexistent/dir/x.ini", {});
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), "/nonexistent/dir/x.ini: cannot open config file");
+}
+
+}  // namespace
+}  // namespace capgap

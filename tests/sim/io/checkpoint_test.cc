@@ -1,0 +1,320 @@
+// Checkpoint file: every UnitCounts field survives the text format and the MPI
+// packing; a damaged, truncated or foreign file is refused with the reason; a
+// write replaced by a kill at any instant leaves a good copy; and the resume
+// rules refuse exactly the changes that would alter recorded streams, naming
+// the key.
+#include "sim/io/checkpoint.h"
+
+#include <signal.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cinttypes>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <random>
+#include <sstream>
+
+#include <gtest/gtest.h>
+
+namespace capgap {
+namespace {
+
+namespace fs = std::filesystem;
+
+fs::path TempDir(const std::string& name) {
+  fs::path dir = fs::temp_directory_path() /
+                 ("capgap_checkpoint_test_" + std::to_string(::getpid()) + "_" + name);
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  return dir;
+}
+
+// Every field a different non-zero value (field k of point p: p * 1000 + k + 1).
+UnitCounts DistinctCounts(std::uint64_t p) {
+  UnitCounts c;
+  std::uint64_t k = 0;
+  ForEachCountField(c, [&](const char*, auto& field) {
+    field = static_cast<std::remove_reference_t<decltype(field)>>(p * 1000 + ++k);
+  });
+  return c;
+}
+
+const char kConfig[] =
+    "[sweep]\nebno_db = 0:1:4\ntarget_errors = 100\nmax_bits = 1000000\nseed = 7\n"
+    "[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n"
+    "[scheme.q16]\nmodulation = 16qam\nframe_bits = 960\n";
+
+RunConfig Config(const std::vector<std::string>& overrides = {}) {
+  auto r = ParseRunConfig(kConfig, "test.ini", overrides);
+  EXPECT_TRUE(r.ok()) << r.status().message();
+  return r.value();
+}
+
+Checkpoint MakeCheckpoint(std::size_t points_per_scheme = 3) {
+  const RunConfig cfg = Config();
+  Checkpoint c;
+  c.seed = 7;
+  c.kernel_target = "AVX2";
+  c.updated_utc = "2026-01-02T03:04:05Z";
+  c.config_text = cfg.ResolvedText();
+  for (const char* name : {"qpsk", "q16"}) {
+    SchemeRecord s;
+    s.name = name;
+    for (std::size_t i = 0; i < points_per_scheme; ++i) {
+      PointRecord p;
+      p.ebno_db = static_cast<double>(i);
+      p.units = static_cast<std::uint32_t>(10 * i + 3);
+      p.counts = DistinctCounts(i + 1);
+      p.finished = i + 1 < points_per_scheme;
+      p.stop_reason = p.finished ? (i % 2 ? StopReason::kMaxBits : StopReason::kTargetErrors)
+                                 : StopReason::kInterrupted;
+      p.seconds = 0.1 * static_cast<double>(i) + 1.0 / 3.0;
+      s.points.push_back(p);
+    }
+    c.schemes.push_back(s);
+  }
+  return c;
+}
+
+void ExpectSame(const Checkpoint& a, const Checkpoint& b) {
+  EXPECT_EQ(a.complete, b.complete);
+  EXPECT_EQ(a.seed, b.seed);
+  EXPECT_EQ(a.kernel_target, b.kernel_target);
+  EXPECT_EQ(a.updated_utc, b.updated_utc);
+  EXPECT_EQ(a.config_text, b.config_text);
+  ASSERT_EQ(a.schemes.size(), b.schemes.size());
+  for (std::size_t s = 0; s < a.schemes.size(); ++s) {
+    EXPECT_EQ(a.schemes[s].name, b.schemes[s].name);
+    ASSERT_EQ(a.schemes[s].points.size(), b.schemes[s].points.size());
+    for (std::size_t i = 0; i < a.schemes[s].points.size(); ++i) {
+      const PointRecord& x = a.schemes[s].points[i];
+      const PointRecord& y = b.schemes[s].points[i];
+      EXPECT_EQ(x.ebno_db, y.ebno_db);
+      EXPECT_EQ(x.units, y.units);
+      EXPECT_EQ(x.counts, y.counts);  // every field (defaulted operator==)
+      EXPECT_EQ(x.finished, y.finished);
+      EXPECT_EQ(x.stop_reason, y.stop_reason);
+      EXPECT_EQ(x.seconds, y.seconds);  // %.17g round-trips a double exactly
+    }
+  }
+}
+
+// FNV-1a 64, written here independently of checkpoint.cc to forge files with
+// a valid checksum (offset basis and prime from memory, as there).
+std::string WithChecksum(const std::string& body) {
+  std::uint64_t h = 0xcbf29ce484222325ull;
+  for (char ch : body) {
+    h ^= static_cast<unsigned char>(ch);
+    h *= 0x100000001b3ull;
+  }
+  char sum[40];
+  std::snprintf(sum, sizeof sum, "checksum %016" PRIx64 "\n", h);
+  return body + sum;
+}
+
+std::string Body(const std::string& file) {
+  const auto last = file.rfind('\n', file.size() - 2);
+  return file.substr(0, last + 1);
+}
+
+TEST(Checkpoint, RoundTripKeepsEveryField) {
+  Checkpoint c = MakeCheckpoint();
+  auto back = ParseCheckpoint(SerializeCheckpoint(c), "x.ckpt");
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  ExpectSame(c, back.value());
+  c.complete = true;
+  c.config_text = "[sweep]\nebno_db = 1";  // no final newline
+  back = ParseCheckpoint(SerializeCheckpoint(c), "x.ckpt");
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  ExpectSame(c, back.value());
+  EXPECT_EQ(back.value().FinishedPoints(), 4u);
+  EXPECT_EQ(back.value().RecordedPoints(), 6u);
+}
+
+TEST(Checkpoint, PackingCoversEveryField) {
+  std::size_t fields = 0;
+  UnitCounts probe;
+  ForEachCountField(probe, [&](const char*, auto&) { ++fields; });
+  EXPECT_EQ(fields, kUnitCountFields);
+  const UnitCounts c = DistinctCounts(42);
+  std::uint64_t words[kUnitCountFields];
+  PackCounts(c, words);
+  EXPECT_EQ(UnpackCounts(words), c);
+  // No field left at its default by DistinctCounts, so a dropped field shows.
+  EXPECT_FALSE(UnpackCounts(words) == UnitCounts{});
+}
+
+TEST(Checkpoint, EveryTruncationIsRefused) {
+  const std::string text = SerializeCheckpoint(MakeCheckpoint());
+  for (std::size_t n = 0; n < text.size(); ++n) {
+    auto r = ParseCheckpoint(text.substr(0, n), "x.ckpt");
+    ASSERT_FALSE(r.ok()) << "accepted a file cut at byte " << n << " of " << text.size();
+  }
+}
+
+TEST(Checkpoint, DamagedOrForeignFilesAreRefusedWithTheReason) {
+  const std::string text = SerializeCheckpoint(MakeCheckpoint());
+  std::string flipped = text;
+  char& digit = flipped[text.find("bit_errors=") + 11];
+  digit = digit == '1' ? '2' : '1';  // a count digit
+  auto r = ParseCheckpoint(flipped, "x.ckpt");
+  ASSERT_FALSE(r.ok());
+  EXPECT_NE(r.status().message().find("x.ckpt: checksum mismatch (file damaged)"), std::string::npos)
+      << r.status().message();
+
+  r = ParseCheckpoint("[sweep]\nebno_db = 1\n", "x.ckpt");
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), "x.ckpt: not a capgap checkpoint (first line is not 'capgap-checkpoint N')");
+
+  std::string v2 = Body(text);
+  v2.replace(0, v2.find('\n'), "capgap-checkpoint 2");
+  r = ParseCheckpoint(WithChecksum(v2), "x.ckpt");
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), "x.ckpt: checkpoint version 2 is not supported (this program reads 1)");
+
+  // A point line without one of the UnitCounts fields (an older writer).
+  std::string old = Body(text);
+  const auto pos = old.find(" undetected_frame_errors=");
+  old.erase(pos, old.find('\n', pos) - pos);
+  r = ParseCheckpoint(WithChecksum(old), "x.ckpt");
+  ASSERT_FALSE(r.ok());
+  EXPECT_NE(r.status().message().find("point 0: field 'undetected_frame_errors' missing or invalid"),
+            std::string::npos)
+      << r.status().message();
+}
+
+TEST(Checkpoint, WriteReplacesTheFileAndLeavesNoTemporary) {
+  const fs::path dir = TempDir("write");
+  const std::string path = (dir / "run.h5.ckpt").string();
+  Checkpoint a = MakeCheckpoint(2), b = MakeCheckpoint(3);
+  ASSERT_TRUE(WriteCheckpoint(path, a).ok());
+  ASSERT_TRUE(WriteCheckpoint(path, b).ok());
+  auto back = ReadCheckpoint(path);
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  ExpectSame(b, back.value());
+  int entries = 0;
+  for (const auto& e : fs::directory_iterator(dir)) {
+    ++entries;
+    EXPECT_EQ(e.path().filename(), "run.h5.ckpt");
+  }
+  EXPECT_EQ(entries, 1);
+  const Status missing_dir = WriteCheckpoint((dir / "no" / "such" / "x.ckpt").string(), a);
+  EXPECT_FALSE(missing_dir.ok());
+  EXPECT_NE(missing_dir.message().find("cannot create"), std::string::npos) << missing_dir.message();
+  const auto gone = ReadCheckpoint((dir / "absent.ckpt").string());
+  ASSERT_FALSE(gone.ok());
+  EXPECT_EQ(gone.status().message(), (dir / "absent.ckpt").string() + ": cannot open checkpoint");
+  fs::remove_all(dir);
+}
+
+// A child rewrites a large checkpoint (two versions in turn) as fast as it
+// can; SIGKILL at random instants must always leave one complete version.
+// 25 kills at uniform delays in [0, 30] ms: with writes taking about a
+// millisecond, most kills land inside a write.
+TEST(Checkpoint, KillDuringWriteLeavesTheLastGoodCopy) {
+  const fs::path dir = TempDir("kill");
+  const std::string path = (dir / "run.h5.ckpt").string();
+  const Checkpoint a = MakeCheckpoint(400), b = MakeCheckpoint(401);
+  ASSERT_TRUE(WriteCheckpoint(path, a).ok());
+  std::mt19937 rng(std::random_device{}());
+  std::uniform_int_distribution<int> delay_us(0, 30000);
+  for (int round = 0; round < 25; ++round) {
+    const pid_t child = ::fork();
+    ASSERT_GE(child, 0);
+    if (child == 0) {
+      for (int i = 0;; ++i) {
+        if (!WriteCheckpoint(path, i % 2 ? a : b).ok()) ::_exit(3);
+      }
+    }
+    ::usleep(static_cast<useconds_t>(delay_us(rng)));
+    ::kill(child, SIGKILL);
+    int status = 0;
+    ::waitpid(child, &status, 0);
+    ASSERT_TRUE(WIFSIGNALED(status)) << "writer failed with status " << status;
+    auto back = ReadCheckpoint(path);
+    ASSERT_TRUE(back.ok()) << "round " << round << ": " << back.status().message();
+    const std::size_t n = back.value().schemes[0].points.size();
+    EXPECT_TRUE(n == 400 || n == 401) << n;
+  }
+  fs::remove_all(dir);
+}
+
+// ------------------------------------------------------------ resume rules
+Checkpoint RecordedFor(const RunConfig& cfg, std::size_t points) {
+  Checkpoint c;
+  c.seed = cfg.sweep.seed;
+  c.config_text = cfg.ResolvedText();
+  for (const SchemeConfig& s : cfg.schemes) {
+    SchemeRecord r;
+    r.name = s.name;
+    for (std::size_t i = 0; i < points; ++i) {
+      PointRecord p;
+      p.ebno_db = cfg.sweep.ebno_db[i];
+      r.points.push_back(p);
+    }
+    c.schemes.push_back(r);
+  }
+  return c;
+}
+
+std::string Refusal(const std::vector<std::string>& overrides, const std::string& extra_text = "") {
+  const Checkpoint c = RecordedFor(Config(), 3);
+  auto cfg = ParseRunConfig(std::string(kConfig) + extra_text, "test.ini", overrides);
+  EXPECT_TRUE(cfg.ok()) << cfg.status().message();
+  const Status s = CheckResumable(c, cfg.value(), "r.ckpt");
+  return s.ok() ? "" : s.message();
+}
+
+const char kFixed[] =
+    "; it fixes the random streams of the recorded work (start a new output file to change it)";
+
+TEST(CheckResumable, ExtensionKeysAreAllowed) {
+  EXPECT_EQ(Refusal({}), "");
+  EXPECT_EQ(Refusal({"sweep.target_errors=1000", "sweep.max_bits=5000000", "sweep.ber_floor=0",
+                     "sweep.target_ber=1e-4", "sweep.threads=3", "sweep.checkpoint_seconds=5"}),
+            "");
+  EXPECT_EQ(Refusal({"sweep.ebno_db=0:1:9"}), "");  // points appended
+  EXPECT_EQ(Refusal({"sweep.ebno_db=0,1"}), "");    // fewer points: recorded ones beyond are dropped
+  EXPECT_EQ(Refusal({}, "[scheme.extra]\nmodulation = bpsk\n"), "");  // a new scheme runs fresh
+}
+
+TEST(CheckResumable, ChangesThatAlterRecordedStreamsAreRefusedNamingTheKey) {
+  EXPECT_EQ(Refusal({"scheme.qpsk.frame_bits=1920"}),
+            std::string("cannot resume from r.ckpt: scheme.qpsk.frame_bits changed from '960' to "
+                        "'1920'") + kFixed);
+  EXPECT_EQ(Refusal({"scheme.q16.demapper=hard"}),
+            std::string("cannot resume from r.ckpt: scheme.q16.demapper changed from 'maxlog' to "
+                        "'hard'") + kFixed);
+  // Switching shaping on also adds keys; the changed key is named first.
+  EXPECT_EQ(Refusal({"scheme.qpsk.shaping=rrc"}),
+            std::string("cannot resume from r.ckpt: scheme.qpsk.shaping changed from 'none' to "
+                        "'rrc'") + kFixed);
+  EXPECT_EQ(Refusal({"sweep.seed=8"}),
+            std::string("cannot resume from r.ckpt: sweep.seed changed from 7 to 8") + kFixed);
+  EXPECT_EQ(Refusal({"sweep.ebno_db=0,1.5,2"}),
+            "cannot resume from r.ckpt: sweep.ebno_db point 1 (scheme qpsk) changed from 1 dB to "
+            "1.5 dB; recorded points keep their Eb/N0 (append new points at the end)");
+  EXPECT_EQ(Refusal({"sweep.target_errors=50"}),
+            "cannot resume from r.ckpt: sweep.target_errors decreased from 100 to 50; a resume may "
+            "only raise it (finished points may hold more errors than the new target)");
+  EXPECT_EQ(Refusal({"sweep.max_bits=999999"}),
+            "cannot resume from r.ckpt: sweep.max_bits decreased from 1000000 to 999999; a resume "
+            "may only raise it (finished points may hold more bits than the new limit)");
+}
+
+TEST(CheckResumable, RecordedSchemeMissingFromConfigIsRefused) {
+  const Checkpoint c = RecordedFor(Config(), 2);
+  auto cfg = ParseRunConfig(
+      "[sweep]\nebno_db = 0:1:4\ntarget_errors = 100\nmax_bits = 1000000\nseed = 7\n"
+      "[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n",
+      "test.ini", {});
+  ASSERT_TRUE(cfg.ok());
+  EXPECT_EQ(CheckResumable(c, cfg.value(), "r.ckpt").message(),
+            "cannot resume from r.ckpt: scheme 'q16' is recorded in the checkpoint but missing "
+            "from the configuration");
+}
+
+}  // namespace
+}  // namespace capgap
