@@ -89,6 +89,7 @@
 #include <numbers>
 #include <unsupported/Eigen/FFT>
 
+#include "analysis/bisection.h"
 #include "analysis/capacity.h"
 
 namespace capgap::analysis {
@@ -187,6 +188,22 @@ double NewtonRefine(const ChebyshevSegment& seg, double log_y, double x, double 
     double next = x - f / EvalChebyshevDerivative(seg, x);
     if (!(next >= lo && next <= hi)) next = 0.5 * (lo + hi);
     if (std::abs(next - x) <= 4e-16 * x + 1e-300) return next;
+    x = next;
+  }
+  return x;
+}
+
+// Newton for log_phi(x) = log_y with x kept >= floor, from x, for a
+// log_phi(x, &derivative) that returns ln phi(x) and sets d ln phi / dx;
+// stops when a step moves x by at most rel_tol x, or after `steps` steps.
+template <typename LogPhi>
+double NewtonAboveFloor(LogPhi&& log_phi, double log_y, double x, double floor, int steps,
+                        double rel_tol) {
+  for (int k = 0; k < steps; ++k) {
+    double derivative = 0.0;
+    const double f = log_phi(x, &derivative) - log_y;
+    const double next = std::max(floor, x - f / derivative);
+    if (std::abs(next - x) <= rel_tol * x) return next;
     x = next;
   }
   return x;
@@ -341,15 +358,27 @@ Result<double> BisectThreshold(const EdgeDistribution& e, double tolerance, Deco
       return Status::Error(Format("density evolution fails even at sigma = %.3g", lo));
     }
   }
-  while (hi - lo > tolerance) {
-    const double mid = 0.5 * (lo + hi);
-    if (decodes(mid)) {
-      lo = mid;
-    } else {
-      hi = mid;
-    }
-  }
-  return lo;
+  return Bisect(lo, hi, tolerance, decodes).lo;
+}
+
+// A threshold by BisectThreshold as a ThresholdResult: the description is
+// `method_text` followed by the bisection tolerance and, when it applies,
+// the stability-limit note.
+template <typename Decodes>
+Result<ThresholdResult> ThresholdByBisection(const EdgeDistribution& e, double rate,
+                                             double tolerance, DeMethod method,
+                                             const std::string& method_text, Decodes&& decodes) {
+  bool stability_limited = false;
+  Result<double> sigma = BisectThreshold(e, tolerance, decodes, &stability_limited);
+  if (!sigma.ok()) return sigma.status();
+  ThresholdResult result;
+  result.sigma = sigma.value();
+  result.ebno_db = EbnoDb(rate, result.sigma);
+  result.method = method;
+  result.description =
+      method_text + Format("; bisection on sigma to %g%s", tolerance,
+                           stability_limited ? "; threshold = stability limit" : "");
+  return result;
 }
 
 // ----------------------------------------------- Gaussian approximation --
@@ -385,15 +414,8 @@ double PhiFitInverseLog(double log_y) {
   if (!(log_y < 0.0)) return 0.0;
   const double log_small_end = -kFitA * std::pow(kFitBreak, kFitB) + kFitC;
   if (log_y >= log_small_end) return std::pow((kFitC - log_y) / kFitA, 1.0 / kFitB);
-  double x = std::max(kFitBreak, -4.0 * log_y);
-  for (int k = 0; k < 100; ++k) {
-    double derivative = 0.0;
-    const double f = LogPhiFitLarge(x, &derivative) - log_y;
-    const double next = std::max(kFitBreak, x - f / derivative);
-    if (std::abs(next - x) <= 1e-14 * x) return next;
-    x = next;
-  }
-  return x;
+  return NewtonAboveFloor(LogPhiFitLarge, log_y, std::max(kFitBreak, -4.0 * log_y), kFitBreak,
+                          100, 1e-14);
 }
 
 // ln(1 - (1 - s)^n) for s = exp(log_s) in (0, 1], n >= 1.
@@ -817,15 +839,8 @@ double GaussianApproxPhiInverseLog(double log_y) {
   const std::vector<ChebyshevSegment>& segments = GetPhiTable().segments;
   if (log_y <= segments.back().log_phi_b) {
     // Newton on the asymptotic series, from the leading term's root.
-    double x = std::max(kPhiTableMax, -4.0 * log_y);
-    for (int k = 0; k < 50; ++k) {
-      double derivative = 0.0;
-      const double f = LogPhiAsymptotic(x, &derivative) - log_y;
-      const double next = std::max(kPhiTableMax, x - f / derivative);
-      if (std::abs(next - x) <= 1e-15 * x) return next;
-      x = next;
-    }
-    return x;
+    return NewtonAboveFloor(LogPhiAsymptotic, log_y, std::max(kPhiTableMax, -4.0 * log_y),
+                            kPhiTableMax, 50, 1e-15);
   }
   std::size_t s = 0;
   while (log_y < segments[s].log_phi_b) ++s;
@@ -913,22 +928,14 @@ Result<ThresholdResult> GaussianApproxThreshold(const EdgeDistribution& distribu
     if (options.closed_form_phi) return GaDecodes(lambda, rho, s, LogPhiFit, PhiFitInverseLog);
     return GaDecodes(lambda, rho, s, LogGaussianApproxPhi, GaussianApproxPhiInverseLog);
   };
-  bool stability_limited = false;
-  Result<double> sigma =
-      BisectThreshold(distribution, options.sigma_tolerance, decodes, &stability_limited);
-  if (!sigma.ok()) return sigma.status();
-  ThresholdResult result;
-  result.sigma = sigma.value();
-  result.ebno_db = EbnoDb(rate, result.sigma);
-  result.method = DeMethod::kGaussianApproximation;
-  result.description = Format(
-      "Gaussian approximation of sum-product density evolution (Chung, Richardson, Urbanke 2001), "
-      "phi %s; decodes when the mean check-to-variable LLR reaches %g within %d iterations; "
-      "bisection on sigma to %g%s",
-      options.closed_form_phi ? "by the paper's closed-form fit" : "by quadrature", kGaSuccessMean,
-      kGaMaxIterations, options.sigma_tolerance,
-      stability_limited ? "; threshold = stability limit" : "");
-  return result;
+  return ThresholdByBisection(
+      distribution, rate, options.sigma_tolerance, DeMethod::kGaussianApproximation,
+      Format("Gaussian approximation of sum-product density evolution (Chung, Richardson, Urbanke "
+             "2001), phi %s; decodes when the mean check-to-variable LLR reaches %g within %d "
+             "iterations",
+             options.closed_form_phi ? "by the paper's closed-form fit" : "by quadrature",
+             kGaSuccessMean, kGaMaxIterations),
+      decodes);
 }
 
 Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution, double rate,
@@ -946,22 +953,14 @@ Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution,
                fft_points, kMaxFftPoints));
   }
   QuantizedDensityEvolution de(distribution, options);
-  bool stability_limited = false;
-  Result<double> sigma = BisectThreshold(
-      distribution, options.sigma_tolerance, [&](double s) { return de.Decodes(s); },
-      &stability_limited);
-  if (!sigma.ok()) return sigma.status();
-  ThresholdResult result;
-  result.sigma = sigma.value();
-  result.ebno_db = EbnoDb(rate, result.sigma);
-  result.method = DeMethod::kQuantized;
-  result.description = Format(
-      "quantized sum-product density evolution (Richardson, Shokrollahi, Urbanke 2001; Chung, "
-      "Forney, Richardson, Urbanke 2001): LLR step %g, range +-%g, message error probability "
-      "<= %g within %d iterations; bisection on sigma to %g%s",
-      options.llr_step, options.llr_max, options.target_error_probability, options.max_iterations,
-      options.sigma_tolerance, stability_limited ? "; threshold = stability limit" : "");
-  return result;
+  return ThresholdByBisection(
+      distribution, rate, options.sigma_tolerance, DeMethod::kQuantized,
+      Format("quantized sum-product density evolution (Richardson, Shokrollahi, Urbanke 2001; "
+             "Chung, Forney, Richardson, Urbanke 2001): LLR step %g, range +-%g, message error "
+             "probability <= %g within %d iterations",
+             options.llr_step, options.llr_max, options.target_error_probability,
+             options.max_iterations),
+      [&](double s) { return de.Decodes(s); });
 }
 
 }  // namespace capgap::analysis

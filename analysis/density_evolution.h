@@ -4,7 +4,7 @@
 // length, cycle-free ensemble goes to zero. The LDPC scheme results quote the
 // threshold beside the capacity limit of the rate (capacity.h).
 //
-// Conventions (FIELD_NOTES sections 1-2): BPSK 0 -> +1, 1 -> -1, noise
+// Conventions (DEVELOPERS.md, Conventions): BPSK 0 -> +1, 1 -> -1, noise
 // variance sigma^2 per real dimension; LLR = ln P(b=0|y)/P(b=1|y) = 2y/sigma^2,
 // LLR > 0 favours bit 0. By channel and decoder symmetry the all-zero codeword
 // is analysed, so the channel LLR is Gaussian with mean 2/sigma^2 and variance

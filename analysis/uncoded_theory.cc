@@ -30,6 +30,7 @@
 #include <numbers>
 #include <vector>
 
+#include "analysis/bisection.h"
 #include "blocks/core/energy.h"
 
 namespace capgap::analysis {
@@ -251,15 +252,9 @@ double UncodedEbn0DbAtBer(const Modulation& modulation, double ber) {
     hi += 10.0;
     if (hi > kHighestDb) return kNaN;
   }
-  while (hi - lo > 1e-6) {
-    const double mid = 0.5 * (lo + hi);
-    if (UncodedBer(modulation, mid) > ber) {
-      lo = mid;
-    } else {
-      hi = mid;
-    }
-  }
-  return 0.5 * (lo + hi);
+  const Bracket b =
+      Bisect(lo, hi, 1e-6, [&](double ebn0_db) { return UncodedBer(modulation, ebn0_db) > ber; });
+  return 0.5 * (b.lo + b.hi);
 }
 
 }  // namespace capgap::analysis

@@ -28,6 +28,7 @@ shift
 capgap="${CAPGAP:-build/capgap}"
 output="${OUTPUT:-results/$(basename "${config%.*}").h5}"
 threads="${SLURM_CPUS_PER_TASK:-0}"
+mkdir -p "$(dirname "$output")"  # capgap wants the directory of -o to exist
 
 echo "capgap job ${SLURM_JOB_ID:-?} attempt ${SLURM_RESTART_COUNT:-0} on ${SLURM_JOB_NODELIST:-?}"
 

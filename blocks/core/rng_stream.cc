@@ -1,6 +1,8 @@
 // Philox4x32-10 scalar reference and key derivation.
 #include "blocks/core/rng_stream.h"
 
+#include "blocks/core/hash.h"
+
 namespace capgap {
 namespace {
 
@@ -8,13 +10,6 @@ constexpr std::uint32_t kPhiloxM0 = 0xD2511F53u;
 constexpr std::uint32_t kPhiloxM1 = 0xCD9E8D57u;
 constexpr std::uint32_t kPhiloxW0 = 0x9E3779B9u;  // golden ratio
 constexpr std::uint32_t kPhiloxW1 = 0xBB67AE85u;  // sqrt(3) - 1
-
-std::uint64_t SplitMix64(std::uint64_t x) {
-  x += 0x9E3779B97F4A7C15ull;
-  x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9ull;
-  x = (x ^ (x >> 27)) * 0x94D049BB133111EBull;
-  return x ^ (x >> 31);
-}
 
 }  // namespace
 
@@ -39,12 +34,7 @@ PhiloxBlock Philox4x32_10(const PhiloxCounter& counter, PhiloxKey key) {
 }
 
 PhiloxKey DeriveKey(std::uint64_t seed, std::string_view scheme_name) {
-  std::uint64_t h = 0xCBF29CE484222325ull;  // FNV-1a 64-bit offset basis
-  for (char ch : scheme_name) {
-    h ^= static_cast<unsigned char>(ch);
-    h *= 0x100000001B3ull;  // FNV-1a 64-bit prime
-  }
-  const std::uint64_t k = SplitMix64(SplitMix64(seed) ^ h);
+  const std::uint64_t k = SplitMix64(SplitMix64(seed) ^ Fnv1a64(scheme_name));
   return PhiloxKey{static_cast<std::uint32_t>(k), static_cast<std::uint32_t>(k >> 32)};
 }
 

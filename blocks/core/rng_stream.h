@@ -35,12 +35,28 @@ PhiloxBlock Philox4x32_10(const PhiloxCounter& counter, PhiloxKey key);
 // FNV-1a hash of the name. Distinct schemes get unrelated streams.
 PhiloxKey DeriveKey(std::uint64_t seed, std::string_view scheme_name);
 
+// Counter word c1: what a stream's numbers are for. The values are part of
+// every recorded count (changing one changes every curve): never renumber an
+// existing value, only add new ones with values not used before.
 enum class Substream : std::uint32_t {
   kBits = 0,      // information bits of the bit source
   kNoise = 1,     // channel noise
-  kChannel = 2,   // channel state (fading, phase), reserved for later parts
+  kChannel = 2,   // guard symbols that prime a shaped chain's filters, and the
+                  // random symbols of the reserved-point displays below
   kCode = 3,      // anything a code needs at run time (e.g. interleavers)
+  kFading = 4,    // channel processes (fading gains, phase noise): the
+                  // process stream of blocks/channel/channel.h
 };
+
+// Reserved sweep-point indices (counter word c3). Streams drawn outside the
+// counted sweep (displays and analysis written beside the curves) use these
+// point indices, which no sweep reaches (a sweep has far fewer points), so
+// they never share numbers with a counted work unit.
+inline constexpr std::uint32_t kSpectrumPointIndex = 0xFFFFFFFFu;  // Welch PSD of a scheme
+inline constexpr std::uint32_t kDisplayPointIndex = 0xFFFFFFFEu;   // demapper-input capture
+inline constexpr std::uint32_t kEyePointIndex = 0xFFFFFFFDu;       // noise-free eye diagram
+// Every point index from here up is reserved; a sweep must stay below it.
+inline constexpr std::uint32_t kFirstReservedPointIndex = 0xFFFFFFF0u;
 
 class RngStream {
  public:

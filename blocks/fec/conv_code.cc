@@ -10,14 +10,10 @@
 #include <string>
 #include <vector>
 
+#include "blocks/core/text.h"
+
 namespace capgap {
 namespace {
-
-std::string_view Trim(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
-  return s;
-}
 
 std::vector<std::string_view> SplitComma(std::string_view text) {
   std::vector<std::string_view> words;
@@ -25,10 +21,10 @@ std::vector<std::string_view> SplitComma(std::string_view text) {
   while (true) {
     const std::size_t comma = text.find(',', start);
     if (comma == std::string_view::npos) {
-      words.push_back(Trim(text.substr(start)));
+      words.push_back(TrimBlanks(text.substr(start)));
       break;
     }
-    words.push_back(Trim(text.substr(start, comma - start)));
+    words.push_back(TrimBlanks(text.substr(start, comma - start)));
     start = comma + 1;
   }
   return words;

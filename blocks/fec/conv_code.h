@@ -25,7 +25,7 @@
 // of the common period P, e.g. "110,101" (IEEE Std 802.11a-1999, s17.3.5.6,
 // rate 3/4; from memory) or "11,10" (rate 2/3).
 //
-// Effective rate (FIELD_NOTES s1): EffectiveRate(L) = L / CodedLength(L): the
+// Effective rate (DEVELOPERS.md, Conventions): EffectiveRate(L) = L / CodedLength(L): the
 // tail of a terminated code and puncturing are both included.
 //
 // Create() rejects catastrophic codes (also those made catastrophic by the

@@ -10,6 +10,8 @@
 #include <numeric>
 #include <system_error>
 
+#include "blocks/core/hash.h"
+#include "blocks/core/text.h"
 #include "blocks/fec/ldpc_matrix_file.h"
 
 namespace capgap {
@@ -17,44 +19,6 @@ namespace {
 
 using Index = std::size_t;
 Index U(int i) { return static_cast<Index>(i); }
-
-// splitmix64 (G. L. Steele, D. Lea, C. H. Flood, "Fast splittable
-// pseudorandom number generators", OOPSLA 2014; constants as in S. Vigna's
-// public-domain splitmix64.c, from memory). Local, seeded, portable.
-class SplitMix64 {
- public:
-  explicit SplitMix64(std::uint64_t seed) : state_(seed) {}
-  std::uint64_t Next() {
-    std::uint64_t z = (state_ += 0x9E3779B97F4A7C15ull);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-    return z ^ (z >> 31);
-  }
-  // Uniform in [0, bound) by multiply-shift of the top 32 bits (bias below
-  // bound / 2^32, irrelevant for tie breaking). REQUIRES 0 < bound < 2^32.
-  int Below(int bound) {
-    const std::uint64_t hi = Next() >> 32;
-    return static_cast<int>((hi * static_cast<std::uint64_t>(bound)) >> 32);
-  }
-
- private:
-  std::uint64_t state_;
-};
-
-std::string_view TrimSpaces(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
-  return s;
-}
-
-std::string Quoted(std::string_view w) {
-  std::string s;
-  s.reserve(w.size() + 2);
-  s += '\'';
-  s.append(w);
-  s += '\'';
-  return s;
-}
 
 std::string JoinCounts(const std::vector<int>& by_degree) {
   std::string s;
@@ -251,7 +215,7 @@ std::string VariableDegrees::ToString() const {
 
 Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
   const std::string ctx = "degrees " + Quoted(text) + ": ";
-  const std::string_view all = TrimSpaces(text);
+  const std::string_view all = TrimBlanks(text);
   if (all.empty()) {
     return Status::Error(ctx +
                          "empty; expected a degree such as '3' or degree:fraction words "
@@ -260,7 +224,7 @@ Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
   std::vector<std::string_view> words;
   for (std::size_t pos = 0;;) {
     const std::size_t comma = all.find(',', pos);
-    words.push_back(TrimSpaces(
+    words.push_back(TrimBlanks(
         all.substr(pos, comma == std::string_view::npos ? std::string_view::npos : comma - pos)));
     if (comma == std::string_view::npos) break;
     pos = comma + 1;
@@ -293,8 +257,8 @@ Result<VariableDegrees> ParseVariableDegrees(std::string_view text) {
       return Status::Error(ctx + "word " + Quoted(w) +
                            ": expected degree:fraction (only a lone degree may omit the fraction)");
     }
-    const std::string_view dtext = TrimSpaces(w.substr(0, colon));
-    const std::string_view ftext = TrimSpaces(w.substr(colon + 1));
+    const std::string_view dtext = TrimBlanks(w.substr(0, colon));
+    const std::string_view ftext = TrimBlanks(w.substr(colon + 1));
     int d = 0;
     Status s = parse_degree(w, dtext, &d);
     if (!s.ok()) return s;
@@ -402,7 +366,7 @@ Result<LdpcCode> BuildPegCode(const PegSpec& spec) {
   std::vector<int> order, level_start, ties;
   order.reserve(U(m));
   ties.reserve(U(m));
-  SplitMix64 rng(spec.seed);
+  SplitMix64Generator rng(spec.seed);
   int stamp = 0;
   int best = INT_MAX;
   auto consider = [&](int c) {
@@ -705,7 +669,7 @@ Result<BaseMatrix> DesignDualDiagonalBaseMatrix(const DualDiagonalDesign& design
   if (design.shift_a < 0 || design.shift_b < 0) {
     return Status::Error(ctx + "parity shifts must be >= 0");
   }
-  SplitMix64 rng(design.seed);
+  SplitMix64Generator rng(design.seed);
   std::vector<int> a(U(rr) * U(cc), -1);  // assigned shifts, -1 = none (yet)
   auto at = [&](int r, int c) -> int& { return a[U(r) * U(cc) + U(c)]; };
   std::vector<std::uint8_t> forbidden(U(z));

@@ -22,7 +22,8 @@
 // unreached checks) or the next level reaches every check (candidates: the
 // checks first reached on that last level, i.e. those at maximum distance).
 // Among the candidates the one of lowest current degree is taken; ties are
-// broken uniformly by a splitmix64 generator seeded with PegSpec::seed (a
+// broken uniformly by a SplitMix64 generator (blocks/core/hash.h) seeded with
+// PegSpec::seed (a
 // local generator: same spec, same code on every machine).
 // Degree balancing (capgap's addition, PegSpec::balance_check_degrees, on
 // by default): the paper's rule alone leaves check degrees spread by a few

@@ -44,32 +44,12 @@
 //    i.e. alpha to 1/256, round half up (0.75: (3x + 2) >> 2). Offset:
 //    M(x) = max(x - round(steps beta), 0), beta in LLR units (0.5: 2 int8
 //    steps, exact).
-//    Chosen by measurement (throwaway runs, PEG (2016, 1008) (3,6) code,
-//    layered, 4000 frames per point, the same noise for every variant, 50
-//    iterations with early stop and 10 without): 2 steps per LLR lost about
-//    0.1 dB (alpha x rounded on small integers), 3 lost with offset min-sum
-//    (beta = 0.5 becomes 2/3), 4 matched float within the statistics at
-//    1.5-2.25 dB; a channel clip of 15 (3.75 LLR) with messages to 37 lost
-//    FER in the waterfall (2370 against 1740 frame errors in 10240 at
-//    1.5 dB). An earlier design with channel and messages clipped at +-63
-//    (8-bit posteriors saturating) matched float with early stop but
-//    destroyed frames when iterations continued past convergence (FER 0.85
-//    at 2.0 dB with 10 fixed iterations against 0.025 in float).
-//    Result (10240 frames per point, same noise, random codewords): int8
-//    against float, normalised min-sum layered, 50 iterations with early
-//    stop, FER 0.1686 / 0.1704 at 1.5 dB, 0.0247 / 0.0246 at 1.75 dB,
-//    0.0027 / 0.0029 at 2.0 dB; 10 iterations without early stop 0.4965 /
-//    0.4910, 0.1581 / 0.1566, 0.0241 / 0.0232; offset min-sum (early stop)
-//    0.1828 / 0.1760, 0.0252 / 0.0239, 0.0022 / 0.0021. Interpolated on
-//    log FER the int8 curves sit within 0.01 dB of float.
+//    Chosen by measurement: 4 steps per LLR is the coarsest that matched
+//    float (int8 curves within 0.01 dB of float in the waterfall).
 //    Error floor: int8 messages stop at 8 LLR, which can hold a decoder in
-//    a trapping set that float escapes. On a random (3,6) code of length
-//    1008 (the one of tests/blocks/fec/ldpc_decoder_test.cc), 50000 frames
-//    at 3.0 dB: int8 layered 2 frame errors, float and int16 0 (normalised;
-//    offset 1 each for float and int16: a frame every decoder fails); at
-//    4.0 dB, 100000 frames: int8 offset min-sum 1, everything else 0. On the
-//    PEG code int8 had no frame error in 100000 frames at 2.75 or 3.0 dB.
-//    For error-floor studies (FER below ~1e-4) choose int16 or float.
+//    a trapping set that float escapes. For error-floor studies (FER below
+//    ~1e-4) choose int16 or float. The measurements behind both:
+//    docs/performance_notes.md, "LDPC decoder arithmetic".
 //  * float: the scalar one-frame float references of ldpc_reference.h; the
 //    only arithmetic of sum-product (tanh rule in double with clipping to
 //    +-30, see there).

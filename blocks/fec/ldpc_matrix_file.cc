@@ -7,28 +7,20 @@
 #include <sstream>
 #include <system_error>
 
+#include "blocks/core/text.h"
+
 namespace capgap {
 namespace {
 
-bool IsSpace(char c) { return c == ' ' || c == '\t' || c == '\r'; }
+// Word separators of the LDPC text formats: blanks and a stray CR.
+constexpr std::string_view kSpaces = " \t\r";
 
-std::string_view Trim(std::string_view s) {
-  while (!s.empty() && IsSpace(s.front())) s.remove_prefix(1);
-  while (!s.empty() && IsSpace(s.back())) s.remove_suffix(1);
-  return s;
-}
+bool IsSpace(char c) { return kSpaces.find(c) != std::string_view::npos; }
+
+std::string_view Trim(std::string_view s) { return TrimBlanks(s, kSpaces); }
 
 std::string Where(std::string_view source, int line) {
   return std::string(source) + ":" + std::to_string(line) + ": ";
-}
-
-std::string Quoted(std::string_view w) {
-  std::string s;
-  s.reserve(w.size() + 2);
-  s += '\'';
-  s.append(w);
-  s += '\'';
-  return s;
 }
 
 }  // namespace

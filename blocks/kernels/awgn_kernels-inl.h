@@ -46,20 +46,13 @@
 // long chain (polynomial, square root). The main loop therefore does two
 // batches per iteration (kNoiseUnroll) and issues them interleaved: the four
 // Philox state vectors round by round (eight independent multiply chains),
-// then each Box-Muller stage for both batches in turn. Measured on this
-// machine (AMD Zen 4, AVX3 target) the interleaving raised throughput from
-// ~0.73 to ~1.04 Gsample/s against the same two batches issued one after the
-// other. The four state vectors take 16 registers, so the AVX2/SSE4 targets
-// (16 registers) spill a little; a one-batch variant for them that does not
-// spill measured ~10% slower on AVX2, so all targets share this loop.
-// Also measured slower on AVX3 (same machine, bit-identical
-// variants): issuing the next iteration's Philox before this one's Box-Muller
-// (software pipelining, -10%) and four batches per iteration (-7%); both
-// spill. The loop is bound by vector-pipe throughput rather than latency:
-// ~390 vector instructions per 64 samples, ~60% of them Philox (per 8 blocks
-// 18 multiplies, 18 shifts and 19 xors, the minimum for this layout; a 32-bit
-// lane layout needs as many), so cutting single instructions from Box-Muller
-// gains ~0.6% each.
+// then each Box-Muller stage for both batches in turn. The four state
+// vectors take 16 registers, so the AVX2/SSE4 targets (16 registers) spill a
+// little; a one-batch variant for them measured slower, so all targets share
+// this loop. The loop is bound by vector-pipe throughput rather than latency,
+// ~60% of its instructions Philox (per 8 blocks 18 multiplies, 18 shifts and
+// 19 xors, the minimum for this layout). Measurements of this loop and of the
+// variants tried: docs/performance_notes.md, "Gaussian noise kernel".
 //
 // Approximations (float; bounds of the polynomials in exact arithmetic with
 // the float coefficients below, measured on a 2e6-point grid with numpy;

@@ -27,9 +27,9 @@
 //    words, bit i = (words[i / 32] >> (i % 32)) & 1: the Lanes(float) <= 32
 //    bits of a vector lie in one word (vectors start at multiples of
 //    Lanes(float), a power of two), which is broadcast and tested against
-//    each lane's bit (1 << lane). Against GenerateRandomBits (a scalar
-//    Philox per block plus one byte per bit) this takes ~10% off the chain's
-//    time on AVX3.
+//    each lane's bit (1 << lane). Faster than GenerateRandomBits (a scalar
+//    Philox per block plus one byte per bit): docs/performance_notes.md,
+//    "Fused BPSK chain".
 
 // Per-target include guard (Highway's toggle idiom).
 #if defined(CAPGAP_BLOCKS_KERNELS_BPSK_KERNELS_INL_H_) == defined(HWY_TARGET_TOGGLE)

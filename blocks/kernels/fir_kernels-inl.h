@@ -59,7 +59,8 @@
 // most F-float loads split a cache line. Where the registers allow (AVX-512:
 // S = 4, 8, 16; AVX2: S = 4), DecimateBlockRotating loads each input vector
 // of a block once and shifts it through a register window (see there), which
-// roughly halves the time per sample (measured table at Decimate()).
+// roughly halves the time per sample (docs/performance_notes.md, "FIR
+// decimator kernel").
 //
 // Accumulators. A multiply-add has a latency of ~4 cycles and x86 cores issue
 // 1-2 per cycle, so 8 independent accumulator chains are kept in flight in
@@ -455,12 +456,9 @@ inline void BuildDecimatorTable(FirDecimatorPlan& plan) {
 inline void Decimate(const FirDecimatorPlan& plan, const cf32* in, std::size_t n_out, cf32* out) {
   const auto s = static_cast<std::size_t>(plan.factor);
   const std::size_t m = plan.outputs_per_vector;
-  // The rotating blocks where they fit the registers and pay, measured on
-  // Zen 4 (ns per input sample, L = 10 S + 1, rotating vs DecimateBlock over
-  // input alignments): AVX-512 S = 4 0.40 vs 0.59-0.77, S = 8 0.38-0.46 vs
-  // 0.52, S = 16 0.36 vs 0.49; AVX2 S = 4 0.48 vs 0.51-0.85 (17 registers:
-  // one spills, still faster). Not for S = 2 (m = 4 window sets: AVX-512 1.07
-  // vs 0.63, AVX2 0.98 vs 0.69).
+  // The rotating blocks where they fit the registers and pay (AVX-512 S = 4,
+  // 8, 16; AVX2 S = 4); not for S = 2, where they measured slower
+  // (docs/performance_notes.md, "FIR decimator kernel").
   if constexpr (kFloats == 16) {
     if (m == 2) return DecimateU<4, 2, 2>(plan, in, n_out, out);           // S = 4
     if (m == 1 && s == 8) return DecimateU<8, 1, 1>(plan, in, n_out, out);   // slot = output

@@ -25,26 +25,20 @@
 // alpha = 1 - 2^-k (0.75 among them) as shifts instead of a widening
 // multiply (measured: the multiply took about a third of the pass). The
 // range rule of ldpc_kernels.h keeps every sum inside the lane type, so
-// plain adds and subtracts are exact; nothing is clamped.
-// Measured on this machine (AMD EPYC, AVX3, one core, tests/bench/
-// ldpc_bench.cc): about 59% of a 10-iteration decode is the check pass
-// (about 2.8 ns per edge and iteration for 64 frames), the rest is loading
-// (quantise, transpose), the syndrome and handing results out.
+// plain adds and subtracts are exact; nothing is clamped. The check pass is
+// most of a decode (docs/performance_notes.md, "LDPC min-sum kernel").
 //
 // Streaming. A call takes any number of frames. Each lane holds one frame and
 // counts its own iterations; after every iteration the syndrome is checked
 // (early stop) and each lane whose frame stops (zero syndrome, or
 // max_iterations) hands out its decisions and result at once. Idle lanes are
 // refilled with the next frames once an eighth of the lanes are idle (a
-// refill costs a blend over all rows of q, P and c; measured at 1.5 and 2.0
-// dB, waiting for an eighth was as fast as or faster than a quarter or a
-// half) or when all are; until then they compute on, unobserved. A frame's
+// refill costs a blend over all rows of q, P and c; an eighth measured best)
+// or when all are; until then they compute on, unobserved. A frame's
 // arithmetic never depends on its lane, its neighbours or when it was loaded,
-// so each result is the one the oracle gets for that frame alone. Compared
-// with batches that wait for their slowest frame (an earlier design) this
-// raised the early-stop throughput at 1.5 dB (FER 0.14, where nearly every
-// batch of 64 holds a frame running all 50 iterations) from 35 to about 75
-// Mbit/s.
+// so each result is the one the oracle gets for that frame alone. It
+// replaced batches that wait for their slowest frame (throughput figures in
+// docs/performance_notes.md, "LDPC min-sum kernel").
 //
 // In and out: each frame's LLRs are quantised contiguously (float lanes,
 // demoted to T) into a frame-major block, which a tiled transpose (16 x 16

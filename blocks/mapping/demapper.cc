@@ -115,7 +115,7 @@ void Demapper::Demap(std::span<const cf32> received, const ChannelStateView& sta
                      std::span<float> llrs) const {
   CAPGAP_DCHECK(state.gain.empty() || state.gain.size() == received.size());
   CAPGAP_DCHECK(state.n0.empty() || state.n0.size() == received.size());
-  if (state.gain.empty() && state.n0.empty()) {
+  if (state.uniform()) {
     Demap(received, state.n0_uniform, llrs);
     return;
   }

@@ -6,7 +6,7 @@
 // computed from Re y only. The hard decision of an LLR is 1 when L < 0, else 0.
 // With complex noise variance n0 (N0) the exact LLR is
 //   ln sum_{x: b=0} exp(-|y-x|^2/N0) - ln sum_{x: b=1} exp(-|y-x|^2/N0);
-// max-log keeps the largest term of each sum (common practice).
+// max-log keeps the largest term of each sum (common practice; DEVELOPERS.md, Conventions).
 // Paths:
 //  * BPSK, QPSK: the exact LLR is linear (L = 4 Re y / N0; QPSK
 //    L(b0) = 2 sqrt2 Im y / N0, L(b1) = 2 sqrt2 Re y / N0), so kMaxLog and

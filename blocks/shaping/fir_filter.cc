@@ -11,8 +11,8 @@
 
 namespace capgap {
 
-// Crossover of kAuto at S = 4 and the rule for every S: see the measured
-// table in fir_filter.h.
+// Crossover of kAuto at S = 4 and the rule for every S: fir_filter.h; the
+// measurements behind it: docs/performance_notes.md.
 const int kFftMinTapsPerPhase = 161;
 
 int FftMinTapsPerPhase(int factor, bool decimating) {
@@ -67,8 +67,12 @@ FirMethod Resolve(FirMethod method, std::size_t taps, int factor, bool decimatin
 // Plans and the filter's spectrum H[k] / N (the 1/N of the inverse FFT folded
 // in). Immutable after construction; shared by copies of a filter.
 struct FftKernel {
-  explicit FftKernel(std::span<const float> taps)
-      : n(static_cast<int>(std::bit_ceil(4 * taps.size()))),
+  // N = bit_ceil(4 L), or larger when that leaves fewer than S new samples
+  // per block (few taps at a large factor): every block then holds at least
+  // one whole symbol period.
+  FftKernel(std::span<const float> taps, int factor)
+      : n(static_cast<int>(std::bit_ceil(
+            std::max(4 * taps.size(), taps.size() - 1 + static_cast<std::size_t>(factor))))),
         block(static_cast<std::size_t>(n) - taps.size() + 1),
         plans(n),
         spectrum(MakeFftwBuffer(static_cast<std::size_t>(n))) {
@@ -109,34 +113,82 @@ void FirWorkspace::Reset() {
   std::fill(line_.begin(), line_.end(), cf32(0.0f, 0.0f));
 }
 
+// ------------------------------------------------------------ shared set-up
+
+Status StreamingFir::Init(std::span<const float> taps, int factor, FirMethod method,
+                          bool decimating, const char* who) {
+  if (Status s = ValidateTaps(taps, factor, who); !s.ok()) return s;
+  factor_ = factor;
+  method_ = Resolve(method, taps.size(), factor, decimating);
+  taps_.assign(taps.begin(), taps.end());
+  if (method_ == FirMethod::kFft) fft_ = std::make_shared<const FftKernel>(taps, factor);
+  return Status::Ok();
+}
+
+int StreamingFir::fft_size() const { return fft_ ? fft_->n : 0; }
+
+FirWorkspace StreamingFir::MakeDirectWorkspace(std::size_t history, std::size_t line_size) const {
+  FirWorkspace ws;
+  ws.history_ = history;
+  ws.line_.assign(line_size, cf32(0.0f, 0.0f));
+  return ws;
+}
+
+FirWorkspace StreamingFir::MakeFftWorkspace() const {
+  FirWorkspace ws;
+  ws.history_ = taps_.size() - 1;
+  ws.line_.assign(ws.history_, cf32(0.0f, 0.0f));
+  ws.time_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
+  ws.freq_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
+  return ws;
+}
+
+// One transform per chunk: [history | chunk's inputs, zero padded] forward,
+// the last H inputs kept as the next history, times the spectrum, inverse;
+// outputs from index H on are the chunk's (the first H are wrapped around).
+template <typename Fill, typename Drain>
+void StreamingFir::OverlapSave(std::size_t symbols, FirWorkspace& ws, Fill&& fill,
+                               Drain&& drain) const {
+  const FftKernel& k = *fft_;
+  const std::size_t s = static_cast<std::size_t>(factor_);
+  const std::size_t n = static_cast<std::size_t>(k.n);
+  const std::size_t h = ws.history_;
+  const std::size_t chunk_symbols = k.block / s;  // >= 1 since B >= S
+  fftwf_complex* time = ws.time_.get();
+  fftwf_complex* freq = ws.freq_.get();
+  for (std::size_t c0 = 0; c0 < symbols; c0 += chunk_symbols) {
+    const std::size_t cs = std::min(chunk_symbols, symbols - c0);
+    const std::size_t samples = cs * s;
+    for (std::size_t i = 0; i < h; ++i) {
+      time[i][0] = ws.line_[i].real();
+      time[i][1] = ws.line_[i].imag();
+    }
+    fill(time + h, n - h, c0, cs);
+    k.plans.Forward(time, freq);
+    for (std::size_t i = 0; i < h; ++i) ws.line_[i] = cf32(time[samples + i][0], time[samples + i][1]);
+    k.MultiplySpectrum(freq);
+    k.plans.Backward(freq, time);
+    drain(static_cast<const fftwf_complex*>(time + h), c0, cs);
+  }
+}
+
 // ---------------------------------------------------------------- interpolating
 
 Result<InterpolatingFir> InterpolatingFir::Create(std::span<const float> taps, int factor,
                                                   FirMethod method) {
-  if (Status s = ValidateTaps(taps, factor, "interpolating filter"); !s.ok()) return s;
   InterpolatingFir f;
-  f.factor_ = factor;
-  f.method_ = Resolve(method, taps.size(), factor, /*decimating=*/false);
-  f.taps_.assign(taps.begin(), taps.end());
+  if (Status s = f.Init(taps, factor, method, /*decimating=*/false, "interpolating filter");
+      !s.ok()) {
+    return s;
+  }
   if (f.method_ == FirMethod::kDirect) f.direct_ = MakeFirInterpolatorPlan(taps, factor);
-  if (f.method_ == FirMethod::kFft) f.fft_ = std::make_shared<const FftKernel>(taps);
   return f;
 }
 
-int InterpolatingFir::fft_size() const { return fft_ ? fft_->n : 0; }
-
 FirWorkspace InterpolatingFir::MakeWorkspace() const {
-  FirWorkspace ws;
-  if (method_ == FirMethod::kDirect) {
-    ws.history_ = direct_.history();
-    ws.line_.assign(ws.history_ + kDirectChunkSymbols + direct_.lookahead(), cf32(0.0f, 0.0f));
-  } else {
-    ws.history_ = taps_.size() - 1;
-    ws.line_.assign(ws.history_, cf32(0.0f, 0.0f));
-    ws.time_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
-    ws.freq_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
-  }
-  return ws;
+  if (method_ != FirMethod::kDirect) return MakeFftWorkspace();
+  return MakeDirectWorkspace(direct_.history(),
+                             direct_.history() + kDirectChunkSymbols + direct_.lookahead());
 }
 
 void InterpolatingFir::Process(std::span<const cf32> in, std::span<cf32> out,
@@ -169,64 +221,41 @@ void InterpolatingFir::ProcessDirect(std::span<const cf32> in, std::span<cf32> o
   }
 }
 
+// Inputs: the chunk's symbols at every S-th position, zeros between and after.
 void InterpolatingFir::ProcessFft(std::span<const cf32> in, std::span<cf32> out,
                                   FirWorkspace& ws) const {
-  const FftKernel& k = *fft_;
   const std::size_t s = static_cast<std::size_t>(factor_);
-  const std::size_t n = static_cast<std::size_t>(k.n);
-  const std::size_t h = ws.history_;
-  const std::size_t chunk_symbols = k.block / s;  // >= 1 since B >= 3 L > S
-  fftwf_complex* time = ws.time_.get();
-  fftwf_complex* freq = ws.freq_.get();
-  for (std::size_t c0 = 0; c0 < in.size(); c0 += chunk_symbols) {
-    const std::size_t cs = std::min(chunk_symbols, in.size() - c0);
-    const std::size_t samples = cs * s;
-    for (std::size_t i = 0; i < h; ++i) {
-      time[i][0] = ws.line_[i].real();
-      time[i][1] = ws.line_[i].imag();
-    }
-    std::memset(time + h, 0, (n - h) * sizeof(fftwf_complex));
-    for (std::size_t j = 0; j < cs; ++j) {
-      time[h + j * s][0] = in[c0 + j].real();
-      time[h + j * s][1] = in[c0 + j].imag();
-    }
-    k.plans.Forward(time, freq);
-    for (std::size_t i = 0; i < h; ++i) ws.line_[i] = cf32(time[samples + i][0], time[samples + i][1]);
-    k.MultiplySpectrum(freq);
-    k.plans.Backward(freq, time);
-    cf32* o = out.data() + c0 * s;
-    for (std::size_t i = 0; i < samples; ++i) o[i] = cf32(time[h + i][0], time[h + i][1]);
-  }
+  OverlapSave(
+      in.size(), ws,
+      [&](fftwf_complex* t, std::size_t count, std::size_t c0, std::size_t cs) {
+        std::memset(t, 0, count * sizeof(fftwf_complex));
+        for (std::size_t j = 0; j < cs; ++j) {
+          t[j * s][0] = in[c0 + j].real();
+          t[j * s][1] = in[c0 + j].imag();
+        }
+      },
+      [&](const fftwf_complex* t, std::size_t c0, std::size_t cs) {
+        cf32* o = out.data() + c0 * s;
+        for (std::size_t i = 0; i < cs * s; ++i) o[i] = cf32(t[i][0], t[i][1]);
+      });
 }
 
 // ------------------------------------------------------------------ decimating
 
 Result<DecimatingFir> DecimatingFir::Create(std::span<const float> taps, int factor,
                                             FirMethod method) {
-  if (Status s = ValidateTaps(taps, factor, "decimating filter"); !s.ok()) return s;
   DecimatingFir f;
-  f.factor_ = factor;
-  f.method_ = Resolve(method, taps.size(), factor, /*decimating=*/true);
-  f.taps_.assign(taps.begin(), taps.end());
+  if (Status s = f.Init(taps, factor, method, /*decimating=*/true, "decimating filter");
+      !s.ok()) {
+    return s;
+  }
   if (f.method_ == FirMethod::kDirect) f.direct_ = MakeFirDecimatorPlan(taps, factor);
-  if (f.method_ == FirMethod::kFft) f.fft_ = std::make_shared<const FftKernel>(taps);
   return f;
 }
 
-int DecimatingFir::fft_size() const { return fft_ ? fft_->n : 0; }
-
 FirWorkspace DecimatingFir::MakeWorkspace() const {
-  FirWorkspace ws;
-  if (method_ == FirMethod::kDirect) {
-    ws.history_ = direct_.history();
-    ws.line_.assign(DirectLineSize(direct_), cf32(0.0f, 0.0f));
-  } else {
-    ws.history_ = taps_.size() - 1;
-    ws.line_.assign(ws.history_, cf32(0.0f, 0.0f));
-    ws.time_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
-    ws.freq_ = MakeFftwBuffer(static_cast<std::size_t>(fft_->n));
-  }
-  return ws;
+  if (method_ != FirMethod::kDirect) return MakeFftWorkspace();
+  return MakeDirectWorkspace(direct_.history(), DirectLineSize(direct_));
 }
 
 void DecimatingFir::Process(std::span<const cf32> in, std::span<cf32> out,
@@ -276,36 +305,24 @@ void DecimatingFir::ProcessDirect(std::span<const cf32> in, std::span<cf32> out,
   }
 }
 
+// Inputs: the chunk's samples, zeros after; outputs: every S-th sample.
 void DecimatingFir::ProcessFft(std::span<const cf32> in, std::span<cf32> out,
                                FirWorkspace& ws) const {
-  const FftKernel& k = *fft_;
   const std::size_t s = static_cast<std::size_t>(factor_);
-  const std::size_t n = static_cast<std::size_t>(k.n);
-  const std::size_t h = ws.history_;
-  const std::size_t chunk_symbols = k.block / s;
-  fftwf_complex* time = ws.time_.get();
-  fftwf_complex* freq = ws.freq_.get();
-  for (std::size_t c0 = 0; c0 < out.size(); c0 += chunk_symbols) {
-    const std::size_t cs = std::min(chunk_symbols, out.size() - c0);
-    const std::size_t samples = cs * s;
-    for (std::size_t i = 0; i < h; ++i) {
-      time[i][0] = ws.line_[i].real();
-      time[i][1] = ws.line_[i].imag();
-    }
-    const cf32* src = in.data() + c0 * s;
-    for (std::size_t i = 0; i < samples; ++i) {
-      time[h + i][0] = src[i].real();
-      time[h + i][1] = src[i].imag();
-    }
-    std::memset(time + h + samples, 0, (n - h - samples) * sizeof(fftwf_complex));
-    k.plans.Forward(time, freq);
-    for (std::size_t i = 0; i < h; ++i) ws.line_[i] = cf32(time[samples + i][0], time[samples + i][1]);
-    k.MultiplySpectrum(freq);
-    k.plans.Backward(freq, time);
-    for (std::size_t j = 0; j < cs; ++j) {
-      out[c0 + j] = cf32(time[h + j * s][0], time[h + j * s][1]);
-    }
-  }
+  OverlapSave(
+      out.size(), ws,
+      [&](fftwf_complex* t, std::size_t count, std::size_t c0, std::size_t cs) {
+        const std::size_t samples = cs * s;
+        const cf32* src = in.data() + c0 * s;
+        for (std::size_t i = 0; i < samples; ++i) {
+          t[i][0] = src[i].real();
+          t[i][1] = src[i].imag();
+        }
+        std::memset(t + samples, 0, (count - samples) * sizeof(fftwf_complex));
+      },
+      [&](const fftwf_complex* t, std::size_t c0, std::size_t cs) {
+        for (std::size_t j = 0; j < cs; ++j) out[c0 + j] = cf32(t[j * s][0], t[j * s][1]);
+      });
 }
 
 // ------------------------------------------------------- transmitter / receiver

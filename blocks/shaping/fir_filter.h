@@ -11,8 +11,9 @@
 //                  indices that are multiples of S).
 // Both are exact causal convolutions; the direct and FFT paths compute the
 // same numbers up to float rounding (fir_filter_test.cc). Overlap-save: block
-// FFT of size N = bit_ceil(4 L) for L taps, B = N - L + 1 new samples per
-// block, the last L - 1 input samples kept as history (Oppenheim & Schafer,
+// FFT of size N = bit_ceil(4 L) for L taps (at least bit_ceil(L - 1 + S), so
+// that a block holds a symbol period), B = N - L + 1 new samples per block,
+// the last L - 1 input samples kept as history (Oppenheim & Schafer,
 // Discrete-Time Signal Processing, 3rd ed., sec. 8.7; from memory). Plans are
 // FFTW_ESTIMATE (repeatable) and are made in Create().
 //
@@ -33,33 +34,11 @@
 // taps per polyphase branch, Q = ceil(L / S) (= span in symbols + 1 for a
 // pulse), reach FftMinTapsPerPhase(S, decimating), a crossover measured on
 // this project's machine: a fixed rule, not a per-run timing, keeps a run's
-// numbers repeatable. Measured (Release, g++ 12 -O3, one thread, AMD EPYC
-// Zen 4, AVX3 target, load average ~1.6 on the 2 cores; RRC a = 0.35, calls of
-// 1930 symbols (a chain's frame + guard), ~2^19 samples per timing, median of
-// 21), ns per high-rate sample, direct / FFT:
-//                 S = 2               S = 4               S = 8               S = 16
-//   span   tx          rx         tx        rx        tx        rx        tx        rx
-//     4  0.36/2.81  0.37/2.53  0.30/2.44 0.26/2.37 0.23/2.33 0.20/2.27 0.24/3.12 0.19/3.18
-//    10  0.56/2.56  0.76/2.51  0.48/2.47 0.41/2.43 0.42/2.53 0.39/2.46 0.42/2.89 0.37/2.72
-//    16  0.77/2.51  1.20/2.43  0.69/2.60 0.61/2.48 0.62/2.80 0.59/2.69 0.63/2.94 0.57/2.89
-//    32  1.33/2.62  2.27/2.51  1.24/2.77 1.15/2.66 1.18/2.90 1.15/2.84 1.22/4.18 1.14/4.17
-//    48  1.88/2.96  3.33/2.82  1.84/3.11 1.75/3.00 1.73/3.20 1.69/3.20 1.79/4.36 1.69/4.32
-//    64  2.44/3.04  4.43/2.93  2.40/3.36 2.30/3.35 2.26/4.32 2.25/4.17 2.37/7.64 2.23/7.59
-//    96  3.59/3.24  6.58/3.36  3.46/3.26 3.40/3.20 3.36/4.32 3.36/4.17 3.51/7.68 3.34/7.55
-//   128  5.16/3.92  9.44/3.90  4.59/5.47 4.50/5.24 4.49/9.09 4.50/9.09 4.67/11.6 4.45/11.6
-// For comparison, the former scalar direct path at span 10, S = 4: tx 4.97,
-// rx 7.01 (same run). Longer filters (arbitrary taps, minimum of 15 runs,
-// load ~3): S = 4 FFT ahead at Q = 161..225 (e.g. 5.6 / 5.2), direct again at
-// 257 (9.3 / 14.7: N doubles), FFT at 385 and 513; S = 8 and 16 direct ahead
-// up to Q = 385 (13.3 / 15.8), even or FFT at 513; S = 32, 64 direct ahead
-// to the largest measured (Q = 161 and 97). Factors that are not powers of
-// two (3, 5, 6, 12 measured), S = 1 and the S = 2 receiver use kernel paths
-// that load every window vector separately (fir_kernels-inl.h) and cost ~2x
-// per tap: FFT ahead from Q ~ 33 (tx) / 49 (rx) there, from Q ~ 97 for the
-// S = 1, 2 transmitters. Hence FftMinTapsPerPhase (taps per branch):
+// numbers repeatable. The rule, in taps per branch:
 //   S = 4: 161 (kFftMinTapsPerPhase); S = 8, 16, ... (powers of two >= 8): 513;
 //   S = 1, 2: transmitter 97, receiver 49; other S: transmitter 33, receiver 49.
 // Every pulse of span <= 16 (all the configs) runs the direct path.
+// The measurements behind the rule: docs/performance_notes.md, "Streaming FIR".
 //
 // Transmitter / Receiver: the RRC (or RC) pulse of pulse.h as transmit filter
 // and its matched filter (the same symmetric taps). The cascade is centred at
@@ -108,7 +87,7 @@ std::string ToString(FirMethod method);
 // usual factor: 161, i.e. spans of 160 symbols and more.
 extern const int kFftMinTapsPerPhase;
 
-// The crossover kAuto applies for factor S >= 1, per filter kind (the table
+// The crossover kAuto applies for factor S >= 1, per filter kind (the rule
 // above): the FFT path from this many taps per polyphase branch on.
 int FftMinTapsPerPhase(int factor, bool decimating);
 
@@ -123,6 +102,7 @@ class FirWorkspace {
   void Reset();
 
  private:
+  friend class StreamingFir;
   friend class InterpolatingFir;
   friend class DecimatingFir;
   std::vector<cf32> line_;     // direct: [history | chunk | lookahead]; FFT: history only
@@ -131,7 +111,41 @@ class FirWorkspace {
   FftwBuffer freq_;            // FFT path: N bins
 };
 
-class InterpolatingFir {
+// What the two streaming filters share: the validated taps and factor, the
+// resolved method, the overlap-save kernel, the workspace set-up and the
+// overlap-save block loop. Not made on its own (no public constructor).
+class StreamingFir {
+ public:
+  int factor() const { return factor_; }
+  int tap_count() const { return static_cast<int>(taps_.size()); }
+  FirMethod method() const { return method_; }  // kDirect or kFft, never kAuto
+  int fft_size() const;                          // 0 on the direct path
+  std::span<const float> taps() const { return taps_; }
+
+ protected:
+  StreamingFir() = default;
+  // Validates (who names the filter in the message), resolves kAuto, keeps
+  // the taps and, on the FFT path, makes the overlap-save kernel.
+  Status Init(std::span<const float> taps, int factor, FirMethod method, bool decimating,
+              const char* who);
+  // Direct path: a zeroed line of line_size samples, the first history of
+  // them the history. FFT path: history L - 1 and the two transform buffers.
+  FirWorkspace MakeDirectWorkspace(std::size_t history, std::size_t line_size) const;
+  FirWorkspace MakeFftWorkspace() const;
+  // Overlap-save over `symbols` symbols in chunks of B / S (fir_filter.cc).
+  // Per chunk [c0, c0 + cs): fill(t, count, c0, cs) writes the count = N - H
+  // transform inputs after the history H; drain(t, c0, cs) reads the outputs
+  // from t (the first sample after the history) on.
+  template <typename Fill, typename Drain>
+  void OverlapSave(std::size_t symbols, FirWorkspace& ws, Fill&& fill, Drain&& drain) const;
+
+  int factor_ = 1;
+  FirMethod method_ = FirMethod::kDirect;
+  std::vector<float> taps_;
+  std::shared_ptr<const FftKernel> fft_;
+};
+
+class InterpolatingFir : public StreamingFir {
  public:
   // taps non-empty, finite; factor S >= 1; method kAuto / kDirect / kFft.
   static Result<InterpolatingFir> Create(std::span<const float> taps, int factor,
@@ -140,23 +154,13 @@ class InterpolatingFir {
   // REQUIRES: out.size() == factor() * in.size(); ws from MakeWorkspace().
   void Process(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
 
-  int factor() const { return factor_; }
-  int tap_count() const { return static_cast<int>(taps_.size()); }
-  FirMethod method() const { return method_; }  // kDirect or kFft, never kAuto
-  int fft_size() const;                          // 0 on the direct path
-  std::span<const float> taps() const { return taps_; }
-
  private:
   void ProcessDirect(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
   void ProcessFft(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
-  int factor_ = 1;
-  FirMethod method_ = FirMethod::kDirect;
-  std::vector<float> taps_;
   FirInterpolatorPlan direct_;      // direct path: the kernels' tap layout
-  std::shared_ptr<const FftKernel> fft_;
 };
 
-class DecimatingFir {
+class DecimatingFir : public StreamingFir {
  public:
   static Result<DecimatingFir> Create(std::span<const float> taps, int factor,
                                       FirMethod method = FirMethod::kAuto);
@@ -164,20 +168,10 @@ class DecimatingFir {
   // REQUIRES: in.size() == factor() * out.size().
   void Process(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
 
-  int factor() const { return factor_; }
-  int tap_count() const { return static_cast<int>(taps_.size()); }
-  FirMethod method() const { return method_; }
-  int fft_size() const;
-  std::span<const float> taps() const { return taps_; }
-
  private:
   void ProcessDirect(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
   void ProcessFft(std::span<const cf32> in, std::span<cf32> out, FirWorkspace& ws) const;
-  int factor_ = 1;
-  FirMethod method_ = FirMethod::kDirect;
-  std::vector<float> taps_;
   FirDecimatorPlan direct_;         // direct path: the kernels' tap layout
-  std::shared_ptr<const FftKernel> fft_;
 };
 
 // Symbols -> S samples per symbol through the unit-energy pulse.

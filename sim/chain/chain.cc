@@ -1,11 +1,9 @@
-// Chain: source, encoder, mapper, shaping, AWGN, matched filter, demapper,
-// decoder, decisions, error counting.
+// Chain: the one path. Source, encoder, mapper, shaping, channel, matched
+// filter, demapper, decoder, error counting.
 #include "sim/chain/chain.h"
 
 #include <algorithm>
 
-#include "blocks/fec/ldpc_construction.h"
-#include "blocks/fec/ldpc_matrix_file.h"
 #include "blocks/kernels/bpsk_kernels.h"
 
 namespace capgap {
@@ -13,56 +11,18 @@ namespace capgap {
 Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
   Chain chain;
   chain.scheme_ = scheme;
-  chain.coded_bits_ = scheme.frame_bits;
   const std::string p = "scheme." + scheme.name + ".";
-  if (scheme.code == "conv") {
-    const ConvSchemeConfig& c = scheme.conv;
-    ConvCodeSpec spec;
-    auto gens = ParseGenerators(c.generators);
-    if (!gens.ok()) {
-      return Status::Error(p + "generators = '" + c.generators + "': " + gens.status().message());
-    }
-    spec.generators = gens.value();
-    spec.constraint_length = c.constraint_length;
-    if (c.puncture != "none") {
-      auto pat = ParsePuncturePattern(c.puncture);
-      if (!pat.ok()) {
-        return Status::Error(p + "puncture = '" + c.puncture + "': " + pat.status().message());
-      }
-      spec.puncture = pat.value();
-    }
-    spec.termination = c.termination == "tailbiting" ? Termination::kTailBiting
-                                                     : Termination::kTerminated;
-    auto code = ConvCode::Create(spec);
-    if (!code.ok()) return Status::Error(p + "generators/puncture: " + code.status().message());
-    chain.conv_ = std::move(code).value();
-    if (c.decoder == "bcjr") {
-      auto dec = BcjrDecoder::Create(*chain.conv_);
-      if (!dec.ok()) return Status::Error(p + "decoder = 'bcjr': " + dec.status().message());
-      chain.bcjr_ = std::move(dec).value();
-    } else {
-      ViterbiOptions opt;
-      opt.traceback_length = c.traceback == 0 ? -1 : c.traceback;
-      auto dec = ViterbiDecoder::Create(*chain.conv_, opt);
-      if (!dec.ok()) return Status::Error(p + "decoder = '" + c.decoder + "': " + dec.status().message());
-      chain.viterbi_ = std::move(dec).value();
-      chain.hard_decoding_ = c.decoder == "viterbi_hard";
-    }
-    chain.coded_bits_ = chain.conv_->CodedLength(scheme.frame_bits);
-    chain.code_rate_ = chain.conv_->EffectiveRate(scheme.frame_bits);
-    const auto m = static_cast<std::size_t>(scheme.modulation.bits_per_symbol());
-    if (chain.coded_bits_ % m != 0) {
-      return Status::Error(p + "frame_bits = " + std::to_string(scheme.frame_bits) + ": gives " +
-                           std::to_string(chain.coded_bits_) +
-                           " coded bits, not a multiple of " + std::to_string(m) +
-                           " bits per symbol of " + ToString(scheme.modulation) +
-                           "; choose frame_bits so that the coded length is");
-    }
-  } else if (scheme.code == "ldpc") {
-    if (Status st = chain.BuildLdpc(p); !st.ok()) return st;
-  } else if (scheme.code != "none") {
-    return Status::Error(p + "code = '" + scheme.code + "': valid: none, conv, ldpc");
+  const CodeFamily* family = FindCodeFamily(scheme.code);
+  if (!family) {
+    return Status::Error(p + "code = '" + scheme.code + "': valid: " + CodeFamilyNames());
   }
+  auto code = family->build(scheme, p);
+  if (!code.ok()) return code.status();
+  chain.code_ = std::move(code).value();
+  // The family fixes the information bits per frame (LDPC: the code's k).
+  chain.scheme_.frame_bits = static_cast<std::uint32_t>(chain.code_->info_bits());
+  chain.channel_family_ = FindChannelFamily("awgn");
+  if (!chain.channel_family_) return Status::Error("no channel 'awgn' in the registry");
   chain.key_ = DeriveKey(seed, scheme.name);
   chain.unit_frames_ = chain.scheme_.ResolvedUnitFrames();
   auto mapper = Mapper::Create(scheme.modulation);
@@ -73,7 +33,8 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
   chain.demapper_ = std::make_shared<const Demapper>(std::move(demapper).value());
   const bool carrier = scheme.phase_offset_deg != 0 || scheme.frequency_offset != 0;
   // A BPSK chain stays on the real axis only without shaping or carrier offset.
-  chain.real_axis_ = scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone && !carrier;
+  chain.real_axis_ = scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
+                     !carrier && chain.channel_family_->additive_only;
   if (scheme.shaping != PulseShape::kNone) {
     PulseSpec spec;
     spec.shape = scheme.shaping;
@@ -107,102 +68,40 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
     if (!prbs.ok()) return prbs.status();
     chain.prbs_ = std::move(prbs).value();
   }
+  chain.batch_frames_ = std::max<std::uint32_t>(1, chain.code_->batch_frames(chain.unit_frames_));
   return chain;
 }
 
-// The LDPC code of the scheme (PEG, lifted base matrix or matrix file), its
-// encoder and decoder; frame_bits becomes the code's k.
-Status Chain::BuildLdpc(const std::string& p) {
-  const LdpcSchemeConfig& c = scheme_.ldpc;
-  Result<LdpcCode> code = Status::Error("unset");
-  if (c.construction == "peg") {
-    auto degrees = ParseVariableDegrees(c.degrees);
-    if (!degrees.ok()) {
-      return Status::Error(p + "degrees = '" + c.degrees + "': " + degrees.status().message());
-    }
-    PegSpec spec;
-    spec.length = c.length;
-    spec.checks = ChecksForRate(c.length, c.rate);
-    spec.degrees = degrees.value();
-    spec.seed = c.construction_seed;
-    code = BuildPegCode(spec);
-    if (!code.ok()) return Status::Error(p + "length/rate/degrees: " + code.status().message());
-  } else if (c.construction == "qc") {
-    auto base = ReadBaseMatrixFile(c.ResolvePath(c.base_matrix));
-    if (!base.ok()) return Status::Error(p + "base_matrix: " + base.status().message());
-    const int z = c.lifting > 0 ? c.lifting : base.value().design_lifting;
-    code = LiftBaseMatrix(base.value(), z);
-    if (!code.ok()) return Status::Error(p + "lifting = " + std::to_string(z) + ": " + code.status().message());
-  } else if (c.construction == "file") {
-    code = ReadLdpcMatrixFile(c.ResolvePath(c.matrix_file));
-    if (!code.ok()) return Status::Error(p + "matrix_file: " + code.status().message());
-  } else {
-    return Status::Error(p + "construction = '" + c.construction + "': valid: peg, qc, file");
-  }
-  ldpc_code_ = std::make_shared<const LdpcCode>(std::move(code).value());
-  const int n = ldpc_code_->length();
-  const int m = scheme_.modulation.bits_per_symbol();
-  if (n % m != 0) {
-    return Status::Error(p + "code length n = " + std::to_string(n) + " is not a multiple of " +
-                         std::to_string(m) + " bits per symbol of " + ToString(scheme_.modulation));
-  }
-  auto encoder = LdpcEncoder::Create(ldpc_code_);
-  if (!encoder.ok()) return Status::Error(p + "code: " + encoder.status().message());
-  ldpc_encoder_ = std::move(encoder).value();
-  LdpcDecoderOptions opt;
-  auto algorithm = ParseLdpcAlgorithm(c.decoder);
-  if (!algorithm.ok()) return Status::Error(p + "decoder = '" + c.decoder + "': " + algorithm.status().message());
-  opt.algorithm = algorithm.value();
-  auto schedule = ParseLdpcSchedule(c.schedule);
-  if (!schedule.ok()) return Status::Error(p + "schedule = '" + c.schedule + "': " + schedule.status().message());
-  opt.schedule = schedule.value();
-  opt.max_iterations = c.max_iterations;
-  auto arithmetic = ParseLdpcArithmetic(c.arithmetic);
-  if (!arithmetic.ok()) {
-    return Status::Error(p + "arithmetic = '" + c.arithmetic + "': " + arithmetic.status().message());
-  }
-  opt.arithmetic = arithmetic.value();
-  opt.normalization = static_cast<float>(c.normalization);
-  opt.offset = static_cast<float>(c.offset);
-  auto decoder = LdpcDecoder::Create(ldpc_code_, opt);
-  if (!decoder.ok()) return Status::Error(p + "decoder: " + decoder.status().message());
-  ldpc_decoder_ = std::move(decoder).value();
-  scheme_.frame_bits = static_cast<std::uint32_t>(ldpc_encoder_->info_bits());
-  coded_bits_ = static_cast<std::size_t>(n);
-  code_rate_ = static_cast<double>(ldpc_encoder_->info_bits()) / n;
-  return Status::Ok();
+
+std::unique_ptr<const Channel> Chain::MakePointChannel(double ebno_db) const {
+  NoiseSpec spec;
+  spec.ebn0_db = ebno_db;
+  spec.code_rate = code_rate();
+  spec.bits_per_symbol = mapper_->bits_per_symbol();
+  spec.samples_per_symbol = samples_per_symbol();
+  return channel_family_->make(spec);
 }
 
 ChainWorkspace Chain::MakeWorkspace() const {
   ChainWorkspace ws;
-  const std::size_t n = scheme_.frame_bits;
-  const std::size_t symbols = coded_bits_ / static_cast<std::size_t>(mapper_->bits_per_symbol());
-  ws.bits.resize(n);
-  ws.decided.resize(n);
-  ws.llrs.resize(coded_bits_);
-  if (coded()) {
-    ws.coded.resize(coded_bits_);
-    ws.coded_hard.resize(coded_bits_);
-    if (viterbi_) ws.viterbi = viterbi_->MakeWorkspace(n);
-    if (bcjr_) {
-      ws.bcjr = bcjr_->MakeWorkspace(n);
-      ws.info_llrs.resize(n);
-    }
-    if (ldpc_decoder_) {
-      ws.ldpc = ldpc_decoder_->MakeWorkspace();
-      ws.unit_bits.resize(unit_frames_ * n);
-      ws.unit_llrs.resize(unit_frames_ * coded_bits_);
-      ws.unit_decided.resize(unit_frames_ * coded_bits_);
-      ws.ldpc_results.resize(unit_frames_);
-    }
-  }
+  const std::size_t k = scheme_.frame_bits;
+  const std::size_t n = code_->coded_bits();
+  const std::size_t symbols = n / static_cast<std::size_t>(mapper_->bits_per_symbol());
+  ws.code = code_->MakeWorkspace(batch_frames_);
+  ws.coded.resize(n);
+  ws.batch_bits.resize(batch_frames_ * k);
+  ws.batch_llrs.resize(batch_frames_ * n);
+  ws.batch_decided.resize(batch_frames_ * k);
+  ws.batch_results.resize(batch_frames_);
   if (real_axis_) {
     ws.real_symbols.resize(symbols);
   } else {
     ws.symbols.resize(symbols);
   }
+  const auto guard = static_cast<std::size_t>(guard_symbols_);
+  ws.state_gain.resize(symbols + guard);
+  ws.state_n0.resize(symbols + guard);
   if (shaped()) {
-    const auto guard = static_cast<std::size_t>(guard_symbols_);
     const auto s = static_cast<std::size_t>(scheme_.samples_per_symbol);
     ws.tx = tx_->MakeWorkspace();
     ws.rx = rx_->MakeWorkspace();
@@ -214,8 +113,8 @@ ChainWorkspace Chain::MakeWorkspace() const {
   return ws;
 }
 
-void Chain::FillSource(std::uint32_t /*point_index*/, std::uint32_t unit_index,
-                       std::uint32_t frame, RngStream& bit_stream, std::span<Bit> bits) const {
+void Chain::FillSource(std::uint32_t unit_index, std::uint32_t frame, RngStream& bit_stream,
+                       std::span<Bit> bits) const {
   if (!prbs_) {
     GenerateRandomBits(bits, bit_stream);
     return;
@@ -228,25 +127,37 @@ void Chain::FillSource(std::uint32_t /*point_index*/, std::uint32_t unit_index,
   prbs_->Generate(bits, state);
 }
 
+Chain::Streams Chain::UnitStreams(std::uint32_t point_index, std::uint32_t unit_index) const {
+  return Streams{RngStream(key_, point_index, unit_index, Substream::kBits),
+                 RngStream(key_, point_index, unit_index, Substream::kNoise),
+                 RngStream(key_, point_index, unit_index, Substream::kChannel),
+                 RngStream(key_, point_index, unit_index, Substream::kFading)};
+}
+
+void Chain::ApplyChannel(const Channel& channel, std::span<cf32> samples, Streams& s,
+                         ChainWorkspace& ws) const {
+  channel.Apply(samples, samples_per_symbol(), s.noise, s.process,
+                ChannelStateStorage{ws.state_gain, ws.state_n0}, ws.state);
+}
+
 // One frame through the shaped channel. The receiver lags the transmitter by
 // guard_symbols_ (the matched filter's delay), so every frame is followed by
 // that many guard symbols: the block [frame | guard] goes through transmitter,
-// carrier offset, noise and receiver, and the block's last `frame` outputs are
-// exactly the estimates of the frame's symbols (the first outputs belong to the
-// previous block's guard). The unit is primed with one guard block whose
-// outputs are discarded, so no filter start-up transient is ever counted.
-// Guard symbols come from their own substream, so the information bits and
-// their noise draw are the same whatever the guard length.
-void Chain::ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream,
-                        RngStream& noise_stream, ChainWorkspace& ws) const {
+// carrier offset, channel and receiver, and the block's last `frame` outputs
+// are exactly the estimates of the frame's symbols (the first outputs belong
+// to the previous block's guard). The unit is primed with one guard block
+// whose outputs are discarded, so no filter start-up transient is ever
+// counted. Guard symbols come from their own substream, so the information
+// bits and their noise draw are the same whatever the guard length.
+void Chain::ShapedFrame(const Channel& channel, Streams& s, ChainWorkspace& ws) const {
   const std::size_t n = ws.symbols.size();
   const auto guard = static_cast<std::size_t>(guard_symbols_);
   std::copy(ws.symbols.begin(), ws.symbols.end(), ws.block_symbols.begin());
-  GenerateRandomBits(ws.guard_bits, guard_stream);
+  GenerateRandomBits(ws.guard_bits, s.guard);
   mapper_->Map(ws.guard_bits, std::span<cf32>(ws.block_symbols).subspan(n, guard));
   tx_->Shape(ws.block_symbols, ws.samples, ws.tx);
   if (carrier_) carrier_->Apply(ws.samples, ws.carrier);
-  channel.AddNoise(ws.samples, noise_stream);
+  ApplyChannel(channel, ws.samples, s, ws);
   rx_->Receive(ws.samples, ws.received, ws.rx);
   std::copy(ws.received.begin() + static_cast<std::ptrdiff_t>(guard), ws.received.end(),
             ws.symbols.begin());
@@ -255,67 +166,61 @@ void Chain::ShapedFrame(const AwgnChannel& channel, RngStream& guard_stream,
 // Shaped chains: one guard block (D symbols) whose outputs are discarded, so
 // the filters hold a steady state when the first frame arrives. Carrier
 // offset: the phase ramp restarts with every unit.
-void Chain::PrimeUnit(const AwgnChannel& channel, RngStream& guard_stream,
-                      RngStream& noise_stream, ChainWorkspace& ws) const {
+void Chain::PrimeUnit(const Channel& channel, Streams& s, ChainWorkspace& ws) const {
   if (shaped()) {
     ws.tx.Reset();
     ws.rx.Reset();
     ws.carrier.Reset();
     const auto guard = static_cast<std::size_t>(guard_symbols_);
     const std::span<cf32> block(ws.block_symbols.data(), guard);
-    GenerateRandomBits(ws.guard_bits, guard_stream);
+    GenerateRandomBits(ws.guard_bits, s.guard);
     mapper_->Map(ws.guard_bits, block);
     const std::span<cf32> samples(ws.samples.data(),
                                   guard * static_cast<std::size_t>(scheme_.samples_per_symbol));
     tx_->Shape(block, samples, ws.tx);
     if (carrier_) carrier_->Apply(samples, ws.carrier);
-    channel.AddNoise(samples, noise_stream);
+    ApplyChannel(channel, samples, s, ws);
     rx_->Receive(samples, std::span<cf32>(ws.received.data(), guard), ws.rx);
   } else if (carrier_) {
     ws.carrier.Reset();
   }
 }
 
-// Complex path: map, then the shaped channel or carrier offset + noise at
+// Complex path: map, then the shaped channel or carrier offset + channel at
 // one sample per symbol; ws.symbols ends as the demapper's input.
-void Chain::TransmitComplex(std::span<const Bit> tx_bits, const AwgnChannel& channel,
-                            RngStream& guard_stream, RngStream& noise_stream,
+void Chain::TransmitComplex(std::span<const Bit> tx_bits, const Channel& channel, Streams& s,
                             ChainWorkspace& ws) const {
   mapper_->Map(tx_bits, ws.symbols);
   if (shaped()) {
-    ShapedFrame(channel, guard_stream, noise_stream, ws);
+    ShapedFrame(channel, s, ws);
   } else {
     if (carrier_) carrier_->Apply(ws.symbols, ws.carrier);
-    channel.AddNoise(ws.symbols, noise_stream);
+    ApplyChannel(channel, ws.symbols, s, ws);
   }
 }
 
-std::vector<cf32> Chain::CaptureDemapperInput(const AwgnChannel& channel,
+std::vector<cf32> Chain::CaptureDemapperInput(const Channel& channel,
                                               std::size_t max_symbols) const {
-  // Point index 0xFFFFFFFE is never a sweep point: the display draws its own
-  // streams and never touches a counted unit's.
-  constexpr std::uint32_t kDisplayPoint = 0xFFFFFFFEu;
   ChainWorkspace ws = MakeWorkspace();
-  RngStream bit_stream(key_, kDisplayPoint, 0, Substream::kBits);
-  RngStream noise_stream(key_, kDisplayPoint, 0, Substream::kNoise);
-  RngStream guard_stream(key_, kDisplayPoint, 0, Substream::kChannel);
-  PrimeUnit(channel, guard_stream, noise_stream, ws);
+  Streams s = UnitStreams(kDisplayPointIndex, 0);
+  PrimeUnit(channel, s, ws);
   std::vector<cf32> out;
   out.reserve(max_symbols);
+  const std::span<Bit> bits(ws.batch_bits.data(), scheme_.frame_bits);
   while (out.size() < max_symbols) {
-    GenerateRandomBits(ws.bits, bit_stream);
-    const std::span<const Bit> tx_bits = EncodeFrame(ws.bits, ws);
+    GenerateRandomBits(bits, s.bits);
+    code_->Encode(bits, ws.coded, *ws.code);
     if (real_axis_) {
       for (std::size_t i = 0; i < ws.real_symbols.size(); ++i) {
-        ws.real_symbols[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
+        ws.real_symbols[i] = 1.0f - 2.0f * static_cast<float>(ws.coded[i]);
       }
-      channel.AddNoiseReal(ws.real_symbols, noise_stream);
+      channel.ApplyReal(ws.real_symbols, s.noise);
       for (float x : ws.real_symbols) {
         if (out.size() == max_symbols) break;
         out.emplace_back(x, 0.0f);
       }
     } else {
-      TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
+      TransmitComplex(ws.coded, channel, s, ws);
       for (const cf32& z : ws.symbols) {
         if (out.size() == max_symbols) break;
         out.push_back(z);
@@ -325,152 +230,102 @@ std::vector<cf32> Chain::CaptureDemapperInput(const AwgnChannel& channel,
   return out;
 }
 
-std::span<const Bit> Chain::EncodeFrame(std::span<const Bit> bits, ChainWorkspace& ws) const {
-  if (conv_) {
-    conv_->Encode(bits, ws.coded);
-    return ws.coded;
-  }
-  if (ldpc_encoder_) {
-    ldpc_encoder_->Encode(bits, ws.coded);
-    return ws.coded;
-  }
-  return bits;
-}
-
-void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const AwgnChannel& channel,
-                        RngStream& guard_stream, RngStream& noise_stream, ChainWorkspace& ws,
-                        std::span<float> llrs) const {
+void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, Streams& s,
+                        ChainWorkspace& ws, std::span<float> llrs) const {
   if (real_axis_) {
     // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
     // L = 4 y / N0 (LLR > 0 favours bit 0).
     float* x = ws.real_symbols.data();
     const std::size_t n = ws.real_symbols.size();
     for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
-    channel.AddNoiseReal(ws.real_symbols, noise_stream);
+    channel.ApplyReal(ws.real_symbols, s.noise);
     const float scale = 4.0f / channel.n0();
     float* l = llrs.data();
     for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
     return;
   }
-  TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
-  demapper_->Demap(ws.symbols, channel.n0(), llrs);
+  TransmitComplex(tx_bits, channel, s, ws);
+  CAPGAP_DCHECK(ws.state.uniform());
+  demapper_->Demap(ws.symbols, ws.state.n0_uniform, llrs);
 }
 
-// An LDPC unit: every frame encoded and sent, its LLRs kept; then one
-// decoder call for the whole unit (frames side by side in SIMD lanes; each
-// frame's result is what it gets decoded alone, ldpc_decoder.h), then the
-// counts. Streams are used frame by frame exactly as in RunUnit.
-UnitCounts Chain::RunLdpcUnit(const AwgnChannel& channel, std::uint32_t point_index,
-                              std::uint32_t unit_index, ChainWorkspace& ws) const {
-  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
-  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
-  RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
-  PrimeUnit(channel, guard_stream, noise_stream, ws);
-  const std::size_t k = scheme_.frame_bits, n = coded_bits_;
-  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
-    const std::span<Bit> bits(ws.unit_bits.data() + f * k, k);
-    FillSource(point_index, unit_index, f, bit_stream, bits);
-    ldpc_encoder_->Encode(bits, ws.coded);
-    ChannelLlrs(ws.coded, channel, guard_stream, noise_stream, ws,
-                std::span<float>(ws.unit_llrs.data() + f * n, n));
-  }
-  ldpc_decoder_->Decode(ws.unit_llrs, ws.unit_decided, ws.ldpc_results, ws.ldpc);
-  UnitCounts counts;
-  const std::span<const int> positions = ldpc_encoder_->info_positions();
-  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
-    const Bit* info = ws.unit_bits.data() + f * k;
-    const Bit* decided = ws.unit_decided.data() + f * n;
-    std::uint64_t errors = 0;
-    for (std::size_t j = 0; j < k; ++j) {
-      errors += static_cast<std::uint64_t>(info[j] ^ decided[static_cast<std::size_t>(positions[j])]);
-    }
-    const LdpcDecoder::FrameResult& r = ws.ldpc_results[f];
-    counts.bits += k;
-    counts.bit_errors += errors;
-    counts.frames += 1;
-    counts.frame_errors += errors > 0 ? 1 : 0;
-    counts.decoder_iterations += static_cast<std::uint64_t>(r.iterations);
-    counts.max_decoder_iterations =
-        std::max(counts.max_decoder_iterations, static_cast<std::uint32_t>(r.iterations));
-    // Converged to a codeword that is not the one sent.
-    counts.undetected_frame_errors += (r.converged && errors > 0) ? 1 : 0;
-  }
-  return counts;
-}
-
-UnitCounts Chain::RunUnit(const AwgnChannel& channel, std::uint32_t point_index,
+// A unit: frames in batches of batch_frames_ (1, or the whole unit for
+// decoders that take frames across SIMD lanes). Each frame's bits, encoding
+// and channel draw from the unit's streams in frame order, whatever the
+// batch size, and each frame decodes as it would alone: the counts do not
+// depend on the batching.
+UnitCounts Chain::RunUnit(const Channel& channel, std::uint32_t point_index,
                           std::uint32_t unit_index, ChainWorkspace& ws) const {
-  if (ldpc_decoder_) return RunLdpcUnit(channel, point_index, unit_index, ws);
-  RngStream bit_stream(key_, point_index, unit_index, Substream::kBits);
-  RngStream noise_stream(key_, point_index, unit_index, Substream::kNoise);
-  const float n0 = channel.n0();
-  UnitCounts counts;
-  const std::span<Bit> bits(ws.bits);
-  const std::span<Bit> decided(ws.decided);
-  const std::span<float> llrs(ws.llrs);
+  Streams s = UnitStreams(point_index, unit_index);
+  const std::size_t k = scheme_.frame_bits, n = code_->coded_bits();
+  const bool uncoded = code_->identity();
   const bool hard = scheme_.demapper == DemapMethod::kHard;
-  // Uncoded BPSK with hard decisions runs fused (blocks/kernels/bpsk_kernels.h):
-  // bit 0 -> +1, bit 1 -> -1, I noise (sigma as in AddNoiseReal), y < 0 and the
-  // error count in registers, random bits drawn inside; the same counts and
-  // stream use as doing those steps one at a time.
-  const bool fused = real_axis_ && hard && !coded();
-  RngStream guard_stream(key_, point_index, unit_index, Substream::kChannel);
-  PrimeUnit(channel, guard_stream, noise_stream, ws);
-  for (std::uint32_t f = 0; f < unit_frames_; ++f) {
-    if (!fused || prbs_) FillSource(point_index, unit_index, f, bit_stream, bits);
-    // What goes on the channel: the information bits, or their codeword.
-    std::span<const Bit> tx_bits = bits;
-    if (coded()) {
-      conv_->Encode(bits, ws.coded);
-      tx_bits = ws.coded;
+  // Uncoded BPSK with hard decisions on an additive-only channel runs fused
+  // (blocks/kernels/bpsk_kernels.h): bit 0 -> +1, bit 1 -> -1, I noise
+  // (sigma as in ApplyReal), y < 0 and the error count in registers, random
+  // bits drawn inside; the same counts and stream use as doing those steps
+  // one at a time.
+  const bool fused = real_axis_ && hard && uncoded && channel.additive_only();
+  // Uncoded complex chains with a hard demapper decide symbols directly.
+  const bool direct_hard = !real_axis_ && hard && uncoded;
+  PrimeUnit(channel, s, ws);
+  UnitCounts counts;
+  for (std::uint32_t f0 = 0; f0 < unit_frames_; f0 += batch_frames_) {
+    const std::uint32_t batch = std::min(batch_frames_, unit_frames_ - f0);
+    for (std::uint32_t b = 0; b < batch; ++b) {
+      const std::span<Bit> bits(ws.batch_bits.data() + b * k, k);
+      if (fused) {
+        // Errors counted in the kernel: the decisions are not needed.
+        const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
+        std::uint64_t errors = 0;
+        if (prbs_) {
+          FillSource(unit_index, f0 + b, s.bits, bits);
+          errors = CountBpskHardErrors(bits, sigma, s.noise);
+        } else {
+          errors = CountBpskHardErrorsOfRandomBits(k, s.bits, sigma, s.noise);
+        }
+        counts.bits += k;
+        counts.bit_errors += errors;
+        counts.frames += 1;
+        counts.frame_errors += errors > 0 ? 1 : 0;
+        continue;
+      }
+      FillSource(unit_index, f0 + b, s.bits, bits);
+      std::span<const Bit> tx_bits = bits;
+      if (!uncoded) {
+        code_->Encode(bits, ws.coded, *ws.code);
+        tx_bits = ws.coded;
+      }
+      if (direct_hard) {
+        TransmitComplex(tx_bits, channel, s, ws);
+        demapper_->HardDecide(ws.symbols, std::span<Bit>(ws.batch_decided.data() + b * k, k));
+      } else {
+        ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
+      }
     }
-    std::uint64_t errors = 0;
-    if (fused) {
-      const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
-      errors = prbs_ ? CountBpskHardErrors(bits, sigma, noise_stream)
-                     : CountBpskHardErrorsOfRandomBits(bits.size(), bit_stream, sigma, noise_stream);
-    } else if (real_axis_) {
-      // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise.
-      float* x = ws.real_symbols.data();
-      const std::size_t n = ws.real_symbols.size();
-      for (std::size_t i = 0; i < n; ++i) x[i] = 1.0f - 2.0f * static_cast<float>(tx_bits[i]);
-      channel.AddNoiseReal(ws.real_symbols, noise_stream);
-      // L = 4 y / N0 (LLR > 0 favours bit 0); decisions from the LLR sign.
-      const float scale = 4.0f / n0;
-      float* l = llrs.data();
-      for (std::size_t i = 0; i < n; ++i) l[i] = scale * x[i];
-      if (!coded()) LlrToBits(llrs, decided);
+    if (fused) continue;
+    const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
+    if (direct_hard) {
+      std::fill(results.begin(), results.end(), FrameDecodeResult{});
     } else {
-      TransmitComplex(tx_bits, channel, guard_stream, noise_stream, ws);
-      if (coded()) {
-        // The decoder takes the demapper's LLRs (a hard demapper gives +-1).
-        demapper_->Demap(ws.symbols, n0, llrs);
-      } else if (hard) {
-        demapper_->HardDecide(ws.symbols, decided);
-      } else {
-        demapper_->Demap(ws.symbols, n0, llrs);
-        LlrToBits(llrs, decided);
-      }
+      code_->Decode(std::span<const float>(ws.batch_llrs.data(), batch * n),
+                    std::span<Bit>(ws.batch_decided.data(), batch * k), results, *ws.code);
     }
-    if (coded()) {
-      if (bcjr_) {
-        bcjr_->Decode(llrs, ws.info_llrs, ws.bcjr);
-        LlrToBits(ws.info_llrs, decided);
-      } else if (hard_decoding_) {
-        LlrToBits(llrs, ws.coded_hard);
-        viterbi_->DecodeHard(ws.coded_hard, decided, ws.viterbi);
-      } else {
-        viterbi_->Decode(llrs, decided, ws.viterbi);
-      }
+    for (std::uint32_t b = 0; b < batch; ++b) {
+      const Bit* info = ws.batch_bits.data() + b * k;
+      const Bit* decided = ws.batch_decided.data() + b * k;
+      std::uint64_t errors = 0;
+      for (std::size_t j = 0; j < k; ++j) errors += static_cast<std::uint64_t>(info[j] ^ decided[j]);
+      const FrameDecodeResult& r = results[b];
+      counts.bits += k;
+      counts.bit_errors += errors;
+      counts.frames += 1;
+      counts.frame_errors += errors > 0 ? 1 : 0;
+      counts.decoder_iterations += r.iterations;
+      counts.max_decoder_iterations = std::max(counts.max_decoder_iterations, r.iterations);
+      // Converged to a codeword that is not the one sent.
+      counts.undetected_frame_errors += (r.converged && errors > 0) ? 1 : 0;
     }
-    const std::size_t n = bits.size();
-    if (!fused) {
-      for (std::size_t i = 0; i < n; ++i) errors += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
-    }
-    counts.bits += n;
-    counts.bit_errors += errors;
-    counts.frames += 1;
-    counts.frame_errors += errors > 0 ? 1 : 0;
   }
   return counts;
 }

@@ -8,15 +8,15 @@
 #include "analysis/capacity.h"
 #include "analysis/density_evolution.h"
 #include "analysis/uncoded_theory.h"
-#include "blocks/fec/ldpc_construction.h"
 #include "blocks/shaping/pulse.h"
 #include "blocks/shaping/spectrum.h"
+#include "sim/chain/registry.h"
 
 namespace capgap {
 namespace {
 
 // Welch PSD of 2^17 random symbols through the scheme's transmitter, from a
-// stream of its own (point index 0xFFFFFFFF is never a sweep point). Segment
+// stream of its own (kSpectrumPointIndex, blocks/core/rng_stream.h). Segment
 // length: the power of two giving a bin width of at most 1/256 symbol rate.
 SpectrumResult MeasureSpectrum(const Chain& chain, std::uint64_t seed) {
   SpectrumResult out;
@@ -28,7 +28,7 @@ SpectrumResult MeasureSpectrum(const Chain& chain, std::uint64_t seed) {
   const Transmitter& tx = chain.transmitter();
   FirWorkspace tx_ws = tx.MakeWorkspace();
   WelchPsd::Workspace psd_ws = welch.value().MakeWorkspace();
-  RngStream stream(DeriveKey(seed, chain.scheme().name), 0xFFFFFFFFu, 0, Substream::kChannel);
+  RngStream stream(DeriveKey(seed, chain.scheme().name), kSpectrumPointIndex, 0, Substream::kChannel);
   const std::size_t chunk = 4096;
   const auto m = static_cast<std::size_t>(chain.mapper().bits_per_symbol());
   std::vector<Bit> bits(chunk * m);
@@ -74,7 +74,7 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
   }
   constexpr int kSymbols = 320;
   const auto m = static_cast<std::size_t>(chain.mapper().bits_per_symbol());
-  RngStream stream(DeriveKey(seed, chain.scheme().name), 0xFFFFFFFDu, 0, Substream::kChannel);
+  RngStream stream(DeriveKey(seed, chain.scheme().name), kEyePointIndex, 0, Substream::kChannel);
   std::vector<Bit> bits(static_cast<std::size_t>(kSymbols) * m);
   GenerateRandomBits(bits, stream);
   std::vector<cf32> symbols(static_cast<std::size_t>(kSymbols));
@@ -99,65 +99,6 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
     for (int j = -sps; j <= sps; ++j) out.eye.push_back(filtered(centre + j));
     ++out.eye_traces;
   }
-}
-
-// Code facts, decoder settings and the density-evolution thresholds of an
-// LDPC scheme.
-void AnalyseLdpc(const Chain& chain, SchemeResult& r) {
-  const LdpcCode& code = chain.ldpc_code();
-  const LdpcSchemeConfig& c = chain.scheme().ldpc;
-  LdpcResult& l = r.ldpc;
-  l.present = true;
-  l.construction = c.construction;
-  l.description = code.description();
-  l.length = code.length();
-  l.info_bits = chain.ldpc_encoder().info_bits();
-  l.checks = code.checks();
-  l.rank = chain.ldpc_encoder().rank();
-  l.lifting = code.lifting();
-  l.girth = Girth(code);
-  const DegreeProfile profile = ComputeDegreeProfile(code);
-  l.degree_profile = profile.ToString();
-  l.variable_nodes_by_degree = profile.variable_nodes_by_degree;
-  l.check_nodes_by_degree = profile.check_nodes_by_degree;
-  l.encoder = chain.ldpc_encoder().uses_dual_diagonal() ? "dual-diagonal (linear time)"
-                                                        : "gaussian elimination (dense GF(2))";
-  const LdpcDecoderOptions& o = chain.ldpc_decoder().options();
-  l.decoder = ToString(o.algorithm);
-  l.schedule = ToString(o.schedule);
-  l.kernel_target = chain.ldpc_decoder().kernel_target();
-  l.max_iterations = o.max_iterations;
-  l.normalization = o.normalization;
-  l.offset = o.offset;
-
-  Limits& lim = r.limits;
-  lim.binary_input_ebno_db = analysis::BinaryInputMinEbn0Db(r.code_rate);
-  auto dist = analysis::EdgeDistributionFromNodeCounts(profile.variable_nodes_by_degree,
-                                                       profile.check_nodes_by_degree);
-  if (!dist.ok()) {
-    lim.threshold_description = "no threshold: " + dist.status().message();
-    return;
-  }
-  // The ensemble's threshold at the code's actual rate k/n (a rank-deficient
-  // H carries a little more than the design rate).
-  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate);
-  auto ga = analysis::GaussianApproxThreshold(dist.value(), r.code_rate);
-  if (ga.ok()) lim.threshold_ga_ebno_db = ga.value().ebno_db;
-  const auto& best = quantized.ok() ? quantized : ga;
-  if (best.ok()) {
-    lim.threshold_ebno_db = best.value().ebno_db;
-    lim.threshold_sigma = best.value().sigma;
-    lim.threshold_method = analysis::ToString(best.value().method);
-    lim.threshold_description = best.value().description;
-  } else {
-    lim.threshold_description = "no threshold: " + best.status().message();
-  }
-  const Modulation& mod = chain.scheme().modulation;
-  const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
-  lim.threshold_channel =
-      binary ? "binary-input AWGN: exact for BPSK and Gray QPSK (two independent binary channels)"
-             : "binary-input AWGN: a reference only for this mapper (BICM bit channels are not "
-               "binary-input AWGN); no gap is quoted";
 }
 
 }  // namespace
@@ -196,30 +137,10 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     r.theory.ser_uncoded.push_back(analysis::UncodedSer(mod, x));
   }
 
-  if (chain.conv_coded()) {
-    auto spectrum = ComputeDistanceSpectrum(chain.conv_code(), 10);
-    if (spectrum.ok()) {
-      const DistanceSpectrum& d = spectrum.value();
-      r.code.present = true;
-      r.code.free_distance = d.free_distance;
-      r.code.spectrum_distance = d.distances;
-      r.code.spectrum_info_weight = d.info_weight;
-      r.code.spectrum_events = d.num_events;
-      // The bound assumes binary antipodal signalling per coded bit: BPSK, or
-      // Gray QPSK (two independent BPSK channels). Other mappers: omitted.
-      const bool binary = mod.family == ModulationFamily::kPsk && mod.order <= 4;
-      if (binary) {
-        r.theory.bound_channel =
-            "soft-decision union bound, 10 terms, BPSK/QPSK on AWGN, effective rate (tail "
-            "and puncturing included)";
-        for (double x : r.theory.ebno_db) {
-          r.theory.ber_bound.push_back(std::min(0.5, UnionBoundBer(d, x, r.code_rate)));
-        }
-      }
-    }
+  // The code family's own analysis: bounds, thresholds, code facts.
+  if (const CodeFamily* family = FindCodeFamily(chain.scheme().code); family && family->analyse) {
+    family->analyse(chain.code(), chain.scheme(), r);
   }
-
-  if (chain.ldpc_coded()) AnalyseLdpc(chain, r);
 
   r.limits.shannon_ebno_db = analysis::ShannonMinEbn0Db(r.spectral_efficiency);
   r.limits.constrained_ebno_db =
@@ -278,12 +199,8 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     v.present = true;
     v.constellation_ebno_db =
         std::isfinite(s.ebno_at_target_db) ? s.ebno_at_target_db : r.points.back().ebno_db;
-    NoiseSpec spec;
-    spec.ebn0_db = v.constellation_ebno_db;
-    spec.code_rate = chain.code_rate();
-    spec.bits_per_symbol = chain.mapper().bits_per_symbol();
-    spec.samples_per_symbol = chain.samples_per_symbol();
-    for (const cf32& z : chain.CaptureDemapperInput(AwgnChannel(spec), 2000)) {
+    const auto channel = chain.MakePointChannel(v.constellation_ebno_db);
+    for (const cf32& z : chain.CaptureDemapperInput(*channel, 2000)) {
       v.constellation_i.push_back(z.real());
       v.constellation_q.push_back(z.imag());
     }

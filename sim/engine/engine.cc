@@ -43,13 +43,8 @@ int ResolveThreadCount(int requested) {
   return hw == 0 ? 1 : static_cast<int>(hw);
 }
 
-AwgnChannel MakePointChannel(const Chain& chain, double ebno_db) {
-  NoiseSpec spec;
-  spec.ebn0_db = ebno_db;
-  spec.code_rate = chain.code_rate();
-  spec.bits_per_symbol = chain.mapper().bits_per_symbol();
-  spec.samples_per_symbol = chain.samples_per_symbol();
-  return AwgnChannel(spec);
+std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_db) {
+  return chain.MakePointChannel(ebno_db);
 }
 
 bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason) {
@@ -159,7 +154,8 @@ class PointState final : public PointControl {
 PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t point_index,
                      double ebno_db, const EngineOptions& options, const PointStart& start) {
   const auto t0 = Clock::now();
-  const AwgnChannel channel = MakePointChannel(chain, ebno_db);
+  const std::unique_ptr<const Channel> point_channel = MakePointChannel(chain, ebno_db);
+  const Channel& channel = *point_channel;
   PointState st(sweep, start);
   StopReason start_reason;
   const bool already_done = StopRuleMet(start.counts, sweep, &start_reason);

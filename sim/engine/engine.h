@@ -25,10 +25,11 @@
 #include <atomic>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
-#include "blocks/channel/awgn_channel.h"
+#include "blocks/channel/channel.h"
 #include "sim/chain/chain.h"
 #include "sim/config/config.h"
 #include "sim/engine/stats.h"
@@ -136,7 +137,7 @@ struct EngineOptions {
 };
 
 // The channel of a point (the only place a point's Eb/N0 becomes noise).
-AwgnChannel MakePointChannel(const Chain& chain, double ebno_db);
+std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_db);
 
 // True, with the reason, when `counts` meets the stopping rule of `sweep`
 // (target_errors checked first, as unit by unit in RunPoint).

@@ -12,22 +12,11 @@
 #include <set>
 #include <sstream>
 
+#include "blocks/core/hash.h"
 #include "sim/io/atomic_file.h"
 
 namespace capgap {
 namespace {
-
-// FNV-1a, 64 bit (Fowler, Noll, Vo; parameters from memory: offset basis
-// 0xcbf29ce484222325, prime 0x100000001b3). Detects a damaged file; a kill
-// cannot produce one (the file is replaced atomically).
-std::uint64_t Fnv1a64(const std::string& bytes, std::size_t n) {
-  std::uint64_t h = 0xcbf29ce484222325ull;
-  for (std::size_t i = 0; i < n; ++i) {
-    h ^= static_cast<unsigned char>(bytes[i]);
-    h *= 0x100000001b3ull;
-  }
-  return h;
-}
 
 std::string Double17(double v) {
   char buf[40];
@@ -187,8 +176,10 @@ std::string SerializeCheckpoint(const Checkpoint& c) {
       out += "\n";
     }
   }
+  // FNV-1a 64 (blocks/core/hash.h) detects a damaged file; a kill cannot
+  // produce one (the file is replaced atomically).
   char sum[40];
-  std::snprintf(sum, sizeof sum, "checksum %016" PRIx64 "\n", Fnv1a64(out, out.size()));
+  std::snprintf(sum, sizeof sum, "checksum %016" PRIx64 "\n", Fnv1a64(out));
   out += sum;
   return out;
 }
@@ -210,7 +201,8 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
     return Status::Error(source + ": truncated checkpoint (no final checksum line)");
   }
   char expected[20];
-  std::snprintf(expected, sizeof expected, "%016" PRIx64, Fnv1a64(bytes, body_end));
+  std::snprintf(expected, sizeof expected, "%016" PRIx64,
+                Fnv1a64(std::string_view(bytes).substr(0, body_end)));
   if (tail.substr(key.size()) != expected) {
     return Status::Error(source + ": checksum mismatch (file damaged): stored " +
                          tail.substr(key.size()) + ", computed " + expected);

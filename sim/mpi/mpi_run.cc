@@ -119,10 +119,9 @@ class WorkerPool {
   }
 
   void Switch(std::uint64_t scheme, std::uint64_t point) {
-    std::shared_ptr<const AwgnChannel> channel;
+    std::shared_ptr<const Channel> channel;
     if (scheme != kNone) {
-      channel = std::make_shared<const AwgnChannel>(
-          MakePointChannel(chains_[scheme], cfg_.schemes[scheme].ebno_db[point]));
+      channel = MakePointChannel(chains_[scheme], cfg_.schemes[scheme].ebno_db[point]);
     }
     std::lock_guard<std::mutex> lock(mu_);
     ++generation_;
@@ -185,7 +184,7 @@ class WorkerPool {
       const std::uint64_t generation = generation_;
       const std::size_t scheme = static_cast<std::size_t>(scheme_);
       const auto point = static_cast<std::uint32_t>(point_);
-      const std::shared_ptr<const AwgnChannel> channel = channel_;
+      const std::shared_ptr<const Channel> channel = channel_;
       lock.unlock();
       if (!ws[scheme]) ws[scheme].emplace(chains_[scheme].MakeWorkspace());
       const auto t0 = Clock::now();
@@ -204,7 +203,7 @@ class WorkerPool {
   bool stop_ = false;
   std::uint64_t generation_ = 0;
   std::uint64_t scheme_ = kNone, point_ = kNone;
-  std::shared_ptr<const AwgnChannel> channel_;
+  std::shared_ptr<const Channel> channel_;
   std::deque<PointControl::Range> queue_;
   std::uint64_t queued_ = 0;
   std::vector<Result> outbox_;

@@ -55,7 +55,8 @@ int BitsPerSymbol(const std::vector<cf32>& points) { return std::countr_zero(poi
 // ---------------------------------------------------------------- Shannon --
 
 TEST(ShannonHartleyCapacity, OneMegahertzAt20DbIs6Point658Mbits) {
-  // C = B log2(1 + 100) = 6.658211 Mbit/s (FIELD_NOTES section 4; arithmetic).
+  // C = B log2(1 + S/N) (Shannon, Proc. IRE 1949; from memory): B = 1 MHz at
+  // S/N = 100 gives 6.658211 Mbit/s (arithmetic).
   EXPECT_NEAR(ShannonHartleyCapacity(1e6, 20.0), 6.658211483e6, 1.0);
   EXPECT_NEAR(ShannonHartleyCapacity(2e6, 0.0), 2e6, 1e-6);  // log2(2) = 1
 }
@@ -63,7 +64,8 @@ TEST(ShannonHartleyCapacity, OneMegahertzAt20DbIs6Point658Mbits) {
 TEST(ShannonMinEbn0Db, MatchesTheClassicLimits) {
   // eta -> 0: 10 log10(ln 2) = -1.591745 dB (Shannon, Proc. IRE 1949; from
   // memory; value by arithmetic). eta = 1: (2 - 1) / 1 = 1 -> 0 dB;
-  // eta = 2: 3 / 2 -> 10 log10(1.5) = 1.760913 dB (FIELD_NOTES section 4).
+  // eta = 2: 3 / 2 -> 10 log10(1.5) = 1.760913 dB (Eb/N0 >= (2^eta - 1) / eta,
+  // same source; value by arithmetic).
   EXPECT_NEAR(ShannonMinEbn0Db(0.0), -1.591745390, 1e-9);
   EXPECT_NEAR(ShannonMinEbn0Db(1e-12), -1.591745390, 1e-9);
   EXPECT_NEAR(ShannonMinEbn0Db(1e-6),

@@ -293,8 +293,8 @@ TEST(GaussianApproxThreshold, IsWithinATenthOfADecibelOfQuantizedDe) {
 // ----------------------------------------------------------- quantized --
 
 TEST(QuantizedThreshold, Regular36MatchesThePublishedBpThreshold) {
-  // sigma* = 0.8809 (RSU 2001 table of regular ensembles; FIELD_NOTES
-  // section 5), Eb/N0 = 1.1015 dB at rate 1/2. Computed: 0.88078 (1.1027 dB).
+  // sigma* = 0.8809 (T. Richardson, A. Shokrollahi, R. Urbanke, IEEE Trans.
+  // Inf. Theory 47(2), 2001, table of regular ensembles; from memory), Eb/N0 = 1.1015 dB at rate 1/2. Computed: 0.88078 (1.1027 dB).
   const ThresholdResult& r = Quantized36();
   EXPECT_NEAR(r.ebno_db, EbnoDb(0.8809, 0.5), 0.02);
   EXPECT_NEAR(r.sigma, 0.8809, 0.002);

@@ -205,8 +205,8 @@ TEST(UncodedBer, BpskMatchesPublishedValues) {
 }
 
 TEST(UncodedBer, QpskAnd4QamEqualBpskPerBit) {
-  // Gray QPSK = two independent BPSK channels at the same Eb/N0 (FIELD_NOTES
-  // section 1); Ps = 1 - (1 - p)^2 follows from independence.
+  // Gray QPSK = two independent BPSK channels at the same Eb/N0 (Proakis &
+  // Salehi, Digital Communications, 5th ed., ch. 4; from memory); Ps = 1 - (1 - p)^2 follows from independence.
   for (double ebn0_db : {-5.0, 0.0, 4.0, 9.59, 14.0}) {
     const double p = UncodedBer(kBpsk, ebn0_db);
     EXPECT_NEAR(UncodedBer(kQpsk, ebn0_db) / p, 1.0, 1e-14) << ebn0_db;
@@ -303,7 +303,8 @@ TEST(UncodedBer, LargeQamApproachesNearestNeighbourBoundAtHighSnr) {
 TEST(UncodedBer, GrayPskBerExceedsSerOverMAndApproachesItAtHighSnr) {
   // Every symbol error costs at least one bit, so Pb >= Ps / m; at high SNR
   // almost all errors go to a neighbour (one bit), so Pb -> Ps / m
-  // (FIELD_NOTES section 3 calls Ps / m an approximation).
+  // (Pb ~ Ps / m is the usual high-SNR approximation for Gray PSK: common
+  // practice).
   for (const Modulation& modulation : {k8Psk, k16Psk}) {
     const int m = std::countr_zero(static_cast<unsigned>(modulation.order));
     const double low = UncodedBer(modulation, 0.0) / (UncodedSer(modulation, 0.0) / m);

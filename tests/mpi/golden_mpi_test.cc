@@ -43,7 +43,7 @@ TEST_P(GoldenMpi, CountsMatchTheGoldenFile) {
   fs::create_directories(dir);
   // The extra schemes cover every block; two configs add the long units of
   // automatic unit sizing and a QC LDPC code.
-  for (const std::string run : {std::string("tests/golden/golden_extra.ini"),
+  for (const std::string& run : {std::string("tests/golden/golden_extra.ini"),
                                 std::string("configs/demo.ini"),
                                 std::string("configs/qpsk_ldpc_qc_n2016_r1-2.ini")}) {
     ASSERT_TRUE(by_run.count(run)) << run;

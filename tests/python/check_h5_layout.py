@@ -44,7 +44,7 @@ variable-length, ASCII or UTF-8, except stop_reason (variable-length).
 
 Consistency rules beyond types (each with its source):
   * ber = bit_errors / bits and fer = frame_errors / frames, relative
-    1e-12 (definition; FIELD_NOTES section 6).
+    1e-12 (definition).
   * 0 <= ber_low <= ber <= ber_high <= 1 (so ber_low = 0 when there are no
     errors), likewise for fer.
   * If scipy is importable, the interval equals the 95 % Clopper-Pearson
@@ -53,7 +53,8 @@ Consistency rules beyond types (each with its source):
     form is common practice); without scipy only the closed forms for
     k = 0 (ber_high = 1 - 0.025^(1/n)) and k = n are checked.
   * esno_db = ebno_db + 10 log10(info_bits_per_symbol) to 1e-9 dB and
-    info_bits_per_symbol = code_rate * bits_per_symbol (FIELD_NOTES 1).
+    info_bits_per_symbol = code_rate * bits_per_symbol (DEVELOPERS.md,
+    Conventions: Es/N0 = rho Eb/N0, rho = R m).
   * shannon_ebno_db = 10 log10((2^eta - 1) / eta), eta = spectral_efficiency,
     to 1e-6 dB (Shannon, Proc. IRE, 1949).
   * constrained_ebno_db is +inf exactly when info_bits_per_symbol >=

@@ -139,5 +139,63 @@ TEST(Cli, TheoryShannonHartley) {
   EXPECT_NE(o.text.find("6.65821e+06 bit/s"), std::string::npos) << o.text;
 }
 
+// One rule (README "Exit status"): a malformed or out-of-range command-line
+// value is a usage error (2) naming the option, decided before any file is
+// read or written; a path the file system refuses is 1. Both at once, with
+// nothing left behind (no DIR.ckpt for -o DIR).
+TEST(Cli, CommandLineValueErrorsAreUsageErrorsNamingTheOption) {
+  const fs::path dir = TempDir() / "usage";
+  fs::remove_all(dir);
+  fs::create_directories(dir / "sub");
+  const std::string run = "run " + Config("ci_tiny.ini") + " --quiet -o " + (dir / "x.h5").string();
+  Output o = Capgap(run + " --threads -1");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: run: --threads = -1: must be an integer in [0, 4096] (0: all cores)\n");
+  o = Capgap(run + " --threads 100000");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--threads = 100000"), std::string::npos) << o.text;
+  o = Capgap(run + " --seed x1");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: run: --seed = 'x1': must be an integer in [0, 18446744073709551615]\n");
+  o = Capgap(run + " --set sweep.seed");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--set 'sweep.seed': expected KEY=VALUE"), std::string::npos) << o.text;
+  o = Capgap("run " + Config("ci_tiny.ini") + " --quiet -o ''");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("-o '': must name the output file"), std::string::npos) << o.text;
+  o = Capgap("run " + Config("ci_tiny.ini") + " --quiet -o " + (dir / "sub").string() + "/");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("ends in '/'"), std::string::npos) << o.text;
+  o = Capgap("run " + Config("ci_tiny.ini") + " --quiet -o " + (dir / "sub").string());
+  EXPECT_EQ(o.status, 1);
+  EXPECT_EQ(o.text, "capgap: run: -o '" + (dir / "sub").string() + "': is a directory; give a file "
+                    "name, e.g. " + (dir / "sub").string() + "/curves.h5\n");
+  EXPECT_FALSE(fs::exists(dir / "sub.ckpt"));
+  EXPECT_TRUE(fs::is_empty(dir / "sub"));
+  EXPECT_FALSE(fs::exists(dir / "x.h5"));
+  EXPECT_FALSE(fs::exists(dir / "x.h5.ckpt"));
+  fs::remove_all(dir);
+}
+
+TEST(Cli, TheoryRefusesNonFiniteOutOfRangeAndConflictingValues) {
+  Output o = Capgap("theory --bandwidth 1e6 --snr-db nan");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: theory: --snr-db = nan: must be a number in [-100, 100] dB\n");
+  o = Capgap("theory --bandwidth 1e6 --snr-db 1e308");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--snr-db = 1e+308"), std::string::npos) << o.text;
+  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --rate 1e-300");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: theory: --rate = 1e-300: must be a number in [1e-06, 1] (code rate)\n");
+  o = Capgap("theory --bandwidth=-1 --snr-db 3");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--bandwidth = -1: must be a number in (0, 1e+15] Hz"), std::string::npos)
+      << o.text;
+  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --bandwidth 1e6 --snr-db 3");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.text.find("--bandwidth/--snr-db"), std::string::npos) << o.text;
+  EXPECT_NE(o.text.find("--modulation/--ebno-db"), std::string::npos) << o.text;
+}
+
 }  // namespace
 }  // namespace capgap

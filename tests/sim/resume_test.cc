@@ -60,7 +60,8 @@ Chain MakeChain(const RunConfig& cfg) {
 
 // Serial sum of units [0, k) of point 0.
 PointStart SerialPrefix(const Chain& chain, double ebno_db, std::uint32_t k) {
-  const AwgnChannel channel = MakePointChannel(chain, ebno_db);
+  const auto point_channel = MakePointChannel(chain, ebno_db);
+  const Channel& channel = *point_channel;
   ChainWorkspace ws = chain.MakeWorkspace();
   PointStart s;
   s.units = k;

@@ -5,7 +5,7 @@
 // distance spectrum (blocks/fec/distance_spectrum.h) is tight at 4-4.5 dB, so
 // the simulated BER must lie at or below it within the 99 % Clopper-Pearson
 // interval; BER 1e-5 is reached near 4.2-4.5 dB, about 5 dB of coding gain
-// over uncoded BPSK at 9.59 dB (common practice, FIELD_NOTES §5); hard
+// over uncoded BPSK at 9.59 dB (common practice); hard
 // decisions lose about 2 dB against soft (common practice). Bit errors of a
 // Viterbi decoder come in bursts, so the binomial interval on bits is too
 // narrow by roughly the mean burst length; the checks use a 99 % interval on

@@ -1,5 +1,5 @@
 // Energy bookkeeping tests: ComputeNoiseLevel on cases worked by hand from
-// the conventions of FIELD_NOTES s1 (Es = 1, Es/N0 = R m Eb/N0, N0 = 1 /
+// the conventions of DEVELOPERS.md, Conventions (Es = 1, Es/N0 = R m Eb/N0, N0 = 1 /
 // (Es/N0), sigma = sqrt(N0 / 2), per-sample SNR = Es/N0 - 10 log10 S).
 #include "blocks/core/energy.h"
 

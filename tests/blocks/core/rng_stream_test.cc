@@ -124,6 +124,40 @@ TEST(RngStream, DifferentPointUnitOrSubstreamGiveDifferentBlocks) {
   EXPECT_EQ(seen.size(), static_cast<std::size_t>(drawn));
 }
 
+// The substream numbers are part of every recorded count: a renumbering would
+// silently change every curve. Pinned here (values as first released).
+TEST(Substream, ValuesAreFixed) {
+  EXPECT_EQ(static_cast<std::uint32_t>(Substream::kBits), 0u);
+  EXPECT_EQ(static_cast<std::uint32_t>(Substream::kNoise), 1u);
+  EXPECT_EQ(static_cast<std::uint32_t>(Substream::kChannel), 2u);
+  EXPECT_EQ(static_cast<std::uint32_t>(Substream::kCode), 3u);
+  EXPECT_EQ(static_cast<std::uint32_t>(Substream::kFading), 4u);
+}
+
+TEST(RngStream, FadingSubstreamSharesNoBlockWithTheOthers) {
+  const PhiloxKey key = DeriveKey(2024u, "scheme");
+  std::set<PhiloxBlock> others;
+  for (Substream sub :
+       {Substream::kBits, Substream::kNoise, Substream::kChannel, Substream::kCode}) {
+    RngStream s(key, 0u, 0u, sub);
+    for (int j = 0; j < 64; ++j) others.insert(s.NextBlock());
+  }
+  RngStream fading(key, 0u, 0u, Substream::kFading);
+  for (int j = 0; j < 64; ++j) EXPECT_EQ(others.count(fading.NextBlock()), 0u) << j;
+}
+
+TEST(ReservedPointIndex, DistinctAndAboveTheFirstReservedIndex) {
+  const std::set<std::uint32_t> reserved = {kSpectrumPointIndex, kDisplayPointIndex,
+                                            kEyePointIndex};
+  EXPECT_EQ(reserved.size(), 3u);
+  for (std::uint32_t p : reserved) EXPECT_GE(p, kFirstReservedPointIndex);
+  // The values sim/ used before they were named here (keeps the displays'
+  // streams, and so the written spectra and eyes, unchanged).
+  EXPECT_EQ(kSpectrumPointIndex, 0xFFFFFFFFu);
+  EXPECT_EQ(kDisplayPointIndex, 0xFFFFFFFEu);
+  EXPECT_EQ(kEyePointIndex, 0xFFFFFFFDu);
+}
+
 TEST(RngStream, DifferentKeysGiveDifferentStreams) {
   RngStream a(DeriveKey(1u, "x"), 0u, 0u, Substream::kNoise);
   RngStream b(DeriveKey(2u, "x"), 0u, 0u, Substream::kNoise);

@@ -94,7 +94,8 @@ TEST(ConvCode, DepunctureInsertsZeroLlrsAtPuncturedPositions) {
 }
 
 TEST(ConvCode, EffectiveRateCountsTail) {
-  // FIELD_NOTES s1: R_eff = L / (n (L + K - 1)).
+  // R_eff = L / (n (L + K - 1)) for L information bits of a terminated code
+  // (common practice; tail bits counted, conv_code.h).
   const ConvCode code = MakeCode("133,171");
   EXPECT_DOUBLE_EQ(code.EffectiveRate(100), 100.0 / (2.0 * 106.0));
 }

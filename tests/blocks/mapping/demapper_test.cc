@@ -1,7 +1,7 @@
 // Demapper tests against a brute-force oracle written here in double
 // precision: the exact LLR ln sum_{b=0} exp(-|y-x|^2/N0) - ln sum_{b=1} ...
 // and its max-log form over all M points of the mapper's constellation
-// (demapper.h, FIELD_NOTES s2), and the nearest point. The demapper's fast
+// (demapper.h; DEVELOPERS.md, Conventions), and the nearest point. The demapper's fast
 // paths (closed forms for BPSK/QPSK/16-QAM, per-axis PAM sums for QAM,
 // chunked 2-D sums for PSK) must all agree with it.
 #include "blocks/mapping/demapper.h"
@@ -177,8 +177,8 @@ TEST(Demapper, LogMapStaysExactAtExtremeSnrAndFarSamples) {
   }
 }
 
-// FIELD_NOTES s2: BPSK 0 -> +1 gives L = 2y / sigma^2 = 4y / N0; only Re y is
-// used. QPSK (demapper.h): L(b0) = 2 sqrt2 Im y / N0, L(b1) = 2 sqrt2 Re y / N0.
+// BPSK 0 -> +1 gives L = 2y / sigma^2 = 4y / N0 (DEVELOPERS.md, Conventions;
+// common practice); only Re y is used. QPSK (demapper.h): L(b0) = 2 sqrt2 Im y / N0, L(b1) = 2 sqrt2 Re y / N0.
 TEST(Demapper, BpskAndQpskLlrsAreTheClosedForms) {
   const std::vector<cf32> y = {cf32(0.3f, 5.0f), cf32(-1.2f, -0.4f), cf32(0.0f, 1.0f)};
   const float n0 = 0.5f;

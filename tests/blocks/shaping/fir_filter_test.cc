@@ -144,6 +144,33 @@ TEST(DecimatingFir, DirectAndFftMatchTheConvolutionOracleAcrossFrames) {
   }
 }
 
+// Few taps at a large factor on a forced FFT path: N = bit_ceil(4 L) alone
+// would leave fewer than S new samples per block (no whole symbol per
+// block; formerly an endless loop), so N grows to hold one.
+TEST(StreamingFir, FftPathWithFewTapsAtLargeFactorMatchesTheOracle) {
+  const FilterCase cases[] = {{1, 8}, {2, 16}, {3, 64}, {1, 5}};
+  for (const FilterCase& c : cases) {
+    const std::size_t s = static_cast<std::size_t>(c.factor);
+    const std::vector<float> h = RandomTaps(c.taps, static_cast<std::uint32_t>(100 + c.taps));
+    const auto tx = InterpolatingFir::Create(h, c.factor, FirMethod::kFft).value();
+    const auto rx = DecimatingFir::Create(h, c.factor, FirMethod::kFft).value();
+    ASSERT_EQ(tx.method(), FirMethod::kFft);
+    ASSERT_GE(static_cast<std::size_t>(tx.fft_size()), c.taps - 1 + s);
+    ASSERT_EQ(rx.fft_size(), tx.fft_size());
+    const std::vector<cf32> x = QpskSymbols(700, 4);
+    std::vector<cd> u(x.size() * s, 0.0);
+    for (std::size_t j = 0; j < x.size(); ++j) u[j * s] = cd(x[j]);
+    EXPECT_LT(MaxAbsDiff(RunInterpolator(tx, x), Convolve(u, h)), Tolerance(c.taps))
+        << "L=" << c.taps << " S=" << c.factor;
+    const std::vector<cf32> r = QpskSymbols(700 * s, 5);
+    const std::vector<cd> full = Convolve(std::vector<cd>(r.begin(), r.end()), h);
+    std::vector<cd> want(700);
+    for (std::size_t k = 0; k < want.size(); ++k) want[k] = full[k * s];
+    EXPECT_LT(MaxAbsDiff(RunDecimator(rx, r), want), Tolerance(c.taps))
+        << "L=" << c.taps << " S=" << c.factor;
+  }
+}
+
 // The direct path sums in the same order however the stream is cut into
 // frames, so one call and many frames agree bit for bit.
 TEST(InterpolatingFir, DirectPathIsBitIdenticalForAnyFrameSplit) {

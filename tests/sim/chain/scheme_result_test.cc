@@ -8,6 +8,7 @@
 #include <cmath>
 
 #include "analysis/capacity.h"
+#include "blocks/channel/awgn_channel.h"
 #include "sim/engine/engine.h"
 
 namespace capgap {
@@ -91,7 +92,7 @@ TEST(SchemeResultViews, RcTwiceShowsIntersymbolInterference) {
 
 // Constellation at the demapper input: a noisy QPSK cloud whose mean squared
 // distance to the nearest point estimates N0 (Es = 1, complex noise of
-// variance N0, FIELD_NOTES s1; matched filter of unit-energy taps passes N0).
+// variance N0, DEVELOPERS.md Conventions; matched filter of unit-energy taps passes N0).
 // At 10 dB Eb/N0 (Es/N0 = 13 dB) wrong-nearest-point events have probability
 // ~1e-10, so the estimate is unbiased; 2000 samples of an exponential
 // variable give a standard error of N0/sqrt(2000) = 2.2 %: the band is +-4

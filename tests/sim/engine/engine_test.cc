@@ -5,6 +5,7 @@
 
 #include <gtest/gtest.h>
 
+#include "blocks/channel/awgn_channel.h"
 #include "sim/config/config.h"
 
 namespace capgap {

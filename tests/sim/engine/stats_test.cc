@@ -36,8 +36,8 @@ TEST(ClopperPearson, EndsHaveClosedForms) {
   EXPECT_EQ(all.high, 1.0);
 }
 
-// About 1000 errors give roughly +-6 % relative width at 95 % (FIELD_NOTES §6,
-// common practice): 1.96 / sqrt(1000) = 6.2 %.
+// About 1000 errors give roughly +-6 % relative width at 95 % (common
+// practice): 1.96 / sqrt(1000) = 6.2 %.
 TEST(ClopperPearson, ThousandErrorsGiveAboutSixPercent) {
   const Interval ci = ClopperPearson(1000, 100000000);
   const double p = 1e-5;

@@ -1,0 +1,51 @@
+// The channel role: what the one simulated chain (sim/chain/chain.h) needs
+// of any channel model. One instance per sweep point (it carries the point's
+// noise level, from the single ComputeNoiseLevel() of blocks/core/energy.h),
+// immutable and shared by all threads.
+//
+// Apply takes a block of transmitted samples at samples_per_symbol samples
+// per symbol, draws its noise from `noise` and any channel process (fading
+// gains, phase noise) from `process` (the unit's Substream::kFading
+// stream: AWGN draws nothing from it), and describes the per-symbol state the
+// receiver and the demapper must use (channel_state.h), writing any
+// per-symbol values into `storage`, which the caller sizes to the block's
+// symbols.
+//
+// additive_only(): the channel is exactly additive white Gaussian noise of
+// level() on every sample (gain 1). The chain may then keep BPSK on the real
+// axis (ApplyReal, I noise only) and use its fused uncoded BPSK kernel.
+#ifndef CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
+#define CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
+
+#include <span>
+
+#include "blocks/channel/channel_state.h"
+#include "blocks/core/energy.h"
+#include "blocks/core/rng_stream.h"
+#include "blocks/core/types.h"
+
+namespace capgap {
+
+struct ChannelStateStorage {
+  std::span<cf32> gain;  // one per symbol of the block
+  std::span<float> n0;   // one per symbol of the block
+};
+
+class Channel {
+ public:
+  virtual ~Channel() = default;
+  // The point's noise level (for fading channels: at the average SNR).
+  virtual const NoiseLevel& level() const = 0;
+  float n0() const { return static_cast<float>(level().n0); }
+  virtual bool additive_only() const { return false; }
+
+  virtual void Apply(std::span<cf32> samples, int samples_per_symbol, RngStream& noise,
+                     RngStream& process, ChannelStateStorage storage,
+                     ChannelStateView& state) const = 0;
+  // Real-axis signal (BPSK): in-phase noise only. REQUIRES additive_only().
+  virtual void ApplyReal(std::span<float> samples, RngStream& noise) const = 0;
+};
+
+}  // namespace capgap
+
+#endif  // CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_

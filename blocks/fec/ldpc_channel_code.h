@@ -1,0 +1,54 @@
+// LDPC codes in the code-family role (channel_code.h): an LdpcCode with its
+// systematic encoder and its decoder (ldpc_encoder.h, ldpc_decoder.h).
+// info_bits() = k = n - rank(H) at the encoder's info_positions();
+// coded_bits() = n; rate() = k / n. Decoding takes a whole work unit per call
+// (frames side by side in the decoder's SIMD lanes); every frame's result is
+// what decoding it alone gives (ldpc_decoder.h), and its iterations and
+// convergence (zero syndrome) are reported.
+#ifndef CAPGAP_BLOCKS_FEC_LDPC_CHANNEL_CODE_H_
+#define CAPGAP_BLOCKS_FEC_LDPC_CHANNEL_CODE_H_
+
+#include <memory>
+
+#include "blocks/core/status.h"
+#include "blocks/fec/channel_code.h"
+#include "blocks/fec/ldpc_code.h"
+#include "blocks/fec/ldpc_decoder.h"
+#include "blocks/fec/ldpc_encoder.h"
+
+namespace capgap {
+
+class LdpcChannelCode final : public ChannelCode {
+ public:
+  // Messages of the encoder's and decoder's Create() are passed on, prefixed
+  // "code: " and "decoder: ".
+  static Result<std::shared_ptr<const LdpcChannelCode>> Create(
+      std::shared_ptr<const LdpcCode> code, const LdpcDecoderOptions& options);
+
+  const LdpcCode& code() const { return *code_; }
+  const LdpcEncoder& encoder() const { return encoder_; }
+  const LdpcDecoder& decoder() const { return decoder_; }
+
+  std::size_t info_bits() const override { return static_cast<std::size_t>(encoder_.info_bits()); }
+  std::size_t coded_bits() const override { return static_cast<std::size_t>(code_->length()); }
+  double rate() const override {
+    return static_cast<double>(encoder_.info_bits()) / code_->length();
+  }
+  bool iterative() const override { return true; }
+  std::uint32_t batch_frames(std::uint32_t unit_frames) const override { return unit_frames; }
+  std::unique_ptr<Workspace> MakeWorkspace(std::uint32_t max_frames) const override;
+  void Encode(std::span<const Bit> info, std::span<Bit> coded, Workspace& ws) const override;
+  void Decode(std::span<const float> llrs, std::span<Bit> info,
+              std::span<FrameDecodeResult> results, Workspace& ws) const override;
+
+ private:
+  LdpcChannelCode(std::shared_ptr<const LdpcCode> code, LdpcEncoder encoder, LdpcDecoder decoder)
+      : code_(std::move(code)), encoder_(std::move(encoder)), decoder_(std::move(decoder)) {}
+  std::shared_ptr<const LdpcCode> code_;
+  LdpcEncoder encoder_;
+  LdpcDecoder decoder_;
+};
+
+}  // namespace capgap
+
+#endif  // CAPGAP_BLOCKS_FEC_LDPC_CHANNEL_CODE_H_
