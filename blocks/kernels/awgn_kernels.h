@@ -23,6 +23,7 @@
 
 #include "blocks/core/rng_stream.h"
 #include "blocks/core/types.h"
+#include "blocks/kernels/dispatch.h"  // ForceScalarKernels, ScalarKernelsForced
 
 namespace capgap {
 
@@ -39,16 +40,6 @@ void AddComplexNoise(std::span<cf32> samples, float sigma_per_dim, RngStream& st
 // Name of the instruction set the kernels dispatch to ("AVX3", "AVX2",
 // "SSE4", "EMU128"/"SCALAR", ...), written into every output file.
 const char* NoiseKernelTarget();
-
-// Forces the portable scalar path for the rest of the process (CLI --scalar,
-// tests). Returns the previous setting. Applies to every kernel family in
-// blocks/kernels (noise and the fused BPSK kernel alike).
-bool ForceScalarKernels(bool force);
-
-// The current setting of ForceScalarKernels (true also under
-// CAPGAP_FORCE_SCALAR); lets the other kernel families follow it.
-bool ScalarKernelsForced();
-
 }  // namespace capgap
 
 #endif  // CAPGAP_BLOCKS_KERNELS_AWGN_KERNELS_H_

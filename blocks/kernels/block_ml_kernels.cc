@@ -2,9 +2,8 @@
 // instantiations of block_ml_kernels-inl.h (Google Highway dynamic dispatch,
 // compiled once per instruction set through hwy/foreach_target.h), the
 // dispatch choice and the public entry points of block_ml_kernels.h. The
-// target is chosen once per process (first call): the best one compiled in
-// and supported by the running CPU. ForceScalarKernels(true)
-// (awgn_kernels.h) or a CAPGAP_FORCE_SCALAR build routes every call to the
+// target is chosen once per process (first call), by the shared rule of
+// dispatch.h. ForceScalarKernels(true) or a CAPGAP_FORCE_SCALAR build routes every call to the
 // oracle of block_ml_reference.h, with identical decisions.
 #include "blocks/kernels/block_ml_kernels.h"
 
@@ -14,7 +13,7 @@
 #include "blocks/core/types.h"
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/block_ml_reference.h"
-#include "hwy/targets.h"
+#include "blocks/kernels/dispatch.h"
 
 #ifndef CAPGAP_FORCE_SCALAR
 // clang-format off
@@ -27,51 +26,39 @@
 // clang-format on
 
 HWY_BEFORE_NAMESPACE();
-namespace capgap {
-namespace HWY_NAMESPACE {
+namespace capgap::HWY_NAMESPACE {
 
+std::size_t BlockMlLanesEntry() { return BlockMlKernelLanes(); }
 bool BlockMlDecodeEntry(const BlockMlView& v, const float* llrs, std::size_t frames,
                         std::uint32_t* best, void* workspace) {
   return BlockMlDecodeKernel(v, llrs, frames, best, workspace);
 }
-std::size_t BlockMlLanesEntry() { return BlockMlKernelLanes(); }
-std::int64_t BlockMlTargetEntry() { return HWY_TARGET; }
 
-// NOLINTNEXTLINE(google-readability-namespace-comments)
-}  // namespace HWY_NAMESPACE
-}  // namespace capgap
+}  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
 #endif  // CAPGAP_FORCE_SCALAR
 
 #if defined(CAPGAP_FORCE_SCALAR) || HWY_ONCE
 namespace capgap {
-namespace {
 
+// Dispatch table (dispatch.h).
+struct BlockMlTable {
+  bool (*decode)(const BlockMlView&, const float*, std::size_t, std::uint32_t*, void*);
+  std::size_t lanes;  // 0: the target does not run the kernel
+  static BlockMlTable Resolve();
+};
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(BlockMlDecodeEntry);
 HWY_EXPORT(BlockMlLanesEntry);
-HWY_EXPORT(BlockMlTargetEntry);
-
-using DecodeFn = bool (*)(const BlockMlView&, const float*, std::size_t, std::uint32_t*, void*);
-struct ChosenBlockMl {
-  DecodeFn decode;
-  std::size_t lanes;  // 0: the target does not run the kernel
-  const char* name;
-};
-
-// Resolved once (thread-safe static initialisation).
-const ChosenBlockMl& Chosen() {
-  static const ChosenBlockMl chosen = [] {
-    hwy::GetChosenTarget().Update(hwy::SupportedTargets());
-    ChosenBlockMl c;
-    c.decode = &HWY_DYNAMIC_DISPATCH(BlockMlDecodeEntry);
-    c.lanes = HWY_DYNAMIC_DISPATCH(BlockMlLanesEntry)();
-    c.name = hwy::TargetName(HWY_DYNAMIC_DISPATCH(BlockMlTargetEntry)());
-    return c;
-  }();
-  return chosen;
+BlockMlTable BlockMlTable::Resolve() {
+  return {&HWY_DYNAMIC_DISPATCH(BlockMlDecodeEntry), HWY_DYNAMIC_DISPATCH(BlockMlLanesEntry)()};
 }
+static const auto& Chosen() { return kernel_dispatch::ChosenKernels<BlockMlTable>(); }
+#endif  // CAPGAP_FORCE_SCALAR
 
+namespace {
+
+#ifndef CAPGAP_FORCE_SCALAR
 bool UseSimd(std::size_t lanes) {
   return !ScalarKernelsForced() && Chosen().lanes > 0 && Chosen().lanes == lanes;
 }
@@ -169,11 +156,8 @@ void BlockMlDecode(const BlockMlView& view, const float* llrs, std::size_t frame
 }
 
 const char* BlockMlKernelTarget(std::size_t lanes) {
-#ifndef CAPGAP_FORCE_SCALAR
-  if (UseSimd(lanes)) return Chosen().name;
-#endif
-  (void)lanes;
-  return hwy::TargetName(HWY_SCALAR);
+  return kernel_dispatch::KernelTargetName<BlockMlTable>(
+      [lanes](const BlockMlTable& t) { return t.lanes > 0 && t.lanes == lanes; });
 }
 
 }  // namespace capgap

@@ -3,10 +3,8 @@
 // once per instruction set through hwy/foreach_target.h), the dispatch table,
 // and the public entry points of bpsk_kernels.h.
 //
-// The target is chosen once per process, by the rule of awgn_kernels.cc (the
-// best target both compiled in and supported by the running CPU, after
-// refreshing Highway's view of the CPU), so the fused kernel and
-// AddRealNoise always run the same target's arithmetic. When the scalar
+// The target is chosen once per process, by the shared rule of dispatch.h, so
+// the fused kernel and AddRealNoise always run the same target's arithmetic. When the scalar
 // kernels are forced (ScalarKernelsForced()) or CAPGAP_FORCE_SCALAR is set,
 // the oracle of bpsk_reference.h runs instead, matching the scalar noise
 // path. Every path advances the noise stream by ceil(n / 2) blocks.
@@ -19,7 +17,7 @@
 #include "blocks/kernels/awgn_kernels.h"
 #include "blocks/kernels/awgn_reference.h"
 #include "blocks/kernels/bpsk_reference.h"
-#include "hwy/targets.h"
+#include "blocks/kernels/dispatch.h"
 
 #ifndef CAPGAP_FORCE_SCALAR
 // clang-format off
@@ -32,8 +30,7 @@
 // clang-format on
 
 HWY_BEFORE_NAMESPACE();
-namespace capgap {
-namespace HWY_NAMESPACE {
+namespace capgap::HWY_NAMESPACE {
 
 // Plain signatures for the dispatch table.
 std::uint64_t BpskBytesEntry(const Bit* bits, std::size_t n, float sigma, PhiloxKey key,
@@ -45,48 +42,29 @@ std::uint64_t BpskRandomEntry(std::size_t n, PhiloxKey bit_key, const PhiloxCoun
                               const PhiloxCounter& noise_counter) {
   return BpskHardErrorsRandomKernel(n, bit_key, bit_counter, sigma, noise_key, noise_counter);
 }
-std::int64_t BpskCompiledTargetEntry() { return HWY_TARGET; }
 
-// NOLINTNEXTLINE(google-readability-namespace-comments)
-}  // namespace HWY_NAMESPACE
-}  // namespace capgap
+}  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
 #endif  // CAPGAP_FORCE_SCALAR
 
 #if defined(CAPGAP_FORCE_SCALAR) || HWY_ONCE
 namespace capgap {
-namespace {
 
+// Dispatch table (dispatch.h).
+struct BpskTable {
+  std::uint64_t (*bytes)(const Bit*, std::size_t, float, PhiloxKey, const PhiloxCounter&);
+  std::uint64_t (*random)(std::size_t, PhiloxKey, const PhiloxCounter&, float, PhiloxKey,
+                          const PhiloxCounter&);
+  static BpskTable Resolve();
+};
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(BpskBytesEntry);
 HWY_EXPORT(BpskRandomEntry);
-HWY_EXPORT(BpskCompiledTargetEntry);
-
-using BytesFn = std::uint64_t (*)(const Bit*, std::size_t, float, PhiloxKey, const PhiloxCounter&);
-using RandomFn = std::uint64_t (*)(std::size_t, PhiloxKey, const PhiloxCounter&, float, PhiloxKey,
-                                   const PhiloxCounter&);
-struct ChosenKernel {
-  BytesFn bytes;
-  RandomFn random;
-  const char* name;
-};
-
-// Resolved once (thread-safe static initialisation), exactly as in
-// awgn_kernels.cc.
-const ChosenKernel& Chosen() {
-  static const ChosenKernel chosen = [] {
-    hwy::GetChosenTarget().Update(hwy::SupportedTargets());
-    ChosenKernel c;
-    c.bytes = &HWY_DYNAMIC_DISPATCH(BpskBytesEntry);
-    c.random = &HWY_DYNAMIC_DISPATCH(BpskRandomEntry);
-    c.name = hwy::TargetName(HWY_DYNAMIC_DISPATCH(BpskCompiledTargetEntry)());
-    return c;
-  }();
-  return chosen;
+BpskTable BpskTable::Resolve() {
+  return {&HWY_DYNAMIC_DISPATCH(BpskBytesEntry), &HWY_DYNAMIC_DISPATCH(BpskRandomEntry)};
 }
+static const auto& Chosen() { return kernel_dispatch::ChosenKernels<BpskTable>(); }
 #endif  // CAPGAP_FORCE_SCALAR
-
-}  // namespace
 
 std::uint64_t CountBpskHardErrors(std::span<const Bit> bits, float sigma, RngStream& noise) {
 #ifndef CAPGAP_FORCE_SCALAR
@@ -116,10 +94,7 @@ std::uint64_t CountBpskHardErrorsOfRandomBits(std::size_t n_bits, RngStream& bit
 }
 
 const char* BpskKernelTarget() {
-#ifndef CAPGAP_FORCE_SCALAR
-  if (!ScalarKernelsForced()) return Chosen().name;
-#endif
-  return hwy::TargetName(HWY_SCALAR);
+  return kernel_dispatch::KernelTargetName<BpskTable>();
 }
 
 }  // namespace capgap

@@ -3,9 +3,8 @@
 // hwy/foreach_target.h), the dispatch choice, the plan builders and the public
 // entry points of fir_kernels.h.
 //
-// The target is chosen once per process (first use), by the rule of
-// awgn_kernels.cc: the best target compiled in and supported by the running
-// CPU, so no instruction the CPU lacks is ever executed. The decimator's tap
+// The target is chosen once per process (first use), by the shared rule of
+// dispatch.h. The decimator's tap
 // table is built by that same target when a plan is made. ForceScalarKernels
 // (awgn_kernels.h) is read on every call and routes it to the oracle of
 // fir_reference.h, whatever the plan; a CAPGAP_FORCE_SCALAR build compiles no
@@ -18,8 +17,8 @@
 #include <span>
 
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/dispatch.h"
 #include "blocks/kernels/fir_reference.h"
-#include "hwy/targets.h"
 
 #ifndef CAPGAP_FORCE_SCALAR
 // clang-format off
@@ -32,8 +31,7 @@
 // clang-format on
 
 HWY_BEFORE_NAMESPACE();
-namespace capgap {
-namespace HWY_NAMESPACE {
+namespace capgap::HWY_NAMESPACE {
 
 // Plain signatures for the dispatch table.
 void FirInterpolateEntry(const FirInterpolatorPlan& plan, const cf32* x, std::size_t n,
@@ -46,50 +44,33 @@ void FirDecimateEntry(const FirDecimatorPlan& plan, const cf32* in, std::size_t 
 }
 void FirBuildTableEntry(FirDecimatorPlan& plan) { FirBuildDecimatorTableKernel(plan); }
 std::size_t FirFloatsEntry() { return FirKernelFloats(); }
-std::int64_t FirTargetEntry() { return HWY_TARGET; }
 
-// NOLINTNEXTLINE(google-readability-namespace-comments)
-}  // namespace HWY_NAMESPACE
-}  // namespace capgap
+}  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
 #endif  // CAPGAP_FORCE_SCALAR
 
 #if defined(CAPGAP_FORCE_SCALAR) || HWY_ONCE
 namespace capgap {
-namespace {
 
+// Dispatch table (dispatch.h).
+struct FirTable {
+  void (*interpolate)(const FirInterpolatorPlan&, const cf32*, std::size_t, cf32*);
+  void (*decimate)(const FirDecimatorPlan&, const cf32*, std::size_t, cf32*);
+  void (*build)(FirDecimatorPlan&);
+  std::size_t floats;  // 0: the chosen target has no vector kernel
+  static FirTable Resolve();
+};
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(FirInterpolateEntry);
 HWY_EXPORT(FirDecimateEntry);
 HWY_EXPORT(FirBuildTableEntry);
 HWY_EXPORT(FirFloatsEntry);
-HWY_EXPORT(FirTargetEntry);
-
-struct ChosenFir {
-  void (*interpolate)(const FirInterpolatorPlan&, const cf32*, std::size_t, cf32*);
-  void (*decimate)(const FirDecimatorPlan&, const cf32*, std::size_t, cf32*);
-  void (*build)(FirDecimatorPlan&);
-  std::size_t floats;  // 0: the chosen target has no vector kernel
-  const char* name;
-};
-
-// Resolved once (thread-safe static initialisation).
-const ChosenFir& Chosen() {
-  static const ChosenFir chosen = [] {
-    hwy::GetChosenTarget().Update(hwy::SupportedTargets());
-    ChosenFir c;
-    c.interpolate = &HWY_DYNAMIC_DISPATCH(FirInterpolateEntry);
-    c.decimate = &HWY_DYNAMIC_DISPATCH(FirDecimateEntry);
-    c.build = &HWY_DYNAMIC_DISPATCH(FirBuildTableEntry);
-    c.floats = HWY_DYNAMIC_DISPATCH(FirFloatsEntry)();
-    c.name = hwy::TargetName(HWY_DYNAMIC_DISPATCH(FirTargetEntry)());
-    return c;
-  }();
-  return chosen;
+FirTable FirTable::Resolve() {
+  return {&HWY_DYNAMIC_DISPATCH(FirInterpolateEntry), &HWY_DYNAMIC_DISPATCH(FirDecimateEntry),
+          &HWY_DYNAMIC_DISPATCH(FirBuildTableEntry), HWY_DYNAMIC_DISPATCH(FirFloatsEntry)()};
 }
+static const auto& Chosen() { return kernel_dispatch::ChosenKernels<FirTable>(); }
 #endif  // CAPGAP_FORCE_SCALAR
-
-}  // namespace
 
 std::size_t FirInterpolatorPlan::history() const {
   const auto s = static_cast<std::size_t>(factor);
@@ -164,10 +145,8 @@ void FirDecimate(const FirDecimatorPlan& plan, const cf32* in, std::size_t n_out
 }
 
 const char* FirKernelTarget() {
-#ifndef CAPGAP_FORCE_SCALAR
-  if (!ScalarKernelsForced() && Chosen().floats > 0) return Chosen().name;
-#endif
-  return hwy::TargetName(HWY_SCALAR);
+  return kernel_dispatch::KernelTargetName<FirTable>(
+      [](const FirTable& t) { return t.floats > 0; });
 }
 
 }  // namespace capgap

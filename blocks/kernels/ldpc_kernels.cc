@@ -2,8 +2,7 @@
 // ldpc_kernels-inl.h (Google Highway dynamic dispatch, compiled once per
 // instruction set through hwy/foreach_target.h), the dispatch choice and the
 // public entry points of ldpc_kernels.h. The target is chosen once per
-// process (first call): the best one compiled in and supported by the running
-// CPU, so no instruction the CPU lacks is executed. ForceScalarKernels(true)
+// process (first call), by the shared rule of dispatch.h. ForceScalarKernels(true)
 // (awgn_kernels.h) or a CAPGAP_FORCE_SCALAR build routes every call to the
 // one-frame oracle of ldpc_reference.h, frame after frame, with identical
 // results.
@@ -13,8 +12,8 @@
 #include <cstdint>
 
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/dispatch.h"
 #include "blocks/kernels/ldpc_reference.h"
-#include "hwy/targets.h"
 
 #ifndef CAPGAP_FORCE_SCALAR
 // clang-format off
@@ -27,61 +26,45 @@
 // clang-format on
 
 HWY_BEFORE_NAMESPACE();
-namespace capgap {
-namespace HWY_NAMESPACE {
+namespace capgap::HWY_NAMESPACE {
 
 bool LdpcDecodeEntry(const LdpcFixedArgs& args, const float* llrs, std::size_t frames, Bit* decided,
                      LdpcFrameResult* results, void* workspace) {
   return LdpcDecodeFixedKernel(args, llrs, frames, decided, results, workspace);
 }
 std::size_t LdpcLanesEntry(LdpcLane lane) { return LdpcFixedKernelLanes(lane); }
-std::int64_t LdpcTargetEntry() { return HWY_TARGET; }
 
-// NOLINTNEXTLINE(google-readability-namespace-comments)
-}  // namespace HWY_NAMESPACE
-}  // namespace capgap
+}  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
 #endif  // CAPGAP_FORCE_SCALAR
 
 #if defined(CAPGAP_FORCE_SCALAR) || HWY_ONCE
 namespace capgap {
-namespace {
 
+// Dispatch table (dispatch.h).
+struct LdpcTable {
+  bool (*decode)(const LdpcFixedArgs&, const float*, std::size_t, Bit*, LdpcFrameResult*, void*);
+  std::size_t lanes8;   // int8 lanes; 0: the target does not run the kernel
+  std::size_t lanes16;  // int16 lanes
+  static LdpcTable Resolve();
+};
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(LdpcDecodeEntry);
 HWY_EXPORT(LdpcLanesEntry);
-HWY_EXPORT(LdpcTargetEntry);
-
-using DecodeFn = bool (*)(const LdpcFixedArgs&, const float*, std::size_t, Bit*, LdpcFrameResult*,
-                          void*);
-struct ChosenLdpc {
-  DecodeFn decode;
-  std::size_t lanes8;   // int8 lanes; 0: the target does not run the kernel
-  std::size_t lanes16;  // int16 lanes
-  const char* name;
-};
-
-// Resolved once (thread-safe static initialisation).
-const ChosenLdpc& Chosen() {
-  static const ChosenLdpc chosen = [] {
-    hwy::GetChosenTarget().Update(hwy::SupportedTargets());
-    ChosenLdpc c;
-    c.decode = &HWY_DYNAMIC_DISPATCH(LdpcDecodeEntry);
-    c.lanes8 = HWY_DYNAMIC_DISPATCH(LdpcLanesEntry)(LdpcLane::kInt8);
-    c.lanes16 = HWY_DYNAMIC_DISPATCH(LdpcLanesEntry)(LdpcLane::kInt16);
-    c.name = hwy::TargetName(HWY_DYNAMIC_DISPATCH(LdpcTargetEntry)());
-    return c;
-  }();
-  return chosen;
+LdpcTable LdpcTable::Resolve() {
+  return {&HWY_DYNAMIC_DISPATCH(LdpcDecodeEntry),
+          HWY_DYNAMIC_DISPATCH(LdpcLanesEntry)(LdpcLane::kInt8),
+          HWY_DYNAMIC_DISPATCH(LdpcLanesEntry)(LdpcLane::kInt16)};
 }
+static const auto& Chosen() { return kernel_dispatch::ChosenKernels<LdpcTable>(); }
 
+namespace {
 std::size_t ChosenLanes(LdpcLane lane) {
   return lane == LdpcLane::kInt8 ? Chosen().lanes8 : Chosen().lanes16;
 }
 bool UseSimd() { return !ScalarKernelsForced() && Chosen().lanes8 > 0; }
-#endif  // CAPGAP_FORCE_SCALAR
-
 }  // namespace
+#endif  // CAPGAP_FORCE_SCALAR
 
 std::size_t LdpcFixedMaxLanes(LdpcLane lane) {
 #ifndef CAPGAP_FORCE_SCALAR
@@ -129,10 +112,8 @@ void LdpcDecodeFixed(const LdpcFixedArgs& args, const float* llrs, std::size_t f
 }
 
 const char* LdpcKernelTarget() {
-#ifndef CAPGAP_FORCE_SCALAR
-  if (UseSimd()) return Chosen().name;
-#endif
-  return hwy::TargetName(HWY_SCALAR);
+  return kernel_dispatch::KernelTargetName<LdpcTable>(
+      [](const LdpcTable& t) { return t.lanes8 > 0; });
 }
 
 }  // namespace capgap

@@ -17,11 +17,15 @@
 //    equal the full 2-D sums.
 //  * M-PSK, M >= 8: the full sums over the M points.
 // Log-MAP evaluates exp and log with branch-free polynomial approximations
-// (errors about 1e-7, see demapper.cc); every sum is shifted by its own
-// largest term, so nothing overflows or underflows for any y, N0.
-// The kernels are auto-vectorised and dispatched once per process to the best
-// of baseline x86-64, AVX2 and AVX-512 (demapper.cc); without FMA contraction,
-// so the outputs are bit-identical whichever version runs.
+// (errors about 1e-7, see blocks/kernels/demap_reference.h); every sum is
+// shifted by its own largest term, so nothing overflows or underflows for any
+// y, N0. The inner loops are the kernels of blocks/kernels/demap_kernels.h
+// (Highway dispatch chosen once per process, DemapKernelTarget(); --scalar
+// runs their scalar oracle), bit-identical on every target.
+// With a per-symbol channel state (y = h x + n, noise variance N0 per symbol,
+// coherent detection with known h, common practice) the metric is
+// |y - h x|^2 / N0, evaluated by brute force over the M points
+// (generic_demapper.h): exact but slow, meant for fading channels.
 // Hard decisions are the label of the nearest point (per-axis slicer for QAM,
 // signs for BPSK/QPSK, the angular sector for M-PSK); ties, which have
 // probability zero under noise, are broken arbitrarily.
@@ -36,6 +40,8 @@
 
 #include "blocks/core/status.h"
 #include "blocks/core/types.h"
+#include "blocks/channel/channel_state.h"
+#include "blocks/kernels/demap_kernels.h"
 #include "blocks/mapping/mapper.h"
 
 namespace capgap {
@@ -60,21 +66,30 @@ class Demapper {
   // normal float (1 / n0 finite).
   void Demap(std::span<const cf32> received, float n0, std::span<float> llrs) const;
 
+  // The same with a per-symbol channel state: symbol s has gain
+  // state.gain[s] (1 when empty) and noise variance state.n0[s]
+  // (state.n0_uniform when empty). With both spans empty this is exactly
+  // Demap(received, state.n0_uniform, llrs). REQUIRES: non-empty spans have
+  // received.size() entries; every N0 > 0 and normal; gains non-zero.
+  void Demap(std::span<const cf32> received, const ChannelStateView& state,
+             std::span<float> llrs) const;
+
   // Nearest-point (minimum distance) decisions, label bits of that point.
   // REQUIRES: bits.size() == bits_per_symbol() * received.size().
   void HardDecide(std::span<const cf32> received, std::span<Bit> bits) const;
 
- private:
-  // Which closed form / kernel family the modulation uses (chosen in Create).
-  enum class Path { kBpsk, kQpsk, kPam, kPsk };
+  // The constellation tables the demap kernels read (valid while this
+  // Demapper lives); for tests and benchmarks of blocks/kernels.
+  DemapKernelArgs kernel_args() const;
 
+ private:
   Demapper() = default;
   DemapMethod method_ = DemapMethod::kMaxLog;
   Modulation modulation_;
   int bits_per_symbol_ = 1;
   std::vector<cf32> points_;
   std::vector<float> pam_levels_;
-  Path path_ = Path::kBpsk;
+  DemapKernelPath path_ = DemapKernelPath::kBpsk;
   int axis_bits_ = 0;         // p = m / 2 for square QAM
   float level_scale_ = 1.0f;  // s: the QAM levels are s (L - 1 - 2j)
   // M-PSK (M >= 8): points by label split into Re and Im, and the directions

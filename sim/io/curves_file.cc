@@ -137,6 +137,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
     NumAttr(file, "threads", H5::PredType::NATIVE_INT, meta.threads);
     NumAttr(file, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
     StrAttr(file, "kernel_target", meta.kernel_target);
+    StrAttr(file, "demap_kernel_target", meta.demap_kernel_target);
     std::string order;
     for (const SchemeResult& r : schemes) order += (order.empty() ? "" : ",") + r.scheme.name;
     StrAttr(file, "schemes", order);

@@ -23,6 +23,7 @@ struct RunMetadata {
   int threads = 1;
   std::uint64_t seed = 0;
   std::string kernel_target;
+  std::string demap_kernel_target;
   std::string created_utc;  // ISO 8601
 };
 

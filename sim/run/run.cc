@@ -15,6 +15,7 @@
 #include <vector>
 
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/demap_kernels.h"
 #include "sim/chain/chain.h"
 #include "sim/chain/scheme_result.h"
 #include "sim/config/config.h"
@@ -318,6 +319,7 @@ int Run(const RunOptions& o) {
   meta.threads = nthreads;
   meta.seed = cfg.sweep.seed;
   meta.kernel_target = NoiseKernelTarget();
+  meta.demap_kernel_target = DemapKernelTarget();
   meta.created_utc = UtcNow();
   if (Status s = WriteCurvesFile(output, meta, results); !s.ok()) return fail(s.message());
   ckpt.complete = true;
