@@ -3,20 +3,12 @@
 #include <gtest/gtest.h>
 
 #include "sim/chain/registry.h"
+#include "tests/sim/config/later_families.h"
 
 #include "sim/config/config.h"
 
 namespace capgap {
 namespace {
-
-// Families registered after none, conv and ldpc (sim/chain/registry.cc)
-// extend the lists in messages; the first three stay exactly as written here.
-std::string LaterCodeWords() {
-  std::string s;
-  const auto words = CodeFamilyWords();
-  for (std::size_t i = 3; i < words.size(); ++i) s += ", " + std::string(words[i]);
-  return s;
-}
 
 std::string Scheme(const std::string& extra) {
   return "[sweep]\nebno_db = 0:1:2\n\n[scheme.a]\nmodulation = qpsk\ncode = ldpc\n" + extra;

@@ -5,19 +5,11 @@
 #include <gtest/gtest.h>
 
 #include "sim/chain/registry.h"
+#include "tests/sim/config/later_families.h"
 #include "sim/config/key_table.h"
 
 namespace capgap {
 namespace {
-
-// Families registered after none, conv and ldpc (sim/chain/registry.cc)
-// extend the lists in messages; the first three stay exactly as written here.
-std::string LaterCodeWords() {
-  std::string s;
-  const auto words = CodeFamilyWords();
-  for (std::size_t i = 3; i < words.size(); ++i) s += ", " + std::string(words[i]);
-  return s;
-}
 
 // The keys that families registered after none, conv and ldpc add to the
 // [scheme.NAME] key list (in registry order, names not listed before).
