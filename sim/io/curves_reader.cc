@@ -125,16 +125,26 @@ H5::Attribute ScalarAttr(const H5::H5Object& obj, const std::string& object, con
   return a;
 }
 
-double NumberAttr(const H5::H5Object& obj, const std::string& object, const char* name) {
-  double v = 0;
-  ScalarAttr(obj, object, name, Cls::kNumber).read(H5::PredType::NATIVE_DOUBLE, &v);
+// Reads a checked scalar attribute as `type` (HDF5 converts the number).
+template <typename T>
+T ReadScalar(const H5::H5Object& obj, const std::string& object, const char* name, Cls cls,
+             const H5::PredType& type) {
+  T v{};
+  H5::Attribute a = ScalarAttr(obj, object, name, cls);
+  try {
+    a.read(type, &v);
+  } catch (const H5::Exception& e) {
+    Refuse(AttrName(object, name), "cannot be read (" + e.getDetailMsg() + ")");
+  }
   return v;
 }
 
+double NumberAttr(const H5::H5Object& obj, const std::string& object, const char* name) {
+  return ReadScalar<double>(obj, object, name, Cls::kNumber, H5::PredType::NATIVE_DOUBLE);
+}
+
 int IntAttr(const H5::H5Object& obj, const std::string& object, const char* name) {
-  int v = 0;
-  ScalarAttr(obj, object, name, Cls::kInteger).read(H5::PredType::NATIVE_INT, &v);
-  return v;
+  return ReadScalar<int>(obj, object, name, Cls::kInteger, H5::PredType::NATIVE_INT);
 }
 
 // Fixed-length strings of at most kMaxCurveStringBytes, or variable-length
@@ -203,7 +213,11 @@ Series CheckSeries(const H5::Group& g, const std::string& gpath, const char* nam
 template <typename T>
 std::vector<T> ReadSeries(const Series& s, const H5::PredType& type) {
   std::vector<T> v(static_cast<std::size_t>(s.length));
-  if (!v.empty()) s.dataset.read(v.data(), type);
+  try {
+    if (!v.empty()) s.dataset.read(v.data(), type);
+  } catch (const H5::Exception& e) {
+    Refuse(s.object, "cannot be read (" + e.getDetailMsg() + ")");
+  }
   return v;
 }
 
