@@ -232,6 +232,11 @@ int Run(const RunOptions& o) {
     if (!chain.ok()) return fail(o.config_path + ": " + chain.status().message());
     chains.push_back(std::move(chain).value());
   }
+  // Recorded counts checked against the chains before anything is written:
+  // a refused checkpoint is left as it is.
+  if (resumed) {
+    if (Status s = CheckRecordedCounts(ckpt, chains, ckpt_path); !s.ok()) return fail(s.message());
+  }
 
   const int nthreads = ResolveThreadCount(cfg.sweep.threads);
   const ProgressMode mode = ResolveProgress(o, ranks);
