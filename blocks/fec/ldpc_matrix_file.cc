@@ -134,6 +134,26 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
         std::string(Trim(lines[next].content.substr(std::string_view("description").size())));
     ++next;
   }
+  {
+    // The header's sizes against the text before anything is sized by them:
+    // m check lines must follow and every one of the n columns must be
+    // listed at least once, so a header alone cannot make the reader
+    // allocate gigabytes. (Small headers fall through to the line-by-line
+    // checks below, whose messages are more specific.)
+    constexpr std::size_t kSmall = std::size_t{1} << 20;
+    const std::size_t lines_left = lines.size() - next;
+    std::size_t column_words = 0;
+    for (std::size_t i = next; i < lines.size(); ++i) column_words += lines[i].words.size() - 1;
+    if (static_cast<std::size_t>(m) > lines_left && static_cast<std::size_t>(m) > kSmall) {
+      return Status::Error(src + ": ends after " + std::to_string(lines_left) + " of " +
+                           std::to_string(m) + " check lines");
+    }
+    if (static_cast<std::size_t>(n) > column_words && static_cast<std::size_t>(n) > kSmall) {
+      return Status::Error(Where(src, head.number) + "n " + Quoted(hw[2]) + ": the file lists " +
+                           std::to_string(column_words) +
+                           " column entries, fewer than n (every column must be in a check)");
+    }
+  }
   std::vector<std::vector<int>> rows(static_cast<std::size_t>(m));
   std::vector<int> seen_in_row(static_cast<std::size_t>(n), -1);
   // Block-row check for lifted codes: the last check (row) of the current
