@@ -26,12 +26,12 @@
 
 namespace capgap::analysis {
 
-// One value per entry of ebn0_db (dB). REQUIRES: an enumerator from
+// One value per entry of ebno_db (dB). REQUIRES: an enumerator from
 // BlockCode (n, k >= 1, n + 1 entries each).
 std::vector<double> BlockCodeFerUnionBound(const BlockWeightEnumerator& enumerator,
-                                           std::span<const double> ebn0_db);
+                                           std::span<const double> ebno_db);
 std::vector<double> BlockCodeBerUnionBound(const BlockWeightEnumerator& enumerator,
-                                           std::span<const double> ebn0_db);
+                                           std::span<const double> ebno_db);
 
 }  // namespace capgap::analysis
 

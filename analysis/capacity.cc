@@ -17,7 +17,7 @@
 // way when every bit is a function of one axis (Gray square QAM). Points that
 // an isometry of the constellation maps onto each other (all of M-PSK for CM;
 // four-point orbits of Gray M-PSK for BICM) have equal terms, so one point per
-// orbit is integrated. With these, ConstrainedMinEbn0Db for 256-QAM takes
+// orbit is integrated. With these, ConstrainedMinEbnoDb for 256-QAM takes
 // about 1 ms; the generic 2-D path (8-PSK: ~1 ms per limit) is slowest for
 // BICM with many points (64-PSK: ~0.3 s per limit).
 // Limits are found with TOMS 748 (Boost.Math) in Es/N0 (dB) to 1e-7 dB,
@@ -407,16 +407,16 @@ double BicmEquivocation(const Problem& problem, double n0, const CapacityQuadrat
   return total;
 }
 
-double N0FromEsN0Db(double esn0_db) { return 1.0 / DbToLinear(esn0_db); }
+double N0FromEsnoDb(double esno_db) { return 1.0 / DbToLinear(esno_db); }
 
 // Es/N0 (dB) where m - equivocation(Es/N0) = rho; returns Eb/N0 (dB).
 template <typename Equivocation>
-double MinEbn0Db(const Problem& problem, double rho, const Equivocation& equivocation) {
+double MinEbnoDb(const Problem& problem, double rho, const Equivocation& equivocation) {
   const double m = problem.bits_per_symbol;
   if (!(rho > 0.0)) return kNaN;
   if (rho >= m) return kInf;
-  auto excess = [&](double esn0_db) {
-    return (m - rho) - equivocation(problem, N0FromEsN0Db(esn0_db), CapacityQuadrature{});
+  auto excess = [&](double esno_db) {
+    return (m - rho) - equivocation(problem, N0FromEsnoDb(esno_db), CapacityQuadrature{});
   };
   // C(Es/N0) <= log2(1 + Es/N0), so C < rho at Es/N0 = 2^rho - 1.
   double lo = LinearToDb(std::expm1(rho * kLn2));
@@ -435,12 +435,12 @@ double MinEbn0Db(const Problem& problem, double rho, const Equivocation& equivoc
     if (hi > 200.0) return kInf;
     f_hi = excess(hi);
   }
-  if (f_lo == 0.0) return EbN0DbFromEsN0Db(lo, rho);
+  if (f_lo == 0.0) return EbnoDbFromEsnoDb(lo, rho);
   std::uintmax_t max_iter = 100;
   const auto bracket = boost::math::tools::toms748_solve(
       excess, lo, hi, f_lo, f_hi, [](double a, double b) { return std::abs(b - a) < 1e-7; },
       max_iter);
-  return EbN0DbFromEsN0Db(0.5 * (bracket.first + bracket.second), rho);
+  return EbnoDbFromEsnoDb(0.5 * (bracket.first + bracket.second), rho);
 }
 
 }  // namespace
@@ -449,7 +449,7 @@ double ShannonHartleyCapacity(double bandwidth_hz, double snr_db) {
   return bandwidth_hz * std::log1p(DbToLinear(snr_db)) / kLn2;
 }
 
-double ShannonMinEbn0Db(double eta) {
+double ShannonMinEbnoDb(double eta) {
   CAPGAP_DCHECK(eta >= 0.0);
   if (!(eta >= 0.0)) return kNaN;
   if (eta == 0.0) return LinearToDb(kLn2);
@@ -460,43 +460,43 @@ double ShannonMinEbn0Db(double eta) {
   return 10.0 * (log_expm1 - std::log(eta)) / std::numbers::ln10;
 }
 
-double ConstrainedCapacity(std::span<const cf32> points, double esn0_db,
+double ConstrainedCapacity(std::span<const cf32> points, double esno_db,
                            const CapacityQuadrature& quadrature) {
-  if (!ValidPoints(points) || std::isnan(esn0_db)) return kNaN;
+  if (!ValidPoints(points) || std::isnan(esno_db)) return kNaN;
   const Problem problem = Prepare(points, false, quadrature.use_structure);
-  return problem.bits_per_symbol - CmEquivocation(problem, N0FromEsN0Db(esn0_db), quadrature);
+  return problem.bits_per_symbol - CmEquivocation(problem, N0FromEsnoDb(esno_db), quadrature);
 }
 
-double BicmCapacity(std::span<const cf32> points, double esn0_db,
+double BicmCapacity(std::span<const cf32> points, double esno_db,
                     const CapacityQuadrature& quadrature) {
-  if (!ValidPoints(points) || std::isnan(esn0_db)) return kNaN;
+  if (!ValidPoints(points) || std::isnan(esno_db)) return kNaN;
   const Problem problem = Prepare(points, true, quadrature.use_structure);
-  return problem.bits_per_symbol - BicmEquivocation(problem, N0FromEsN0Db(esn0_db), quadrature);
+  return problem.bits_per_symbol - BicmEquivocation(problem, N0FromEsnoDb(esno_db), quadrature);
 }
 
-double ConstrainedCapacity(std::span<const cf32> points, double esn0_db) {
-  return ConstrainedCapacity(points, esn0_db, CapacityQuadrature{});
+double ConstrainedCapacity(std::span<const cf32> points, double esno_db) {
+  return ConstrainedCapacity(points, esno_db, CapacityQuadrature{});
 }
 
-double BicmCapacity(std::span<const cf32> points, double esn0_db) {
-  return BicmCapacity(points, esn0_db, CapacityQuadrature{});
+double BicmCapacity(std::span<const cf32> points, double esno_db) {
+  return BicmCapacity(points, esno_db, CapacityQuadrature{});
 }
 
-double ConstrainedMinEbn0Db(std::span<const cf32> points, double rho) {
+double ConstrainedMinEbnoDb(std::span<const cf32> points, double rho) {
   CAPGAP_DCHECK(rho > 0.0);
   if (!ValidPoints(points)) return kNaN;
-  return MinEbn0Db(Prepare(points, false, true), rho, CmEquivocation);
+  return MinEbnoDb(Prepare(points, false, true), rho, CmEquivocation);
 }
 
-double BicmMinEbn0Db(std::span<const cf32> points, double rho) {
+double BicmMinEbnoDb(std::span<const cf32> points, double rho) {
   CAPGAP_DCHECK(rho > 0.0);
   if (!ValidPoints(points)) return kNaN;
-  return MinEbn0Db(Prepare(points, true, true), rho, BicmEquivocation);
+  return MinEbnoDb(Prepare(points, true, true), rho, BicmEquivocation);
 }
 
-double BinaryInputMinEbn0Db(double rate) {
+double BinaryInputMinEbnoDb(double rate) {
   const cf32 bpsk[2] = {cf32(1.0f, 0.0f), cf32(-1.0f, 0.0f)};
-  return ConstrainedMinEbn0Db(bpsk, rate);
+  return ConstrainedMinEbnoDb(bpsk, rate);
 }
 
 }  // namespace capgap::analysis

@@ -24,27 +24,27 @@ double ShannonHartleyCapacity(double bandwidth_hz, double snr_db);
 // (bit/s/Hz, unconstrained Gaussian input): 10 log10((2^eta - 1) / eta).
 // eta -> 0 returns the limit 10 log10(ln 2) = -1.59 dB (computed stably for
 // tiny eta). REQUIRES eta >= 0.
-double ShannonMinEbn0Db(double eta);
+double ShannonMinEbnoDb(double eta);
 
 // Constrained capacity in bit/symbol of the given constellation (points with
 // unit average energy, equiprobable) at Es/N0 in dB. If every point is real,
 // the channel is treated as real (noise variance N0/2 on the real axis only).
-double ConstrainedCapacity(std::span<const cf32> points, double esn0_db);
+double ConstrainedCapacity(std::span<const cf32> points, double esno_db);
 
 // BICM capacity (sum of the bit channels' capacities) for the labelling
 // points[label] (label bits MSB first, as in Mapper).
-double BicmCapacity(std::span<const cf32> points, double esn0_db);
+double BicmCapacity(std::span<const cf32> points, double esno_db);
 
 // Eb/N0 (dB) at which ConstrainedCapacity(points, Es/N0 = rho Eb/N0) = rho.
 // Returns +infinity when rho >= log2(points.size()) (the constellation carries
 // that many bits only at infinite SNR). REQUIRES 0 < rho.
-double ConstrainedMinEbn0Db(std::span<const cf32> points, double rho);
+double ConstrainedMinEbnoDb(std::span<const cf32> points, double rho);
 // Same for BICM capacity.
-double BicmMinEbn0Db(std::span<const cf32> points, double rho);
+double BicmMinEbnoDb(std::span<const cf32> points, double rho);
 
-// Binary-input (BPSK) AWGN limit for code rate R: ConstrainedMinEbn0Db of
+// Binary-input (BPSK) AWGN limit for code rate R: ConstrainedMinEbnoDb of
 // {+1, -1} at rho = R. Rate 1/2 gives about 0.19 dB.
-double BinaryInputMinEbn0Db(double rate);
+double BinaryInputMinEbnoDb(double rate);
 
 }  // namespace capgap::analysis
 

@@ -42,9 +42,9 @@ struct CapacityQuadrature {
   bool use_structure = true;
 };
 
-double ConstrainedCapacity(std::span<const cf32> points, double esn0_db,
+double ConstrainedCapacity(std::span<const cf32> points, double esno_db,
                            const CapacityQuadrature& quadrature);
-double BicmCapacity(std::span<const cf32> points, double esn0_db,
+double BicmCapacity(std::span<const cf32> points, double esno_db,
                     const CapacityQuadrature& quadrature);
 
 }  // namespace capgap::analysis

@@ -58,7 +58,7 @@
 // llr_max = 25, 4e-8 with 30); the default target 1e-6 stays above it.
 //
 // Bisection. An ensemble cannot decode above the capacity sigma of its design
-// rate (BinaryInputMinEbn0Db), nor above the stability limit
+// rate (BinaryInputMinEbnoDb), nor above the stability limit
 // lambda_2 rho'(1) exp(-1/(2 sigma^2)) < 1 (Richardson, Shokrollahi, Urbanke
 // 2001), so the bracket's upper end is the smaller of the two; if the
 // ensemble decodes at its stability limit, that limit is the threshold. The
@@ -309,7 +309,7 @@ double StabilitySigma(const EdgeDistribution& e) {
 }
 
 double CapacitySigma(double rate) {
-  const double ebno_linear = std::pow(10.0, BinaryInputMinEbn0Db(rate) / 10.0);
+  const double ebno_linear = std::pow(10.0, BinaryInputMinEbnoDb(rate) / 10.0);
   return std::sqrt(1.0 / (2.0 * rate * ebno_linear));
 }
 

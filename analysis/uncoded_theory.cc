@@ -96,10 +96,10 @@ double CotGaussIntegralScaled(double c, double phi) {
 
 // G(phi) = P(phase of r in (phi, pi)) for r = sqrt(Es) + n, n ~ CN(0, N0),
 // 0 <= phi <= pi (Craig's form, see the file comment).
-double PhaseTail(double phi, double esn0) {
+double PhaseTail(double phi, double esno) {
   if (phi >= kPi) return 0.0;
   const double s = std::sin(phi);
-  const double c = esn0 * s * s;
+  const double c = esno * s * s;
   const double upper = kPi - phi;
   double integral = 0.0;
   if (c > 1.0) {
@@ -116,13 +116,13 @@ double PhaseTail(double phi, double esn0) {
 
 // Probabilities of deciding the point at offset d = 0..M-1 (counted along the
 // circle) when any M-PSK point is sent, M >= 4.
-std::vector<double> PskSectorProbabilities(int order, double esn0) {
+std::vector<double> PskSectorProbabilities(int order, double esno) {
   const double half_sector = kPi / order;
   // tail[j] = G((2j + 1) pi / M) for j = 0..M/2-1; G(pi) = 0 beyond.
   const int half = order / 2;
   std::vector<double> tail(static_cast<std::size_t>(half) + 1, 0.0);
   for (int j = 0; j < half; ++j) {
-    tail[static_cast<std::size_t>(j)] = PhaseTail((2 * j + 1) * half_sector, esn0);
+    tail[static_cast<std::size_t>(j)] = PhaseTail((2 * j + 1) * half_sector, esno);
   }
   std::vector<double> p(static_cast<std::size_t>(order), 0.0);
   p[0] = 1.0 - 2.0 * tail[0];
@@ -138,13 +138,13 @@ std::vector<double> PskSectorProbabilities(int order, double esn0) {
 
 unsigned Gray(unsigned k) { return k ^ (k >> 1); }
 
-double PskSer(int order, double esn0) {
+double PskSer(int order, double esno) {
   // Craig: Ps = 2 G(pi / M).
-  return 2.0 * PhaseTail(kPi / order, esn0);
+  return 2.0 * PhaseTail(kPi / order, esno);
 }
 
-double PskGrayBer(int order, int m, double esn0) {
-  const std::vector<double> p = PskSectorProbabilities(order, esn0);
+double PskGrayBer(int order, int m, double esno) {
+  const std::vector<double> p = PskSectorProbabilities(order, esno);
   const unsigned mask = static_cast<unsigned>(order) - 1u;
   double bit_errors = 0.0;
   for (int d = 1; d < order; ++d) {
@@ -161,23 +161,23 @@ double PskGrayBer(int order, int m, double esn0) {
 // Square M-QAM, L = sqrt(M) levels per axis, Es = 1. The per-axis argument of
 // erfc for level distance (2i + 1) * (half spacing) is (2i + 1) * a with
 // a = sqrt(3 Es / (2 (M - 1) N0)).
-double QamAxisArgument(int order, double esn0) {
-  return std::sqrt(3.0 * esn0 / (2.0 * (order - 1)));
+double QamAxisArgument(int order, double esno) {
+  return std::sqrt(3.0 * esno / (2.0 * (order - 1)));
 }
 
-double QamSer(int order, double esn0) {
+double QamSer(int order, double esno) {
   const double levels = std::sqrt(static_cast<double>(order));
-  const double a = QamAxisArgument(order, esn0);
+  const double a = QamAxisArgument(order, esno);
   // P_L = 2 (1 - 1/L) Q(sqrt(3 Es / ((M - 1) N0))) = (1 - 1/L) erfc(a).
   const double p_axis = (1.0 - 1.0 / levels) * Erfc(a);
   // 1 - (1 - P_L)^2 written without cancellation.
   return p_axis * (2.0 - p_axis);
 }
 
-double QamGrayBer(int order, int m, double esn0) {
+double QamGrayBer(int order, int m, double esno) {
   const int levels = 1 << (m / 2);
   const int axis_bits = m / 2;
-  const double a = QamAxisArgument(order, esn0);
+  const double a = QamAxisArgument(order, esno);
   double sum_over_k = 0.0;
   for (int k = 1; k <= axis_bits; ++k) {
     const long long two_k1 = 1LL << (k - 1);  // 2^(k-1)
@@ -208,34 +208,34 @@ double InverseQ(double p) {
   return std::numbers::sqrt2 * boost::math::erfc_inv(2.0 * p, NoThrowPolicy());
 }
 
-double UncodedSer(const Modulation& modulation, double ebn0_db) {
+double UncodedSer(const Modulation& modulation, double ebno_db) {
   const int m = SupportedBitsPerSymbol(modulation);
-  if (m == 0 || std::isnan(ebn0_db)) return kNaN;
-  const double esn0 = DbToLinear(EsN0DbFromEbN0Db(ebn0_db, m));
+  if (m == 0 || std::isnan(ebno_db)) return kNaN;
+  const double esno = DbToLinear(EsnoDbFromEbnoDb(ebno_db, m));
   const int order = modulation.order;
-  if (modulation.family == ModulationFamily::kQam) return QamSer(order, esn0);
-  if (order == 2) return QFunction(std::sqrt(2.0 * esn0));
+  if (modulation.family == ModulationFamily::kQam) return QamSer(order, esno);
+  if (order == 2) return QFunction(std::sqrt(2.0 * esno));
   if (order == 4) {
-    const double p = QFunction(std::sqrt(esn0));  // per quadrature branch
+    const double p = QFunction(std::sqrt(esno));  // per quadrature branch
     return p * (2.0 - p);
   }
-  return PskSer(order, esn0);
+  return PskSer(order, esno);
 }
 
-double UncodedBer(const Modulation& modulation, double ebn0_db) {
+double UncodedBer(const Modulation& modulation, double ebno_db) {
   const int m = SupportedBitsPerSymbol(modulation);
-  if (m == 0 || std::isnan(ebn0_db)) return kNaN;
-  const double ebn0 = DbToLinear(ebn0_db);
-  const double esn0 = DbToLinear(EsN0DbFromEbN0Db(ebn0_db, m));
+  if (m == 0 || std::isnan(ebno_db)) return kNaN;
+  const double ebno = DbToLinear(ebno_db);
+  const double esno = DbToLinear(EsnoDbFromEbnoDb(ebno_db, m));
   const int order = modulation.order;
   if (modulation.family == ModulationFamily::kQam) {
-    return QamGrayBer(order, m, esn0);
+    return QamGrayBer(order, m, esno);
   }
-  if (order == 2 || order == 4) return QFunction(std::sqrt(2.0 * ebn0));
-  return PskGrayBer(order, m, esn0);
+  if (order == 2 || order == 4) return QFunction(std::sqrt(2.0 * ebno));
+  return PskGrayBer(order, m, esno);
 }
 
-double UncodedEbn0DbAtBer(const Modulation& modulation, double ber) {
+double UncodedEbnoDbAtBer(const Modulation& modulation, double ber) {
   if (SupportedBitsPerSymbol(modulation) == 0) return kNaN;
   if (!(ber > 0.0) || !(ber < 0.5)) return kNaN;
   // BER falls monotonically with Eb/N0; widen a bracket [lo, hi] with
@@ -253,7 +253,7 @@ double UncodedEbn0DbAtBer(const Modulation& modulation, double ber) {
     if (hi > kHighestDb) return kNaN;
   }
   const Bracket b =
-      Bisect(lo, hi, 1e-6, [&](double ebn0_db) { return UncodedBer(modulation, ebn0_db) > ber; });
+      Bisect(lo, hi, 1e-6, [&](double ebno_db) { return UncodedBer(modulation, ebno_db) > ber; });
   return 0.5 * (b.lo + b.hi);
 }
 

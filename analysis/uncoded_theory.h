@@ -22,12 +22,12 @@ double QFunction(double x);
 // Inverse of Q on (0, 0.5]: x with Q(x) = p.
 double InverseQ(double p);
 
-double UncodedBer(const Modulation& modulation, double ebn0_db);
-double UncodedSer(const Modulation& modulation, double ebn0_db);
+double UncodedBer(const Modulation& modulation, double ebno_db);
+double UncodedSer(const Modulation& modulation, double ebno_db);
 
 // Eb/N0 (dB) at which UncodedBer equals `ber` (0 < ber < 0.5 and reachable),
 // found by bracketing and bisection to 1e-6 dB; NaN if not reachable.
-double UncodedEbn0DbAtBer(const Modulation& modulation, double ber);
+double UncodedEbnoDbAtBer(const Modulation& modulation, double ber);
 
 }  // namespace capgap::analysis
 

@@ -17,11 +17,11 @@ double DbToLinear(double db);
 double LinearToDb(double linear);
 
 // Es/N0 in dB for an Eb/N0 in dB and rho information bits per symbol.
-double EsN0DbFromEbN0Db(double ebn0_db, double info_bits_per_symbol);
-double EbN0DbFromEsN0Db(double esn0_db, double info_bits_per_symbol);
+double EsnoDbFromEbnoDb(double ebno_db, double info_bits_per_symbol);
+double EbnoDbFromEsnoDb(double esno_db, double info_bits_per_symbol);
 
 struct NoiseSpec {
-  double ebn0_db = 0.0;
+  double ebno_db = 0.0;
   double code_rate = 1.0;       // effective rate: tail and puncturing included
   int bits_per_symbol = 1;      // coded bits per constellation symbol, m
   int samples_per_symbol = 1;   // S; 1 for an unshaped chain
@@ -29,7 +29,7 @@ struct NoiseSpec {
 
 struct NoiseLevel {
   double info_bits_per_symbol;  // rho = R m
-  double esn0_db;               // Es/N0 = rho Eb/N0
+  double esno_db;               // Es/N0 = rho Eb/N0
   double n0;                    // complex noise variance per sample (Es = 1)
   double sigma_per_dim;         // sqrt(N0 / 2): standard deviation of I and of Q
   double per_sample_snr_db;     // Es/N0 - 10 log10(S)

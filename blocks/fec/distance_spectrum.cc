@@ -152,14 +152,14 @@ Result<DistanceSpectrum> ComputeDistanceSpectrum(const ConvCode& code, int num_t
   return out;
 }
 
-double UnionBoundBer(const DistanceSpectrum& spectrum, double ebn0_db, double code_rate) {
+double UnionBoundBer(const DistanceSpectrum& spectrum, double ebno_db, double code_rate) {
   CAPGAP_DCHECK(code_rate > 0.0 && code_rate <= 1.0);
-  const double ebn0 = DbToLinear(ebn0_db);
+  const double ebno = DbToLinear(ebno_db);
   double sum = 0.0;
   for (std::size_t j = 0; j < spectrum.distances.size(); ++j) {
     const double d = spectrum.distances[j];
     // Q(x) = 0.5 erfc(x / sqrt 2).
-    const double q = 0.5 * std::erfc(std::sqrt(d * code_rate * ebn0));
+    const double q = 0.5 * std::erfc(std::sqrt(d * code_rate * ebno));
     sum += static_cast<double>(spectrum.info_weight[j]) * q;
   }
   return sum / spectrum.info_bits_per_period;

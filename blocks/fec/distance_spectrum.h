@@ -53,7 +53,7 @@ Result<DistanceSpectrum> ComputeDistanceSpectrum(const ConvCode& code, int num_t
 
 // Union bound (1/k) sum_d beta_d Q(sqrt(2 d R Eb/N0)) over the stored terms.
 // REQUIRES: code_rate in (0, 1].
-double UnionBoundBer(const DistanceSpectrum& spectrum, double ebn0_db, double code_rate);
+double UnionBoundBer(const DistanceSpectrum& spectrum, double ebno_db, double code_rate);
 
 }  // namespace capgap
 

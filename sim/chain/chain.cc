@@ -76,7 +76,7 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
 
 std::unique_ptr<const Channel> Chain::MakePointChannel(double ebno_db) const {
   NoiseSpec spec;
-  spec.ebn0_db = ebno_db;
+  spec.ebno_db = ebno_db;
   spec.code_rate = code_rate();
   spec.bits_per_symbol = mapper_->bits_per_symbol();
   spec.samples_per_symbol = samples_per_symbol();

@@ -143,9 +143,9 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     family->analyse(chain.code(), chain.scheme(), r);
   }
 
-  r.limits.shannon_ebno_db = analysis::ShannonMinEbn0Db(r.spectral_efficiency);
+  r.limits.shannon_ebno_db = analysis::ShannonMinEbnoDb(r.spectral_efficiency);
   r.limits.constrained_ebno_db =
-      analysis::ConstrainedMinEbn0Db(chain.mapper().points(), r.info_bits_per_symbol);
+      analysis::ConstrainedMinEbnoDb(chain.mapper().points(), r.info_bits_per_symbol);
   r.limits.spectral_efficiency_basis =
       chain.shaped()
           ? "measured: eta = rho / B99, B99 the 99 % power bandwidth of the transmitted "
@@ -157,7 +157,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
       const double rho = m * (0.05 + 0.04 * i);
       r.limits.constrained_curve_rho.push_back(rho);
       r.limits.constrained_curve_ebno_db.push_back(
-          analysis::ConstrainedMinEbn0Db(chain.mapper().points(), rho));
+          analysis::ConstrainedMinEbnoDb(chain.mapper().points(), rho));
     }
   }
   if (std::isinf(r.limits.constrained_ebno_db)) {
@@ -179,7 +179,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   // The lower BER bound crosses first (optimistic Eb/N0), the upper bound last.
   s.ebno_at_target_low_db = CrossingDb(x, ber_low, sweep.target_ber);
   s.ebno_at_target_high_db = CrossingDb(x, ber_high, sweep.target_ber);
-  s.uncoded_ebno_at_target_db = analysis::UncodedEbn0DbAtBer(mod, sweep.target_ber);
+  s.uncoded_ebno_at_target_db = analysis::UncodedEbnoDbAtBer(mod, sweep.target_ber);
   s.coding_gain_db = s.uncoded_ebno_at_target_db - s.ebno_at_target_db;
   s.gap_to_shannon_db = s.ebno_at_target_db - r.limits.shannon_ebno_db;
   s.gap_to_constrained_db = std::isfinite(r.limits.constrained_ebno_db)

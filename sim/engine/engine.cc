@@ -253,7 +253,7 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
 
   PointResult r;
   r.ebno_db = ebno_db;
-  r.esno_db = channel.level().esn0_db;
+  r.esno_db = channel.level().esno_db;
   r.counts = st.prefix;
   r.units = st.prefix_end;
   r.stop_reason = st.reason;

@@ -266,7 +266,7 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
 
   Limits& lim = r.limits;
   lim.threshold_present = true;
-  lim.binary_input_ebno_db = analysis::BinaryInputMinEbn0Db(r.code_rate);
+  lim.binary_input_ebno_db = analysis::BinaryInputMinEbnoDb(r.code_rate);
   auto dist = analysis::EdgeDistributionFromNodeCounts(profile.variable_nodes_by_degree,
                                                        profile.check_nodes_by_degree);
   if (!dist.ok()) {

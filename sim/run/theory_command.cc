@@ -101,9 +101,9 @@ int RunTheory(const TheoryOptions& o) {
   }
   const int m = mod.value().bits_per_symbol();
   const double rho = rate * m;
-  const double shannon = analysis::ShannonMinEbn0Db(rho);
-  const double constrained = analysis::ConstrainedMinEbn0Db(mapper.value().points(), rho);
-  const double bicm = analysis::BicmMinEbn0Db(mapper.value().points(), rho);
+  const double shannon = analysis::ShannonMinEbnoDb(rho);
+  const double constrained = analysis::ConstrainedMinEbnoDb(mapper.value().points(), rho);
+  const double bicm = analysis::BicmMinEbnoDb(mapper.value().points(), rho);
   auto fmt = [](double v) {
     if (std::isinf(v)) return std::string(v > 0 ? "inf" : "-inf");
     return Format("%.4f", v);
@@ -126,7 +126,7 @@ int RunTheory(const TheoryOptions& o) {
   }
   for (double x : points.value()) {
     // The uncoded table is per information bit of the uncoded modulation.
-    const double esno = EsN0DbFromEbN0Db(x, m);
+    const double esno = EsnoDbFromEbnoDb(x, m);
     const double ber = analysis::UncodedBer(mod.value(), x);
     const double ser = analysis::UncodedSer(mod.value(), x);
     out << (o.csv ? Format("%.6g,%.6g,%.6e,%.6e\n", x, esno, ber, ser)

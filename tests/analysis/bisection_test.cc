@@ -32,7 +32,7 @@ TEST(Bisect, ABracketAlreadyNarrowEnoughIsReturnedAsIs) {
 }
 
 TEST(Bisect, MidpointLocatesTheChangeOnASignedAxis) {
-  // As UncodedEbn0DbAtBer uses it: "BER above target" holds below the answer.
+  // As UncodedEbnoDbAtBer uses it: "BER above target" holds below the answer.
   const Bracket b = Bisect(-10.0, 20.0, 1e-9, [](double x) { return x < 4.25; });
   EXPECT_NEAR(0.5 * (b.lo + b.hi), 4.25, 1e-9);
 }

@@ -66,7 +66,7 @@ TEST(BlockCodeBound, ApproachesTheMinimumDistanceTermAtHighSnr) {
   }
 }
 
-TEST(BlockCodeBound, DecreasesWithEbN0AndBerLiesBetweenFerOverKAndFer) {
+TEST(BlockCodeBound, DecreasesWithEbnoAndBerLiesBetweenFerOverKAndFer) {
   for (const char* name : {"hamming8", "golay24"}) {
     const BlockCode c = MustBuiltIn(name);
     std::vector<double> db;

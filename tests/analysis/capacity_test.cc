@@ -48,7 +48,7 @@ std::vector<cf32> Rotated(std::vector<cf32> points, double radians) {
   return points;
 }
 
-double ShannonBits(double esn0_db) { return std::log2(1.0 + std::pow(10.0, esn0_db / 10.0)); }
+double ShannonBits(double esno_db) { return std::log2(1.0 + std::pow(10.0, esno_db / 10.0)); }
 
 int BitsPerSymbol(const std::vector<cf32>& points) { return std::countr_zero(points.size()); }
 
@@ -61,26 +61,26 @@ TEST(ShannonHartleyCapacity, OneMegahertzAt20DbIs6Point658Mbits) {
   EXPECT_NEAR(ShannonHartleyCapacity(2e6, 0.0), 2e6, 1e-6);  // log2(2) = 1
 }
 
-TEST(ShannonMinEbn0Db, MatchesTheClassicLimits) {
+TEST(ShannonMinEbnoDb, MatchesTheClassicLimits) {
   // eta -> 0: 10 log10(ln 2) = -1.591745 dB (Shannon, Proc. IRE 1949; from
   // memory; value by arithmetic). eta = 1: (2 - 1) / 1 = 1 -> 0 dB;
   // eta = 2: 3 / 2 -> 10 log10(1.5) = 1.760913 dB (Eb/N0 >= (2^eta - 1) / eta,
   // same source; value by arithmetic).
-  EXPECT_NEAR(ShannonMinEbn0Db(0.0), -1.591745390, 1e-9);
-  EXPECT_NEAR(ShannonMinEbn0Db(1e-12), -1.591745390, 1e-9);
-  EXPECT_NEAR(ShannonMinEbn0Db(1e-6),
+  EXPECT_NEAR(ShannonMinEbnoDb(0.0), -1.591745390, 1e-9);
+  EXPECT_NEAR(ShannonMinEbnoDb(1e-12), -1.591745390, 1e-9);
+  EXPECT_NEAR(ShannonMinEbnoDb(1e-6),
               -1.591745390 + 10 * std::log10(1 + 1e-6 * std::numbers::ln2 / 2), 1e-9);
-  EXPECT_NEAR(ShannonMinEbn0Db(1.0), 0.0, 1e-12);
-  EXPECT_NEAR(ShannonMinEbn0Db(2.0), 1.760912591, 1e-9);
+  EXPECT_NEAR(ShannonMinEbnoDb(1.0), 0.0, 1e-12);
+  EXPECT_NEAR(ShannonMinEbnoDb(2.0), 1.760912591, 1e-9);
 }
 
-TEST(ShannonMinEbn0Db, IsFiniteAndIncreasingForLargeEta) {
+TEST(ShannonMinEbnoDb, IsFiniteAndIncreasingForLargeEta) {
   // (2^eta - 1) / eta overflows a double beyond eta ~ 1024; the log form
   // must not: eta = 2000 gives 10 (2000 log10 2 - log10 2000) dB.
-  EXPECT_NEAR(ShannonMinEbn0Db(2000.0), 10 * (2000 * std::log10(2.0) - std::log10(2000.0)), 1e-9);
-  double previous = ShannonMinEbn0Db(0.0);
+  EXPECT_NEAR(ShannonMinEbnoDb(2000.0), 10 * (2000 * std::log10(2.0) - std::log10(2000.0)), 1e-9);
+  double previous = ShannonMinEbnoDb(0.0);
   for (double eta = 0.01; eta < 40.0; eta *= 1.5) {
-    const double v = ShannonMinEbn0Db(eta);
+    const double v = ShannonMinEbnoDb(eta);
     EXPECT_GT(v, previous) << eta;
     previous = v;
   }
@@ -94,12 +94,12 @@ TEST(ConstrainedCapacity, BpskMatchesIndependentIntegration) {
   // C = 1 - E[log2(1 + exp(-4 (1 + n) / N0))], n ~ N(0, N0/2), x = +1 by
   // symmetry (Es = 1): values below.
   struct Point {
-    double esn0_db;
+    double esno_db;
     double bits;
   };
   for (const Point& p : {Point{-5.0, 0.349513836796}, Point{0.0, 0.721451590790},
                          Point{3.0, 0.912352116906}, Point{6.0, 0.990263800775}}) {
-    EXPECT_NEAR(ConstrainedCapacity(Points(kBpsk), p.esn0_db), p.bits, 1e-9) << p.esn0_db;
+    EXPECT_NEAR(ConstrainedCapacity(Points(kBpsk), p.esno_db), p.bits, 1e-9) << p.esno_db;
   }
 }
 
@@ -127,8 +127,8 @@ TEST(ConstrainedCapacity, SixteenQamMatchesMonteCarloWithin99PercentBand) {
   // within 2.576 standard errors (two-sided 99 %, normal approximation,
   // common practice) of the sample mean.
   const std::vector<cf32> points = Points(k16Qam);
-  const double esn0_db = 10.0;
-  const double n0 = std::pow(10.0, -esn0_db / 10.0);
+  const double esno_db = 10.0;
+  const double n0 = std::pow(10.0, -esno_db / 10.0);
   std::mt19937_64 rng(20240917);
   std::normal_distribution<double> gauss(0.0, std::sqrt(n0 / 2.0));
   std::uniform_int_distribution<std::size_t> pick(0, points.size() - 1);
@@ -147,7 +147,7 @@ TEST(ConstrainedCapacity, SixteenQamMatchesMonteCarloWithin99PercentBand) {
   }
   const double mean = sum / kDraws;
   const double std_error = std::sqrt((sum_sq / kDraws - mean * mean) / (kDraws - 1));
-  const double quadrature = ConstrainedCapacity(points, esn0_db);
+  const double quadrature = ConstrainedCapacity(points, esno_db);
   EXPECT_LT(std_error, 1.5e-3);  // measured 1.22e-3: the band is +-3.2e-3 bit
   EXPECT_NEAR(quadrature, mean, 2.576 * std_error) << "MC mean " << mean << " +- " << std_error;
 }
@@ -155,16 +155,16 @@ TEST(ConstrainedCapacity, SixteenQamMatchesMonteCarloWithin99PercentBand) {
 TEST(ConstrainedCapacity, TendsToBitsPerSymbolAtHighSnr) {
   struct Case {
     Modulation modulation;
-    double esn0_db;  // where m - C is far below 1e-9
+    double esno_db;  // where m - C is far below 1e-9
   };
   for (const Case& c : {Case{kBpsk, 20.0}, Case{kQpsk, 22.0}, Case{k8Psk, 28.0}, Case{k16Qam, 30.0},
                         Case{k64Qam, 36.0}, Case{k256Qam, 42.0}}) {
     const std::vector<cf32> points = Points(c.modulation);
     const double m = BitsPerSymbol(points);
-    EXPECT_NEAR(ConstrainedCapacity(points, c.esn0_db), m, 1e-9) << ToString(c.modulation);
-    EXPECT_NEAR(BicmCapacity(points, c.esn0_db), m, 1e-9) << ToString(c.modulation);
+    EXPECT_NEAR(ConstrainedCapacity(points, c.esno_db), m, 1e-9) << ToString(c.modulation);
+    EXPECT_NEAR(BicmCapacity(points, c.esno_db), m, 1e-9) << ToString(c.modulation);
     // ... and is still measurably below m 10 dB lower.
-    EXPECT_LT(ConstrainedCapacity(points, c.esn0_db - 10.0), m - 1e-6) << ToString(c.modulation);
+    EXPECT_LT(ConstrainedCapacity(points, c.esno_db - 10.0), m - 1e-6) << ToString(c.modulation);
   }
 }
 
@@ -197,11 +197,11 @@ TEST(ConstrainedCapacity, NeverExceedsShannonAndBicmNeverExceedsCm) {
   // bound; 1e-6 bit, the 2-D rule's accuracy, for BICM <= CM on PSK.
   for (const Modulation& modulation : {kBpsk, kQpsk, k8Psk, k16Psk, k16Qam, k64Qam}) {
     const std::vector<cf32> points = Points(modulation);
-    for (double esn0_db = -10.0; esn0_db <= 35.0; esn0_db += 1.0) {
-      const double cm = ConstrainedCapacity(points, esn0_db);
-      const double bicm = BicmCapacity(points, esn0_db);
-      EXPECT_LE(cm, ShannonBits(esn0_db) * (1.0 + 2e-7)) << ToString(modulation) << " " << esn0_db;
-      EXPECT_LE(bicm, cm + 1e-6) << ToString(modulation) << " " << esn0_db;
+    for (double esno_db = -10.0; esno_db <= 35.0; esno_db += 1.0) {
+      const double cm = ConstrainedCapacity(points, esno_db);
+      const double bicm = BicmCapacity(points, esno_db);
+      EXPECT_LE(cm, ShannonBits(esno_db) * (1.0 + 2e-7)) << ToString(modulation) << " " << esno_db;
+      EXPECT_LE(bicm, cm + 1e-6) << ToString(modulation) << " " << esno_db;
       EXPECT_GE(bicm, 0.0);
     }
   }
@@ -212,12 +212,12 @@ TEST(BicmCapacity, BelowCmForSixteenQamEqualForQpsk) {
   // 16-QAM loses a little to BICM at mid SNR (Caire, Taricco, Biglieri 1998).
   const std::vector<cf32> qpsk = Points(kQpsk);
   const std::vector<cf32> qam = Points(k16Qam);
-  for (double esn0_db : {-5.0, 0.0, 5.0, 10.0}) {
-    EXPECT_NEAR(BicmCapacity(qpsk, esn0_db), ConstrainedCapacity(qpsk, esn0_db), 1e-12);
+  for (double esno_db : {-5.0, 0.0, 5.0, 10.0}) {
+    EXPECT_NEAR(BicmCapacity(qpsk, esno_db), ConstrainedCapacity(qpsk, esno_db), 1e-12);
     // Also with the full 2-D quadrature, no product split.
     CapacityQuadrature full;
     full.use_structure = false;
-    EXPECT_NEAR(BicmCapacity(qpsk, esn0_db, full), ConstrainedCapacity(qpsk, esn0_db, full), 1e-12);
+    EXPECT_NEAR(BicmCapacity(qpsk, esno_db, full), ConstrainedCapacity(qpsk, esno_db, full), 1e-12);
   }
   EXPECT_GT(ConstrainedCapacity(qam, 5.0) - BicmCapacity(qam, 5.0), 0.02);
   EXPECT_LT(ConstrainedCapacity(qam, 5.0) - BicmCapacity(qam, 5.0), 0.1);
@@ -231,10 +231,10 @@ TEST(ConstrainedCapacity, QpskIsTwoBpskChannelsAtHalfTheSnr) {
   const std::vector<cf32> qpsk = Points(kQpsk);
   const std::vector<cf32> qpsk_rotated = Rotated(qpsk, 0.3);
   const double half_db = 10.0 * std::log10(0.5);
-  for (double esn0_db : {-8.0, -2.0, 0.0, 3.0, 6.0, 9.0, 12.0}) {
-    const double two_bpsk = 2.0 * ConstrainedCapacity(bpsk, esn0_db + half_db);
-    EXPECT_NEAR(ConstrainedCapacity(qpsk, esn0_db), two_bpsk, 1e-7) << esn0_db;
-    EXPECT_NEAR(ConstrainedCapacity(qpsk_rotated, esn0_db), two_bpsk, 1e-6) << esn0_db;
+  for (double esno_db : {-8.0, -2.0, 0.0, 3.0, 6.0, 9.0, 12.0}) {
+    const double two_bpsk = 2.0 * ConstrainedCapacity(bpsk, esno_db + half_db);
+    EXPECT_NEAR(ConstrainedCapacity(qpsk, esno_db), two_bpsk, 1e-7) << esno_db;
+    EXPECT_NEAR(ConstrainedCapacity(qpsk_rotated, esno_db), two_bpsk, 1e-6) << esno_db;
   }
 }
 
@@ -247,13 +247,13 @@ TEST(ConstrainedCapacity, InvariantUnderRotationOfTheConstellation) {
   const std::vector<cf32> qam_rotated = Rotated(qam, 0.3);
   const std::vector<cf32> bpsk = Points(kBpsk);
   const std::vector<cf32> bpsk_rotated = Rotated(bpsk, 1.0);
-  for (double esn0_db : {0.0, 5.0, 10.0, 15.0}) {
-    EXPECT_NEAR(ConstrainedCapacity(qam_rotated, esn0_db), ConstrainedCapacity(qam, esn0_db), 1e-6)
-        << esn0_db;
-    EXPECT_NEAR(BicmCapacity(qam_rotated, esn0_db), BicmCapacity(qam, esn0_db), 1e-6) << esn0_db;
-    EXPECT_NEAR(ConstrainedCapacity(bpsk_rotated, esn0_db), ConstrainedCapacity(bpsk, esn0_db),
+  for (double esno_db : {0.0, 5.0, 10.0, 15.0}) {
+    EXPECT_NEAR(ConstrainedCapacity(qam_rotated, esno_db), ConstrainedCapacity(qam, esno_db), 1e-6)
+        << esno_db;
+    EXPECT_NEAR(BicmCapacity(qam_rotated, esno_db), BicmCapacity(qam, esno_db), 1e-6) << esno_db;
+    EXPECT_NEAR(ConstrainedCapacity(bpsk_rotated, esno_db), ConstrainedCapacity(bpsk, esno_db),
                 1e-6)
-        << esn0_db;
+        << esno_db;
   }
 }
 
@@ -265,12 +265,12 @@ TEST(ConstrainedCapacity, StructureShortcutsAgreeWithFullSum) {
   full.use_structure = false;
   for (const Modulation& modulation : {k8Psk, k16Psk, k16Qam}) {
     const std::vector<cf32> points = Points(modulation);
-    for (double esn0_db : {0.0, 6.0, 12.0, 18.0}) {
-      EXPECT_NEAR(ConstrainedCapacity(points, esn0_db, full), ConstrainedCapacity(points, esn0_db),
+    for (double esno_db : {0.0, 6.0, 12.0, 18.0}) {
+      EXPECT_NEAR(ConstrainedCapacity(points, esno_db, full), ConstrainedCapacity(points, esno_db),
                   1e-6)
-          << ToString(modulation) << " " << esn0_db;
-      EXPECT_NEAR(BicmCapacity(points, esn0_db, full), BicmCapacity(points, esn0_db), 1e-6)
-          << ToString(modulation) << " " << esn0_db;
+          << ToString(modulation) << " " << esno_db;
+      EXPECT_NEAR(BicmCapacity(points, esno_db, full), BicmCapacity(points, esno_db), 1e-6)
+          << ToString(modulation) << " " << esno_db;
     }
   }
 }
@@ -295,11 +295,11 @@ TEST(ConstrainedCapacity, GaussHermiteNodeCountsAgree) {
                                    {"16qam rotated", Rotated(Points(k16Qam), 0.3), 26.0}};
   for (const Case& c : cases) {
     double worst_cm = 0.0, worst_bicm = 0.0;
-    for (double esn0_db = -10.0; esn0_db <= c.max_db; esn0_db += 1.0) {
-      worst_cm = std::max(worst_cm, std::abs(ConstrainedCapacity(c.points, esn0_db) -
-                                             ConstrainedCapacity(c.points, esn0_db, big)));
-      worst_bicm = std::max(worst_bicm, std::abs(BicmCapacity(c.points, esn0_db) -
-                                                 BicmCapacity(c.points, esn0_db, big)));
+    for (double esno_db = -10.0; esno_db <= c.max_db; esno_db += 1.0) {
+      worst_cm = std::max(worst_cm, std::abs(ConstrainedCapacity(c.points, esno_db) -
+                                             ConstrainedCapacity(c.points, esno_db, big)));
+      worst_bicm = std::max(worst_bicm, std::abs(BicmCapacity(c.points, esno_db) -
+                                                 BicmCapacity(c.points, esno_db, big)));
     }
     EXPECT_LT(worst_cm, 1e-6) << c.name;
     EXPECT_LT(worst_bicm, 1e-6) << c.name;
@@ -315,21 +315,21 @@ TEST(ConstrainedCapacity, GaussHermiteNodeCountsAgree) {
 
 // ------------------------------------------------------- Eb/N0 limits ----
 
-TEST(BinaryInputMinEbn0Db, RateHalfIsAbout0Point19Db) {
+TEST(BinaryInputMinEbnoDb, RateHalfIsAbout0Point19Db) {
   // About 0.19 dB (Richardson & Urbanke, Modern Coding Theory, 2008; from
   // memory); scipy offline (quad capacity + brentq root): 0.1870604 dB.
-  EXPECT_NEAR(BinaryInputMinEbn0Db(0.5), 0.187, 0.01);
-  EXPECT_NEAR(BinaryInputMinEbn0Db(0.5), 0.1870604, 2e-6);
+  EXPECT_NEAR(BinaryInputMinEbnoDb(0.5), 0.187, 0.01);
+  EXPECT_NEAR(BinaryInputMinEbnoDb(0.5), 0.1870604, 2e-6);
 }
 
-TEST(ConstrainedMinEbn0Db, SixteenQamLimitsMatchIndependentRootFinding) {
+TEST(ConstrainedMinEbnoDb, SixteenQamLimitsMatchIndependentRootFinding) {
   // scipy offline (quad capacity of two 4-PAM channels + brentq): rho = 2
   // 2.1080273 dB, rho = 3 4.5328296 dB.
-  EXPECT_NEAR(ConstrainedMinEbn0Db(Points(k16Qam), 2.0), 2.1080273, 2e-6);
-  EXPECT_NEAR(ConstrainedMinEbn0Db(Points(k16Qam), 3.0), 4.5328296, 2e-6);
+  EXPECT_NEAR(ConstrainedMinEbnoDb(Points(k16Qam), 2.0), 2.1080273, 2e-6);
+  EXPECT_NEAR(ConstrainedMinEbnoDb(Points(k16Qam), 3.0), 4.5328296, 2e-6);
 }
 
-TEST(ConstrainedMinEbn0Db, CapacityAtTheLimitEqualsRho) {
+TEST(ConstrainedMinEbnoDb, CapacityAtTheLimitEqualsRho) {
   struct Case {
     Modulation modulation;
     double rho;
@@ -337,49 +337,49 @@ TEST(ConstrainedMinEbn0Db, CapacityAtTheLimitEqualsRho) {
   for (const Case& c : {Case{kBpsk, 0.5}, Case{kQpsk, 1.0}, Case{k8Psk, 2.0}, Case{k16Qam, 2.0},
                         Case{k16Qam, 3.0}, Case{k64Qam, 4.5}}) {
     const std::vector<cf32> points = Points(c.modulation);
-    const double ebn0_db = ConstrainedMinEbn0Db(points, c.rho);
-    const double esn0_db = ebn0_db + 10.0 * std::log10(c.rho);
-    EXPECT_NEAR(ConstrainedCapacity(points, esn0_db), c.rho, 1e-7) << ToString(c.modulation);
-    const double bicm_db = BicmMinEbn0Db(points, c.rho);
+    const double ebno_db = ConstrainedMinEbnoDb(points, c.rho);
+    const double esno_db = ebno_db + 10.0 * std::log10(c.rho);
+    EXPECT_NEAR(ConstrainedCapacity(points, esno_db), c.rho, 1e-7) << ToString(c.modulation);
+    const double bicm_db = BicmMinEbnoDb(points, c.rho);
     EXPECT_NEAR(BicmCapacity(points, bicm_db + 10.0 * std::log10(c.rho)), c.rho, 1e-7)
         << ToString(c.modulation);
     // Ordering: Shannon <= CM <= BICM.
-    EXPECT_GT(ebn0_db, ShannonMinEbn0Db(c.rho)) << ToString(c.modulation);
-    EXPECT_GE(bicm_db, ebn0_db - 1e-6) << ToString(c.modulation);
+    EXPECT_GT(ebno_db, ShannonMinEbnoDb(c.rho)) << ToString(c.modulation);
+    EXPECT_GE(bicm_db, ebno_db - 1e-6) << ToString(c.modulation);
   }
 }
 
-TEST(ConstrainedMinEbn0Db, InfiniteAtAndAboveBitsPerSymbol) {
+TEST(ConstrainedMinEbnoDb, InfiniteAtAndAboveBitsPerSymbol) {
   // The header's contract: rho >= m cannot be reached at finite SNR.
-  EXPECT_EQ(ConstrainedMinEbn0Db(Points(kBpsk), 1.0), std::numeric_limits<double>::infinity());
-  EXPECT_EQ(ConstrainedMinEbn0Db(Points(kQpsk), 2.0), std::numeric_limits<double>::infinity());
-  EXPECT_EQ(ConstrainedMinEbn0Db(Points(k16Qam), 4.5), std::numeric_limits<double>::infinity());
-  EXPECT_EQ(BicmMinEbn0Db(Points(k8Psk), 3.0), std::numeric_limits<double>::infinity());
-  EXPECT_EQ(BinaryInputMinEbn0Db(1.0), std::numeric_limits<double>::infinity());
+  EXPECT_EQ(ConstrainedMinEbnoDb(Points(kBpsk), 1.0), std::numeric_limits<double>::infinity());
+  EXPECT_EQ(ConstrainedMinEbnoDb(Points(kQpsk), 2.0), std::numeric_limits<double>::infinity());
+  EXPECT_EQ(ConstrainedMinEbnoDb(Points(k16Qam), 4.5), std::numeric_limits<double>::infinity());
+  EXPECT_EQ(BicmMinEbnoDb(Points(k8Psk), 3.0), std::numeric_limits<double>::infinity());
+  EXPECT_EQ(BinaryInputMinEbnoDb(1.0), std::numeric_limits<double>::infinity());
   // Just below m the limit is finite and large.
-  const double near_full = ConstrainedMinEbn0Db(Points(kQpsk), 1.99);
+  const double near_full = ConstrainedMinEbnoDb(Points(kQpsk), 1.99);
   EXPECT_TRUE(std::isfinite(near_full));
   EXPECT_GT(near_full, 6.0);
 }
 
-TEST(ConstrainedMinEbn0Db, ApproachesShannonLimitAtLowRate) {
+TEST(ConstrainedMinEbnoDb, ApproachesShannonLimitAtLowRate) {
   // rho -> 0: every constellation tends to -1.59 dB (Shannon 1949; from
   // memory). At rho = 0.01 QPSK is within 0.01 dB of the Shannon bound for
   // eta = rho (its loss is second order in SNR).
-  const double limit = ConstrainedMinEbn0Db(Points(kQpsk), 0.01);
-  EXPECT_GT(limit, ShannonMinEbn0Db(0.01));
-  EXPECT_LT(limit, ShannonMinEbn0Db(0.01) + 0.01);
-  EXPECT_NEAR(BinaryInputMinEbn0Db(0.01), -1.59, 0.05);
+  const double limit = ConstrainedMinEbnoDb(Points(kQpsk), 0.01);
+  EXPECT_GT(limit, ShannonMinEbnoDb(0.01));
+  EXPECT_LT(limit, ShannonMinEbnoDb(0.01) + 0.01);
+  EXPECT_NEAR(BinaryInputMinEbnoDb(0.01), -1.59, 0.05);
 }
 
-TEST(ConstrainedMinEbn0Db, TwoFiftySixQamLimitsAreFiniteAndOrdered) {
+TEST(ConstrainedMinEbnoDb, TwoFiftySixQamLimitsAreFiniteAndOrdered) {
   // 256-QAM at rho = 6 (a rate-3/4 code): Shannon <= CM < BICM. (Its cost is
   // measured in no unit test: timings belong in benchmarks.)
   const std::vector<cf32> points = Points(k256Qam);
-  const double cm = ConstrainedMinEbn0Db(points, 6.0);
-  const double bicm = BicmMinEbn0Db(points, 6.0);
+  const double cm = ConstrainedMinEbnoDb(points, 6.0);
+  const double bicm = BicmMinEbnoDb(points, 6.0);
   EXPECT_TRUE(std::isfinite(cm));
-  EXPECT_GE(cm, ShannonMinEbn0Db(6.0));
+  EXPECT_GE(cm, ShannonMinEbnoDb(6.0));
   EXPECT_GT(bicm, cm);
 }
 

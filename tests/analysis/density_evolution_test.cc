@@ -387,9 +387,9 @@ TEST(QuantizedThreshold, RejectsInvalidOptions) {
 // ------------------------------------------------------------ properties --
 
 TEST(Thresholds, LieAboveTheBinaryInputCapacityLimit) {
-  // No decoder beats capacity: threshold Eb/N0 > BinaryInputMinEbn0Db(R)
+  // No decoder beats capacity: threshold Eb/N0 > BinaryInputMinEbnoDb(R)
   // (0.187 dB at R = 1/2). Holds for both methods and every ensemble here.
-  const double limit = BinaryInputMinEbn0Db(0.5);
+  const double limit = BinaryInputMinEbnoDb(0.5);
   for (const ThresholdResult* r : {&Quantized36(), &Quantized48(), &QuantizedRsu4()}) {
     EXPECT_GT(r->ebno_db, limit) << r->description;
   }
@@ -398,8 +398,8 @@ TEST(Thresholds, LieAboveTheBinaryInputCapacityLimit) {
     EXPECT_GT(Gaussian(e, true).ebno_db, limit);
   }
   // Other rates: (3,4) at 1/4 and (3,5) at 2/5, GA (fast).
-  EXPECT_GT(Gaussian(Regular(3, 4)).ebno_db, BinaryInputMinEbn0Db(0.25));
-  EXPECT_GT(Gaussian(Regular(3, 5)).ebno_db, BinaryInputMinEbn0Db(0.4));
+  EXPECT_GT(Gaussian(Regular(3, 4)).ebno_db, BinaryInputMinEbnoDb(0.25));
+  EXPECT_GT(Gaussian(Regular(3, 5)).ebno_db, BinaryInputMinEbnoDb(0.4));
 }
 
 TEST(Thresholds, OrderEnsemblesTheKnownWay) {

@@ -42,8 +42,8 @@ std::vector<cf32> Points(const Modulation& modulation) {
   return {points.begin(), points.end()};
 }
 
-double EsN0(const Modulation& modulation, double ebn0_db) {
-  return std::countr_zero(static_cast<unsigned>(modulation.order)) * std::pow(10.0, ebn0_db / 10.0);
+double EsN0(const Modulation& modulation, double ebno_db) {
+  return std::countr_zero(static_cast<unsigned>(modulation.order)) * std::pow(10.0, ebno_db / 10.0);
 }
 
 // ---- Independent reference 1: M-PSK by 2-D integration in polar form. ----
@@ -95,11 +95,11 @@ std::vector<double> PskPhases(const Modulation& modulation) {
 // Averages over every transmitted label, decision = nearest point's sector.
 // Rotational symmetry of the snapped geometry makes the sector probability a
 // function of the phase offset only, so it is integrated once per offset.
-Rates PskRatesBruteForce(const Modulation& modulation, double ebn0_db) {
+Rates PskRatesBruteForce(const Modulation& modulation, double ebno_db) {
   const std::vector<double> phases = PskPhases(modulation);
   const int order = modulation.order;
   const int m = std::countr_zero(static_cast<unsigned>(order));
-  const double n0 = 1.0 / EsN0(modulation, ebn0_db);
+  const double n0 = 1.0 / EsN0(modulation, ebno_db);
   // Offset 0 (a correct decision) is not needed: Ps sums the other sectors,
   // which avoids 1 - (1 - Ps) cancellation.
   std::vector<double> by_offset(static_cast<std::size_t>(order), 0.0);
@@ -129,11 +129,11 @@ Rates PskRatesBruteForce(const Modulation& modulation, double ebn0_db) {
 // The decision region of a point is a rectangle (unbounded at the edge);
 // the 2-D Gaussian density over it factorises into two 1-D integrals of
 // exp(-(y - level)^2 / N0) / sqrt(pi N0), done by adaptive Gauss-Kronrod.
-Rates QamRatesBruteForce(const Modulation& modulation, double ebn0_db) {
+Rates QamRatesBruteForce(const Modulation& modulation, double ebno_db) {
   const std::vector<cf32> points = Points(modulation);
   const int order = modulation.order;
   const int m = std::countr_zero(static_cast<unsigned>(order));
-  const double n0 = 1.0 / EsN0(modulation, ebn0_db);
+  const double n0 = 1.0 / EsN0(modulation, ebno_db);
   const double unit = 1.0 / std::sqrt(2.0 * (order - 1) / 3.0);
   const auto count = static_cast<std::size_t>(std::lround(std::sqrt(order)));
   // levels[i] = (2 i - L + 1) * unit, ascending; a float coordinate maps back
@@ -207,13 +207,13 @@ TEST(UncodedBer, BpskMatchesPublishedValues) {
 TEST(UncodedBer, QpskAnd4QamEqualBpskPerBit) {
   // Gray QPSK = two independent BPSK channels at the same Eb/N0 (Proakis &
   // Salehi, Digital Communications, 5th ed., ch. 4; from memory); Ps = 1 - (1 - p)^2 follows from independence.
-  for (double ebn0_db : {-5.0, 0.0, 4.0, 9.59, 14.0}) {
-    const double p = UncodedBer(kBpsk, ebn0_db);
-    EXPECT_NEAR(UncodedBer(kQpsk, ebn0_db) / p, 1.0, 1e-14) << ebn0_db;
-    EXPECT_NEAR(UncodedBer(k4Qam, ebn0_db) / p, 1.0, 1e-13) << ebn0_db;
+  for (double ebno_db : {-5.0, 0.0, 4.0, 9.59, 14.0}) {
+    const double p = UncodedBer(kBpsk, ebno_db);
+    EXPECT_NEAR(UncodedBer(kQpsk, ebno_db) / p, 1.0, 1e-14) << ebno_db;
+    EXPECT_NEAR(UncodedBer(k4Qam, ebno_db) / p, 1.0, 1e-13) << ebno_db;
     // 1 - (1 - p)^2 written as p (2 - p) to avoid cancellation.
-    EXPECT_NEAR(UncodedSer(kQpsk, ebn0_db) / (p * (2.0 - p)), 1.0, 1e-14);
-    EXPECT_NEAR(UncodedSer(k4Qam, ebn0_db) / UncodedSer(kQpsk, ebn0_db), 1.0, 1e-13);
+    EXPECT_NEAR(UncodedSer(kQpsk, ebno_db) / (p * (2.0 - p)), 1.0, 1e-14);
+    EXPECT_NEAR(UncodedSer(k4Qam, ebno_db) / UncodedSer(kQpsk, ebno_db), 1.0, 1e-13);
   }
 }
 
@@ -221,12 +221,12 @@ TEST(UncodedBer, PskMatchesBruteForcePolarIntegration) {
   // Reference: PolarSectorProbability above, summed with the Hamming
   // distances of Mapper's labels (independent of Craig's form).
   for (const Modulation& modulation : {k8Psk, k16Psk}) {
-    for (double ebn0_db : {0.0, 4.0, 8.0, 12.0}) {
-      const Rates ref = PskRatesBruteForce(modulation, ebn0_db);
-      EXPECT_NEAR(UncodedSer(modulation, ebn0_db) / ref.ser, 1.0, 1e-7)
-          << ToString(modulation) << " " << ebn0_db;
-      EXPECT_NEAR(UncodedBer(modulation, ebn0_db) / ref.ber, 1.0, 1e-7)
-          << ToString(modulation) << " " << ebn0_db;
+    for (double ebno_db : {0.0, 4.0, 8.0, 12.0}) {
+      const Rates ref = PskRatesBruteForce(modulation, ebno_db);
+      EXPECT_NEAR(UncodedSer(modulation, ebno_db) / ref.ser, 1.0, 1e-7)
+          << ToString(modulation) << " " << ebno_db;
+      EXPECT_NEAR(UncodedBer(modulation, ebno_db) / ref.ber, 1.0, 1e-7)
+          << ToString(modulation) << " " << ebno_db;
     }
   }
 }
@@ -239,12 +239,12 @@ TEST(UncodedSer, PskMatchesOwensTClosedForm) {
   // owens_t over a fine grid that crosses both integration regimes.
   for (int order : {8, 16, 32, 64}) {
     const Modulation modulation{ModulationFamily::kPsk, order};
-    for (double ebn0_db = -6.0; ebn0_db <= 30.0; ebn0_db += 0.75) {
-      const double esn0 = EsN0(modulation, ebn0_db);
-      const double h = std::sqrt(2.0 * esn0) * std::sin(kPi / order);
+    for (double ebno_db = -6.0; ebno_db <= 30.0; ebno_db += 0.75) {
+      const double esno = EsN0(modulation, ebno_db);
+      const double h = std::sqrt(2.0 * esno) * std::sin(kPi / order);
       const double ref = QFunction(h) + 2.0 * boost::math::owens_t(h, 1.0 / std::tan(kPi / order));
       if (ref < 1e-300) break;
-      EXPECT_NEAR(UncodedSer(modulation, ebn0_db) / ref, 1.0, 1e-10) << order << " " << ebn0_db;
+      EXPECT_NEAR(UncodedSer(modulation, ebno_db) / ref, 1.0, 1e-10) << order << " " << ebno_db;
     }
   }
 }
@@ -252,12 +252,12 @@ TEST(UncodedSer, PskMatchesOwensTClosedForm) {
 TEST(UncodedBer, SquareQamMatchesBruteForceRegionIntegration) {
   // Reference: QamRatesBruteForce above (independent of Cho & Yoon's sum).
   for (const Modulation& modulation : {k16Qam, k64Qam}) {
-    for (double ebn0_db : {0.0, 4.0, 8.0, 12.0}) {
-      const Rates ref = QamRatesBruteForce(modulation, ebn0_db);
-      EXPECT_NEAR(UncodedSer(modulation, ebn0_db) / ref.ser, 1.0, 1e-7)
-          << ToString(modulation) << " " << ebn0_db;
-      EXPECT_NEAR(UncodedBer(modulation, ebn0_db) / ref.ber, 1.0, 1e-7)
-          << ToString(modulation) << " " << ebn0_db;
+    for (double ebno_db : {0.0, 4.0, 8.0, 12.0}) {
+      const Rates ref = QamRatesBruteForce(modulation, ebno_db);
+      EXPECT_NEAR(UncodedSer(modulation, ebno_db) / ref.ser, 1.0, 1e-7)
+          << ToString(modulation) << " " << ebno_db;
+      EXPECT_NEAR(UncodedBer(modulation, ebno_db) / ref.ber, 1.0, 1e-7)
+          << ToString(modulation) << " " << ebno_db;
     }
   }
 }
@@ -267,9 +267,9 @@ TEST(UncodedBer, SixteenQamApproachesLeadingErfcTermAtHighSnr) {
   // ed., ch. 4; common practice). The neglected terms are (1/4) erfc(3a) -
   // (1/8) erfc(5a), a relative 1e-13 at 10 dB, so 1e-6 is a loose bound there;
   // at 0 dB they are several percent, which the test also checks.
-  for (double ebn0_db : {10.0, 12.0, 14.0}) {
-    const double approx = 0.375 * std::erfc(std::sqrt(0.4 * std::pow(10.0, ebn0_db / 10.0)));
-    EXPECT_NEAR(UncodedBer(k16Qam, ebn0_db) / approx, 1.0, 1e-6) << ebn0_db;
+  for (double ebno_db : {10.0, 12.0, 14.0}) {
+    const double approx = 0.375 * std::erfc(std::sqrt(0.4 * std::pow(10.0, ebno_db / 10.0)));
+    EXPECT_NEAR(UncodedBer(k16Qam, ebno_db) / approx, 1.0, 1e-6) << ebno_db;
   }
   const double approx0 = 0.375 * std::erfc(std::sqrt(0.4));
   EXPECT_GT(std::abs(UncodedBer(k16Qam, 0.0) / approx0 - 1.0), 0.01);
@@ -283,20 +283,20 @@ TEST(UncodedBer, LargeQamApproachesNearestNeighbourBoundAtHighSnr) {
   // the (P_L)^2 term, of relative size ~P_L / 2. Tolerance 1e-4.
   struct Case {
     Modulation modulation;
-    double ebn0_db;
+    double ebno_db;
   };
   for (const Case& c :
        {Case{k64Qam, 18.0}, Case{k64Qam, 20.0}, Case{k256Qam, 24.0}, Case{k256Qam, 26.0}}) {
     const int order = c.modulation.order;
     const int m = std::countr_zero(static_cast<unsigned>(order));
     const double levels = std::sqrt(static_cast<double>(order));
-    const double q = QFunction(std::sqrt(3.0 * EsN0(c.modulation, c.ebn0_db) / (order - 1)));
+    const double q = QFunction(std::sqrt(3.0 * EsN0(c.modulation, c.ebno_db) / (order - 1)));
     const double ser_nn = 4.0 * (1.0 - 1.0 / levels) * q;
-    EXPECT_LT(UncodedBer(c.modulation, c.ebn0_db), 1e-5);
-    EXPECT_NEAR(UncodedSer(c.modulation, c.ebn0_db) / ser_nn, 1.0, 1e-4)
-        << ToString(c.modulation) << " " << c.ebn0_db;
-    EXPECT_NEAR(UncodedBer(c.modulation, c.ebn0_db) / (ser_nn / m), 1.0, 1e-4)
-        << ToString(c.modulation) << " " << c.ebn0_db;
+    EXPECT_LT(UncodedBer(c.modulation, c.ebno_db), 1e-5);
+    EXPECT_NEAR(UncodedSer(c.modulation, c.ebno_db) / ser_nn, 1.0, 1e-4)
+        << ToString(c.modulation) << " " << c.ebno_db;
+    EXPECT_NEAR(UncodedBer(c.modulation, c.ebno_db) / (ser_nn / m), 1.0, 1e-4)
+        << ToString(c.modulation) << " " << c.ebno_db;
   }
 }
 
@@ -316,40 +316,40 @@ TEST(UncodedBer, GrayPskBerExceedsSerOverMAndApproachesItAtHighSnr) {
   }
 }
 
-TEST(UncodedBer, FallsMonotonicallyWithEbn0) {
+TEST(UncodedBer, FallsMonotonicallyWithEbno) {
   for (const Modulation& modulation : {kBpsk, k8Psk, k16Psk, k16Qam, k256Qam}) {
     double previous = 0.5;
-    for (double ebn0_db = -10.0; ebn0_db <= 30.0; ebn0_db += 0.5) {
-      const double ber = UncodedBer(modulation, ebn0_db);
-      EXPECT_LT(ber, previous) << ToString(modulation) << " " << ebn0_db;
+    for (double ebno_db = -10.0; ebno_db <= 30.0; ebno_db += 0.5) {
+      const double ber = UncodedBer(modulation, ebno_db);
+      EXPECT_LT(ber, previous) << ToString(modulation) << " " << ebno_db;
       previous = ber;
       if (ber == 0.0) break;
     }
   }
 }
 
-TEST(UncodedEbn0DbAtBer, BpskAt1e5Is9Point59Db) {
+TEST(UncodedEbnoDbAtBer, BpskAt1e5Is9Point59Db) {
   // 9.59 dB (common practice); scipy: 10 log10(Q^-1(1e-5)^2 / 2) = 9.587858347.
-  EXPECT_NEAR(UncodedEbn0DbAtBer(kBpsk, 1e-5), 9.587858347, 2e-6);
+  EXPECT_NEAR(UncodedEbnoDbAtBer(kBpsk, 1e-5), 9.587858347, 2e-6);
 }
 
-TEST(UncodedEbn0DbAtBer, InvertsUncodedBer) {
+TEST(UncodedEbnoDbAtBer, InvertsUncodedBer) {
   for (const Modulation& modulation : {kQpsk, k8Psk, k16Qam, k256Qam}) {
     for (double ber : {1e-2, 1e-5, 1e-9}) {
-      const double ebn0_db = UncodedEbn0DbAtBer(modulation, ber);
-      ASSERT_TRUE(std::isfinite(ebn0_db)) << ToString(modulation);
+      const double ebno_db = UncodedEbnoDbAtBer(modulation, ber);
+      ASSERT_TRUE(std::isfinite(ebno_db)) << ToString(modulation);
       // 1e-6 dB bracket width moves BER by < 1e-5 relative at these slopes.
-      EXPECT_NEAR(UncodedBer(modulation, ebn0_db) / ber, 1.0, 1e-5)
+      EXPECT_NEAR(UncodedBer(modulation, ebno_db) / ber, 1.0, 1e-5)
           << ToString(modulation) << " " << ber;
     }
   }
 }
 
-TEST(UncodedEbn0DbAtBer, UnreachableOrInvalidTargetsGiveNan) {
-  EXPECT_TRUE(std::isnan(UncodedEbn0DbAtBer(kBpsk, 0.5)));
-  EXPECT_TRUE(std::isnan(UncodedEbn0DbAtBer(kBpsk, 0.0)));
-  EXPECT_TRUE(std::isnan(UncodedEbn0DbAtBer(kBpsk, -1e-3)));
-  EXPECT_TRUE(std::isnan(UncodedEbn0DbAtBer(Modulation{ModulationFamily::kQam, 8}, 1e-3)));
+TEST(UncodedEbnoDbAtBer, UnreachableOrInvalidTargetsGiveNan) {
+  EXPECT_TRUE(std::isnan(UncodedEbnoDbAtBer(kBpsk, 0.5)));
+  EXPECT_TRUE(std::isnan(UncodedEbnoDbAtBer(kBpsk, 0.0)));
+  EXPECT_TRUE(std::isnan(UncodedEbnoDbAtBer(kBpsk, -1e-3)));
+  EXPECT_TRUE(std::isnan(UncodedEbnoDbAtBer(Modulation{ModulationFamily::kQam, 8}, 1e-3)));
 }
 
 TEST(UncodedTheory, UnsupportedOrdersGiveNan) {

@@ -66,7 +66,7 @@ SchemeConfig ShapedQpsk() {
 ChainFigures MeasureChain(const SchemeConfig& s, int units, int repeats) {
   auto chain = Chain::Create(s, 1).value();
   NoiseSpec spec;
-  spec.ebn0_db = 6.0;
+  spec.ebno_db = 6.0;
   spec.bits_per_symbol = s.modulation.bits_per_symbol();
   spec.samples_per_symbol = chain.samples_per_symbol();
   const AwgnChannel channel(spec);

@@ -95,17 +95,17 @@ struct Frames {
   std::vector<float> llrs;
 };
 
-// `count` random codewords through BPSK (0 -> +1) and AWGN at ebn0_db; LLR =
+// `count` random codewords through BPSK (0 -> +1) and AWGN at ebno_db; LLR =
 // 4 y / N0 with N0 from ComputeNoiseLevel (R = k / n, one bit per symbol).
-const Frames& GetFrames(double ebn0_db, std::size_t count) {
+const Frames& GetFrames(double ebno_db, std::size_t count) {
   static std::map<std::pair<double, std::size_t>, Frames> cache;
-  auto it = cache.find({ebn0_db, count});
+  auto it = cache.find({ebno_db, count});
   if (it != cache.end()) return it->second;
   const Setup& s = GetSetup();
   const LdpcEncoder enc = LdpcEncoder::Create(s.code).value();
   const auto n = static_cast<std::size_t>(s.n);
   NoiseSpec spec;
-  spec.ebn0_db = ebn0_db;
+  spec.ebno_db = ebno_db;
   spec.code_rate = static_cast<double>(s.k) / s.n;
   const NoiseLevel noise = ComputeNoiseLevel(spec);
   RngStream bits(DeriveKey(7, "ldpc_bench"), 0, 0, Substream::kBits);
@@ -123,7 +123,7 @@ const Frames& GetFrames(double ebn0_db, std::size_t count) {
     AddRealNoise(y, static_cast<float>(noise.sigma_per_dim), awgn);
     for (float& x : y) x = static_cast<float>(4.0 * x / noise.n0);
   }
-  return cache.emplace(std::make_pair(ebn0_db, count), std::move(f)).first->second;
+  return cache.emplace(std::make_pair(ebno_db, count), std::move(f)).first->second;
 }
 
 LdpcDecoder MakeDecoder(LdpcSchedule schedule, LdpcArithmetic arithmetic, int iterations,
@@ -166,9 +166,9 @@ void ReportIterations(benchmark::State& state,
 
 // Through LdpcDecoder (the production path).
 void RunDecoder(benchmark::State& state, LdpcSchedule schedule, LdpcArithmetic arithmetic,
-                bool force_scalar, double ebn0_db, int iterations, bool early_stop,
+                bool force_scalar, double ebno_db, int iterations, bool early_stop,
                 std::size_t frames) {
-  const Frames& f = GetFrames(ebn0_db, frames);
+  const Frames& f = GetFrames(ebno_db, frames);
   const LdpcDecoder dec = MakeDecoder(schedule, arithmetic, iterations, early_stop);
   LdpcDecoder::Workspace ws = dec.MakeWorkspace();
   std::vector<Bit> decided(f.llrs.size());
@@ -185,27 +185,27 @@ void RunDecoder(benchmark::State& state, LdpcSchedule schedule, LdpcArithmetic a
   ReportIterations(state, &results);
 }
 
-constexpr double kFixedEbN0 = 1.5;
+constexpr double kFixedEbno = 1.5;
 constexpr int kFixedIterations = 10;
 
 void BM_Int8LayeredSimd(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, false, kFixedEbN0, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, false, kFixedEbno, kFixedIterations,
              false, 256);
 }
 void BM_Int16LayeredSimd(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt16, false, kFixedEbN0, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt16, false, kFixedEbno, kFixedIterations,
              false, 256);
 }
 void BM_Int8FloodingSimd(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kFlooding, LdpcArithmetic::kInt8, false, kFixedEbN0, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kFlooding, LdpcArithmetic::kInt8, false, kFixedEbno, kFixedIterations,
              false, 256);
 }
 void BM_Int8LayeredScalar(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, true, kFixedEbN0, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, true, kFixedEbno, kFixedIterations,
              false, 16);
 }
 void BM_FloatLayeredScalar(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbN0, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbno, kFixedIterations,
              false, 16);
 }
 BENCHMARK(BM_Int8LayeredSimd)->Unit(benchmark::kMillisecond);
@@ -222,7 +222,7 @@ BENCHMARK(BM_Int8LayeredEarlyStop)->Arg(10)->Arg(15)->Arg(20)->Unit(benchmark::k
 
 // The kernel on one given Highway target (int8, layered, fixed work).
 void RunOnTarget(benchmark::State& state, std::int64_t target) {
-  const Frames& f = GetFrames(kFixedEbN0, 256);
+  const Frames& f = GetFrames(kFixedEbno, 256);
   const LdpcDecoder dec =
       MakeDecoder(LdpcSchedule::kLayered, LdpcArithmetic::kInt8, kFixedIterations, false);
   hwy::SetSupportedTargetsForTest(target);

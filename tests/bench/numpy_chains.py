@@ -71,9 +71,9 @@ def main():
     args = ap.parse_args()
     rng = np.random.default_rng(1)
     n = args.bits - args.bits % 4
-    ebn0 = 10 ** (6.0 / 10)
-    sigma_bpsk = np.float32(np.sqrt(1 / (2 * ebn0)))
-    n0_16 = np.float32(1 / (4 * ebn0))
+    ebno = 10 ** (6.0 / 10)
+    sigma_bpsk = np.float32(np.sqrt(1 / (2 * ebno)))
+    n0_16 = np.float32(1 / (4 * ebno))
     sigma_16 = np.float32(np.sqrt(n0_16 / 2))
     levels = qam16_tables()
     out = {

@@ -310,9 +310,9 @@ def gray_pam_error_rates(side, d_over_sigma):
     return ber / (side * bits), wrong / side
 
 
-def independent_uncoded(modulation, ebn0_db):
+def independent_uncoded(modulation, ebno_db):
     """(BER, SER) of Gray bpsk / qpsk / square M-QAM, or None if unknown."""
-    eb = 10.0 ** (ebn0_db / 10.0)
+    eb = 10.0 ** (ebno_db / 10.0)
     if modulation == "bpsk":
         p = qfunc(math.sqrt(2.0 * eb))
         return p, p

@@ -53,11 +53,11 @@ def qfunc(x):
     return 0.5 * math.erfc(x / math.sqrt(2.0))
 
 
-def cho_yoon_ber(order, ebn0_db):
+def cho_yoon_ber(order, ebno_db):
     """Gray square M-QAM BER on AWGN (Cho & Yoon 2002), rho = log2(M)."""
     m = int(round(math.log2(order)))
     side = int(round(math.sqrt(order)))
-    gamma_b = 10.0 ** (ebn0_db / 10.0)
+    gamma_b = 10.0 ** (ebno_db / 10.0)
     arg = math.sqrt(3.0 * m * gamma_b / (2.0 * (order - 1)))
     levels_bits = int(round(math.log2(side)))
     total = 0.0
@@ -73,15 +73,15 @@ def cho_yoon_ber(order, ebn0_db):
     return total / levels_bits
 
 
-def square_qam_ser(order, ebn0_db):
+def square_qam_ser(order, ebno_db):
     m = math.log2(order)
     side = math.sqrt(order)
-    esn0 = m * 10.0 ** (ebn0_db / 10.0)
-    pl = 2.0 * (1.0 - 1.0 / side) * qfunc(math.sqrt(3.0 * esn0 / (order - 1)))
+    esno = m * 10.0 ** (ebno_db / 10.0)
+    pl = 2.0 * (1.0 - 1.0 / side) * qfunc(math.sqrt(3.0 * esno / (order - 1)))
     return pl * (2.0 - pl)  # = 1 - (1 - P_L)^2 without cancellation
 
 
-def ebn0_at_ber(ber_fn, target, lo=-10.0, hi=60.0):
+def ebno_at_ber(ber_fn, target, lo=-10.0, hi=60.0):
     """Bisection to 1e-9 dB on a decreasing BER curve; NaN if not bracketed."""
     if not (ber_fn(lo) > target > ber_fn(hi)):
         return math.nan
@@ -136,13 +136,13 @@ def clopper_pearson(k, n, alpha=ALPHA):
     return low, high
 
 
-def bpsk_mutual_information(esn0_db, nodes=80):
+def bpsk_mutual_information(esno_db, nodes=80):
     """I(X;Y) in bit for equiprobable +-1 on a real AWGN channel of variance N0/2.
 
     Gauss-Hermite quadrature over the noise; used for the rate-1/2 limit.
     """
     x, w = np.polynomial.hermite.hermgauss(nodes)
-    n0 = 1.0 / 10.0 ** (esn0_db / 10.0)
+    n0 = 1.0 / 10.0 ** (esno_db / 10.0)
     sigma = math.sqrt(n0 / 2.0)
     noise = math.sqrt(2.0) * sigma * x
     # Given x = +1 sent: log2(1 + exp(-2 * 2 (1 + n) / N0)) averaged.
@@ -261,7 +261,7 @@ def write_scheme(f, rng, name, modulation, order, code, rate, grid, ber_fn,
     at = crossing_db(grid, ber, TARGET_BER)
     at_low = crossing_db(grid, ber_ci[:, 0], TARGET_BER)
     at_high = crossing_db(grid, ber_ci[:, 1], TARGET_BER)
-    uncoded = ebn0_at_ber(lambda x: cho_yoon_ber(order, x), TARGET_BER)
+    uncoded = ebno_at_ber(lambda x: cho_yoon_ber(order, x), TARGET_BER)
     summ = g.create_group("summary")
     summ.attrs["ebno_at_target_db"] = np.float64(at)
     summ.attrs["ebno_at_target_low_db"] = np.float64(at_low)

@@ -126,7 +126,7 @@ TEST(LdpcChain, MinSumWithinAThirdOfADbOfSumProduct) {
 TEST(LdpcChain, SixteenQamBicmSitsRightOfItsCapacityLimit) {
   auto chain = Chain::Create(Ldpc("16qam", "min_sum_normalized"), 11);
   ASSERT_TRUE(chain.ok()) << chain.status().message();
-  const double limit = analysis::BicmMinEbn0Db(chain.value().mapper().points(), 2.0);
+  const double limit = analysis::BicmMinEbnoDb(chain.value().mapper().points(), 2.0);
   EXPECT_NEAR(limit, 2.27, 0.01);
   // At the limit itself the frame error rate is near 1: 64 frames suffice.
   const PointResult at_limit = RunAt(chain.value(), limit, 1, 2016 * 64);
@@ -178,7 +178,7 @@ TEST(LdpcChain, RunsOnEveryModulationAndWithShaping) {
       }
       auto chain = Chain::Create(s, 11);
       ASSERT_TRUE(chain.ok()) << mod << ": " << chain.status().message();
-      const double ebno = analysis::UncodedEbn0DbAtBer(s.modulation, 1e-3);
+      const double ebno = analysis::UncodedEbnoDbAtBer(s.modulation, 1e-3);
       const PointResult r = RunAt(chain.value(), ebno, 1, 1);  // exactly one unit
       EXPECT_EQ(r.counts.frames, chain.value().unit_frames()) << mod;
       EXPECT_EQ(r.counts.bit_errors, 0u) << mod << (shaped ? " shaped" : "") << " at " << ebno << " dB";

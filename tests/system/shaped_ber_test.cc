@@ -108,7 +108,7 @@ TEST(ShapedBer, SpectralEfficiencyUsesMeasuredBandwidth) {
   EXPECT_NEAR(r.spectrum.occupied_bandwidth_99, 1.1667, 0.03 * 1.1667);
   EXPECT_NEAR(r.spectral_efficiency, 2.0 / r.spectrum.occupied_bandwidth_99, 1e-12);
   EXPECT_NEAR(r.spectral_efficiency_ideal, 2.0 / 1.35, 1e-12);
-  EXPECT_NEAR(r.limits.shannon_ebno_db, analysis::ShannonMinEbn0Db(r.spectral_efficiency), 1e-12);
+  EXPECT_NEAR(r.limits.shannon_ebno_db, analysis::ShannonMinEbnoDb(r.spectral_efficiency), 1e-12);
 }
 
 }  // namespace

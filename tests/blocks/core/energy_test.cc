@@ -14,9 +14,9 @@ namespace {
 // N0 = 1 and sigma = sqrt(1/2) = 0.70711 (arithmetic).
 TEST(ComputeNoiseLevel, BpskAtZeroDbHasUnitN0) {
   const NoiseLevel level = ComputeNoiseLevel(
-      {.ebn0_db = 0.0, .code_rate = 1.0, .bits_per_symbol = 1, .samples_per_symbol = 1});
+      {.ebno_db = 0.0, .code_rate = 1.0, .bits_per_symbol = 1, .samples_per_symbol = 1});
   EXPECT_DOUBLE_EQ(level.info_bits_per_symbol, 1.0);
-  EXPECT_NEAR(level.esn0_db, 0.0, 1e-12);
+  EXPECT_NEAR(level.esno_db, 0.0, 1e-12);
   EXPECT_NEAR(level.n0, 1.0, 1e-12);
   EXPECT_NEAR(level.sigma_per_dim, 0.70710678, 1e-8);
   EXPECT_NEAR(level.per_sample_snr_db, 0.0, 1e-12);
@@ -29,9 +29,9 @@ TEST(ComputeNoiseLevel, BpskAtZeroDbHasUnitN0) {
 // were confirmed by evaluating the same expressions with Python's math module).
 TEST(ComputeNoiseLevel, SixteenQamRateHalfAtThreeDb) {
   const NoiseLevel level = ComputeNoiseLevel(
-      {.ebn0_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 1});
+      {.ebno_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 1});
   EXPECT_DOUBLE_EQ(level.info_bits_per_symbol, 2.0);
-  EXPECT_NEAR(level.esn0_db, 6.0103, 1e-4);
+  EXPECT_NEAR(level.esno_db, 6.0103, 1e-4);
   EXPECT_NEAR(level.n0, 0.250594, 1e-6);
   EXPECT_NEAR(level.sigma_per_dim, 0.353973, 1e-6);
   EXPECT_NEAR(level.per_sample_snr_db, 6.0103, 1e-4);
@@ -42,12 +42,12 @@ TEST(ComputeNoiseLevel, SixteenQamRateHalfAtThreeDb) {
 // 6.0103 - 6.0206 = -0.0103 dB.
 TEST(ComputeNoiseLevel, OversamplingLowersOnlyThePerSampleSnr) {
   const NoiseLevel level = ComputeNoiseLevel(
-      {.ebn0_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 4});
-  EXPECT_NEAR(level.esn0_db, 6.0103, 1e-4);
+      {.ebno_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 4});
+  EXPECT_NEAR(level.esno_db, 6.0103, 1e-4);
   EXPECT_NEAR(level.n0, 0.250594, 1e-6);
   EXPECT_NEAR(level.per_sample_snr_db, -0.0103, 1e-4);
   const NoiseLevel one = ComputeNoiseLevel(
-      {.ebn0_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 1});
+      {.ebno_db = 3.0, .code_rate = 0.5, .bits_per_symbol = 4, .samples_per_symbol = 1});
   EXPECT_NEAR(one.per_sample_snr_db - level.per_sample_snr_db, 6.0206, 1e-4);
 }
 
@@ -55,9 +55,9 @@ TEST(ComputeNoiseLevel, OversamplingLowersOnlyThePerSampleSnr) {
 // (16.532 dB), N0 = 1/45 = 0.022222 (arithmetic).
 TEST(ComputeNoiseLevel, SixtyFourQamRateThreeQuarters) {
   const NoiseLevel level = ComputeNoiseLevel(
-      {.ebn0_db = 10.0, .code_rate = 0.75, .bits_per_symbol = 6, .samples_per_symbol = 1});
+      {.ebno_db = 10.0, .code_rate = 0.75, .bits_per_symbol = 6, .samples_per_symbol = 1});
   EXPECT_DOUBLE_EQ(level.info_bits_per_symbol, 4.5);
-  EXPECT_NEAR(level.esn0_db, 16.5321, 1e-4);
+  EXPECT_NEAR(level.esno_db, 16.5321, 1e-4);
   EXPECT_NEAR(level.n0, 1.0 / 45.0, 1e-12);
 }
 
@@ -67,10 +67,10 @@ TEST(Energy, DecibelConversionsAreInverse) {
   EXPECT_NEAR(LinearToDb(2.0), 3.0103, 1e-4);
   for (double db : {-20.0, -1.59, 0.0, 4.5, 30.0}) {
     EXPECT_NEAR(LinearToDb(DbToLinear(db)), db, 1e-12);
-    EXPECT_NEAR(EbN0DbFromEsN0Db(EsN0DbFromEbN0Db(db, 3.0), 3.0), db, 1e-12);
+    EXPECT_NEAR(EbnoDbFromEsnoDb(EsnoDbFromEbnoDb(db, 3.0), 3.0), db, 1e-12);
   }
   // rho = 2: Es/N0 is 3.0103 dB above Eb/N0.
-  EXPECT_NEAR(EsN0DbFromEbN0Db(0.0, 2.0), 3.0103, 1e-4);
+  EXPECT_NEAR(EsnoDbFromEbnoDb(0.0, 2.0), 3.0103, 1e-4);
 }
 
 }  // namespace

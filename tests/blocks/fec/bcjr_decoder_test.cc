@@ -41,15 +41,15 @@ TEST(BcjrDecoder, HardDecisionsEqualViterbiDecisions) {
     const ViterbiDecoder vit = ViterbiDecoder::Create(code, o).value();
     BcjrDecoder::Workspace wb = bcjr.MakeWorkspace(300);
     ViterbiDecoder::Workspace wv = vit.MakeWorkspace(300);
-    for (double ebn0_db : {-100.0, 2.0, 5.0}) {  // -100: noiseless marker
+    for (double ebno_db : {-100.0, 2.0, 5.0}) {  // -100: noiseless marker
       for (int f = 0; f < 30; ++f) {
         std::vector<Bit> info(300), coded(code.CodedLength(300)), vout(300);
         for (auto& b : info) b = static_cast<Bit>(rng() & 1u);
         code.Encode(info, coded);
         std::vector<float> llr(coded.size());
         for (std::size_t i = 0; i < coded.size(); ++i) llr[i] = coded[i] ? -1.0f : 1.0f;
-        if (ebn0_db > -50.0) {
-          const double n0 = 1.0 / (code.EffectiveRate(300) * std::pow(10.0, ebn0_db / 10.0));
+        if (ebno_db > -50.0) {
+          const double n0 = 1.0 / (code.EffectiveRate(300) * std::pow(10.0, ebno_db / 10.0));
           RngStream stream(key, 0, unit++, Substream::kNoise);
           AddRealNoise(llr, static_cast<float>(std::sqrt(n0 / 2)), stream);
           for (auto& v : llr) v = static_cast<float>(4.0 * v / n0);
@@ -64,8 +64,8 @@ TEST(BcjrDecoder, HardDecisionsEqualViterbiDecisions) {
           ASSERT_FALSE(std::isnan(out[i]));
           hard[i] = out[i] < 0.0f ? 1 : 0;
         }
-        EXPECT_EQ(hard, vout) << gens << " " << pattern << " " << ebn0_db << " dB frame " << f;
-        if (ebn0_db < -50.0) {
+        EXPECT_EQ(hard, vout) << gens << " " << pattern << " " << ebno_db << " dB frame " << f;
+        if (ebno_db < -50.0) {
           EXPECT_EQ(hard, info);
         }
       }

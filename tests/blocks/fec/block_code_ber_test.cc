@@ -68,9 +68,9 @@ TEST(BlockCodeBer, GolayFerAt3dBIsAtMostTheUnionBoundAndAboveFourTenthsOfIt) {
   const BlockMlDecoder& dec = dec_or.value();
   BlockMlDecoder::Workspace ws = dec.MakeWorkspace();
 
-  constexpr double kEbN0Db = 3.0;
+  constexpr double kEbnoDb = 3.0;
   NoiseSpec spec;
-  spec.ebn0_db = kEbN0Db;
+  spec.ebno_db = kEbnoDb;
   spec.code_rate = code.rate();
   spec.bits_per_symbol = 1;
   const AwgnChannel channel(spec);
@@ -103,7 +103,7 @@ TEST(BlockCodeBer, GolayFerAt3dBIsAtMostTheUnionBoundAndAboveFourTenthsOfIt) {
       ++frames;
     }
   }
-  const std::vector<double> db = {kEbN0Db};
+  const std::vector<double> db = {kEbnoDb};
   const double fer_bound = analysis::BlockCodeFerUnionBound(code.weight_enumerator(), db)[0];
   const double ber_bound = analysis::BlockCodeBerUnionBound(code.weight_enumerator(), db)[0];
   const double fer = static_cast<double>(frame_errors) / static_cast<double>(frames);
@@ -111,7 +111,7 @@ TEST(BlockCodeBer, GolayFerAt3dBIsAtMostTheUnionBoundAndAboveFourTenthsOfIt) {
   std::printf(
       "golay24 at %.1f dB: %llu / %llu frame errors, FER %.4e (99%% CI [%.4e, %.4e]), "
       "union bound %.4e; BER %.4e, bound %.4e\n",
-      kEbN0Db, static_cast<unsigned long long>(frame_errors),
+      kEbnoDb, static_cast<unsigned long long>(frame_errors),
       static_cast<unsigned long long>(frames), fer, ci.lower, ci.upper, fer_bound,
       static_cast<double>(bit_errors) / static_cast<double>(frames * k), ber_bound);
   ASSERT_GE(frame_errors, 400u);
@@ -119,7 +119,7 @@ TEST(BlockCodeBer, GolayFerAt3dBIsAtMostTheUnionBoundAndAboveFourTenthsOfIt) {
   // Raw channel: Q(sqrt(2 R Eb/N0)), +-5 binomial sigma.
   const double p_channel =
       0.5 *
-      std::erfc(std::sqrt(2.0 * code.rate() * std::pow(10.0, kEbN0Db / 10.0)) / std::sqrt(2.0));
+      std::erfc(std::sqrt(2.0 * code.rate() * std::pow(10.0, kEbnoDb / 10.0)) / std::sqrt(2.0));
   const double coded_bits = static_cast<double>(frames * n);
   const double sigma = std::sqrt(coded_bits * p_channel * (1.0 - p_channel));
   EXPECT_NEAR(static_cast<double>(channel_errors), coded_bits * p_channel, 5.0 * sigma);

@@ -98,17 +98,17 @@ TEST(DistanceSpectrum, RejectsBadTermCount) {
 // evaluated here term by term with Q(x) = 0.5 erfc(x / sqrt 2) (Proakis &
 // Salehi 5th ed. ch. 8 bound; arithmetic written out independently), and the
 // leading term alone as a lower bound of the sum.
-TEST(UnionBound, EqualsTermwiseSumAndDecreasesWithEbN0) {
+TEST(UnionBound, EqualsTermwiseSumAndDecreasesWithEbno) {
   const DistanceSpectrum s = Spectrum("133,171");
-  const double ebn0 = std::pow(10.0, 0.4);
+  const double ebno = std::pow(10.0, 0.4);
   const double beta[] = {36, 211, 1404, 11633, 77433};
   double sum = 0.0;
   for (int j = 0; j < 5; ++j) {
     const double d = 10 + 2 * j;
-    sum += beta[j] * 0.5 * std::erfc(std::sqrt(2.0 * d * 0.5 * ebn0) / std::sqrt(2.0));
+    sum += beta[j] * 0.5 * std::erfc(std::sqrt(2.0 * d * 0.5 * ebno) / std::sqrt(2.0));
   }
   EXPECT_NEAR(UnionBoundBer(s, 4.0, 0.5), sum, 1e-12 * sum);
-  EXPECT_GT(UnionBoundBer(s, 4.0, 0.5), 36 * 0.5 * std::erfc(std::sqrt(10 * 0.5 * ebn0)));
+  EXPECT_GT(UnionBoundBer(s, 4.0, 0.5), 36 * 0.5 * std::erfc(std::sqrt(10 * 0.5 * ebno)));
   EXPECT_LT(UnionBoundBer(s, 5.0, 0.5), UnionBoundBer(s, 4.0, 0.5));
 }
 

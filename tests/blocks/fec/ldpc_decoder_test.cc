@@ -174,20 +174,20 @@ const std::shared_ptr<const LdpcCode>& MediumCode() {
   return code;
 }
 
-// Noisy frames: random codewords, BPSK 0 -> +1, AWGN at ebn0_db for rate
+// Noisy frames: random codewords, BPSK 0 -> +1, AWGN at ebno_db for rate
 // 1/2, LLR = 4 y / N0 (the project's conventions).
 struct Frames {
   std::vector<Bit> codewords;
   std::vector<float> llrs;
 };
-Frames NoisyFrames(const LdpcCode& code, std::size_t count, double ebn0_db, std::uint32_t unit) {
+Frames NoisyFrames(const LdpcCode& code, std::size_t count, double ebno_db, std::uint32_t unit) {
   const Codewords source(code);
   std::mt19937_64 rng(1000u + unit);
   const auto n = static_cast<std::size_t>(code.length());
   Frames f;
   f.codewords.resize(count * n);
   f.llrs.resize(count * n);
-  const double n0 = 1.0 / (0.5 * std::pow(10.0, ebn0_db / 10.0));
+  const double n0 = 1.0 / (0.5 * std::pow(10.0, ebno_db / 10.0));
   RngStream noise(DeriveKey(20240711u, "ldpc_decoder_test"), 0u, unit, Substream::kNoise);
   for (std::size_t i = 0; i < count; ++i) {
     const std::vector<Bit> c = source.Random(rng);

@@ -43,9 +43,9 @@ std::vector<Bit> RandomBits(std::size_t n, std::mt19937_64& rng) {
 }
 
 // BPSK (0 -> +1) over AWGN at Eb/N0 (R = effective rate), LLR = 4 y / N0.
-std::vector<float> NoisyLlrs(const std::vector<Bit>& coded, double ebn0_db, double rate,
+std::vector<float> NoisyLlrs(const std::vector<Bit>& coded, double ebno_db, double rate,
                              RngStream& stream) {
-  const double n0 = 1.0 / (rate * std::pow(10.0, ebn0_db / 10.0));
+  const double n0 = 1.0 / (rate * std::pow(10.0, ebno_db / 10.0));
   std::vector<float> y(coded.size());
   for (std::size_t i = 0; i < coded.size(); ++i) y[i] = coded[i] ? -1.0f : 1.0f;
   AddRealNoise(y, static_cast<float>(std::sqrt(n0 / 2.0)), stream);

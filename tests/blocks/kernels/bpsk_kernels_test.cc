@@ -392,10 +392,10 @@ TEST(BpskKernels, ConsecutiveCallsContinueBothStreams) {
 // bits: expected 1638.5 errors, binomial sd 40.2; band +-4.5 sd (two-sided
 // probability ~7e-6 for a correct kernel; normal approximation).
 TEST(BpskKernels, BerMatchesClosedFormAt4dB) {
-  const double ebn0 = std::pow(10.0, 0.4);
-  const double p = 0.5 * boost::math::erfc(std::sqrt(2.0 * ebn0) / std::sqrt(2.0));
+  const double ebno = std::pow(10.0, 0.4);
+  const double p = 0.5 * boost::math::erfc(std::sqrt(2.0 * ebno) / std::sqrt(2.0));
   ASSERT_NEAR(p, 1.2501e-2, 1e-6);
-  const auto sigma = static_cast<float>(std::sqrt(1.0 / (2.0 * ebn0)));
+  const auto sigma = static_cast<float>(std::sqrt(1.0 / (2.0 * ebno)));
   const std::size_t frame = 4096, frames = 32;  // 2^17 bits
   std::uint64_t errors = 0;
   for (std::uint32_t f = 0; f < frames; ++f) {

@@ -141,10 +141,10 @@ float Normal(std::mt19937_64& rng) {
 std::vector<float> MakeFrames(int n, std::size_t count, std::uint64_t seed) {
   std::mt19937_64 rng(seed);
   std::vector<float> llr(count * static_cast<std::size_t>(n));
-  const double ebn0_db[5] = {0.0, 1.0, 2.0, 3.0, 5.0};
+  const double ebno_db[5] = {0.0, 1.0, 2.0, 3.0, 5.0};
   for (std::size_t f = 0; f < count; ++f) {
     float* x = llr.data() + f * static_cast<std::size_t>(n);
-    const double n0 = 1.0 / (0.5 * std::pow(10.0, ebn0_db[f % 5] / 10.0));
+    const double n0 = 1.0 / (0.5 * std::pow(10.0, ebno_db[f % 5] / 10.0));
     const float sigma = static_cast<float>(std::sqrt(n0 / 2.0));
     for (int i = 0; i < n; ++i) {
       float y = 1.0f + sigma * Normal(rng);

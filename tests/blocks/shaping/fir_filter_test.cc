@@ -393,7 +393,7 @@ TEST(Receiver, MatchedFilterNoiseVarianceEqualsN0) {
       const PulseSpec spec{PulseShape::kRootRaisedCosine, 0.35, 16, sps};
       const Receiver rx = Receiver::Create(spec, 0.0, m).value();
       NoiseSpec ns;
-      ns.ebn0_db = 4.0;
+      ns.ebno_db = 4.0;
       ns.bits_per_symbol = 2;
       ns.samples_per_symbol = sps;
       const AwgnChannel channel(ns);

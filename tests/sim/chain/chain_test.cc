@@ -35,9 +35,9 @@ SchemeConfig BpskHard(std::uint32_t frame_bits, std::uint32_t unit_frames, Sourc
   return s;
 }
 
-AwgnChannel BpskChannel(double ebn0_db) {
+AwgnChannel BpskChannel(double ebno_db) {
   NoiseSpec spec;
-  spec.ebn0_db = ebn0_db;
+  spec.ebno_db = ebno_db;
   spec.bits_per_symbol = 1;
   return AwgnChannel(spec);
 }
@@ -91,17 +91,17 @@ UnitCounts HandComposedUnit(const SchemeConfig& s, std::uint64_t seed, const Awg
 }
 
 void ExpectRunUnitEqualsHandComposed(const SchemeConfig& s, std::uint64_t seed,
-                                     const std::vector<double>& ebn0_db,
+                                     const std::vector<double>& ebno_db,
                                      std::uint64_t& total_bit_errors,
                                      std::uint64_t& error_free_frames) {
   const Chain chain = Chain::Create(s, seed).value();
   ChainWorkspace ws = chain.MakeWorkspace();
-  for (std::size_t p = 0; p < ebn0_db.size(); ++p) {
-    const AwgnChannel channel = BpskChannel(ebn0_db[p]);
+  for (std::size_t p = 0; p < ebno_db.size(); ++p) {
+    const AwgnChannel channel = BpskChannel(ebno_db[p]);
     const auto point = static_cast<std::uint32_t>(p);
     for (std::uint32_t unit : {0u, 1u, 7u, 1000u}) {
       SCOPED_TRACE(testing::Message()
-                   << s.name << " seed=" << seed << " Eb/N0=" << ebn0_db[p] << " unit=" << unit);
+                   << s.name << " seed=" << seed << " Eb/N0=" << ebno_db[p] << " unit=" << unit);
       const UnitCounts want = HandComposedUnit(s, seed, channel, point, unit);
       const UnitCounts got = chain.RunUnit(channel, point, unit, ws);
       EXPECT_EQ(got, want);
@@ -113,13 +113,13 @@ void ExpectRunUnitEqualsHandComposed(const SchemeConfig& s, std::uint64_t seed,
 
 // Eb/N0 from BER ~0.2 down to ~1e-4 (Q(sqrt(2 Eb/N0)), 8 dB: 1.9e-4), so the
 // comparison sees units with many errors and frames without any.
-const std::vector<double> kEbN0Db = {-3.0, 0.0, 4.0, 8.0};
+const std::vector<double> kEbnoDb = {-3.0, 0.0, 4.0, 8.0};
 
 TEST(ChainBpskHard, RunUnitEqualsHandComposedChainWithRandomBits) {
   std::uint64_t errors = 0, clean_frames = 0;
   for (std::uint64_t seed : {1u, 20240603u}) {
     for (std::uint32_t frame_bits : {3840u, 1001u, 65u, 1u}) {
-      ExpectRunUnitEqualsHandComposed(BpskHard(frame_bits, 3, SourceKind::kRandom), seed, kEbN0Db,
+      ExpectRunUnitEqualsHandComposed(BpskHard(frame_bits, 3, SourceKind::kRandom), seed, kEbnoDb,
                                       errors, clean_frames);
     }
   }
@@ -131,7 +131,7 @@ TEST(ChainBpskHard, RunUnitEqualsHandComposedChainWithPrbsBits) {
   std::uint64_t errors = 0, clean_frames = 0;
   for (SourceKind source : {SourceKind::kPrbs9, SourceKind::kPrbs23}) {
     for (std::uint32_t frame_bits : {3840u, 1001u}) {
-      ExpectRunUnitEqualsHandComposed(BpskHard(frame_bits, 2, source), 5u, kEbN0Db, errors,
+      ExpectRunUnitEqualsHandComposed(BpskHard(frame_bits, 2, source), 5u, kEbnoDb, errors,
                                       clean_frames);
     }
   }
@@ -143,9 +143,9 @@ TEST(ChainBpskHard, RunUnitEqualsHandComposedChainWithPrbsBits) {
 TEST(ChainBpskHard, RunUnitEqualsHandComposedChainOnScalarKernels) {
   const bool before = ForceScalarKernels(true);
   std::uint64_t errors = 0, clean_frames = 0;
-  ExpectRunUnitEqualsHandComposed(BpskHard(4097, 0, SourceKind::kRandom), 3u, kEbN0Db, errors,
+  ExpectRunUnitEqualsHandComposed(BpskHard(4097, 0, SourceKind::kRandom), 3u, kEbnoDb, errors,
                                   clean_frames);
-  ExpectRunUnitEqualsHandComposed(BpskHard(1001, 2, SourceKind::kPrbs15), 3u, kEbN0Db, errors,
+  ExpectRunUnitEqualsHandComposed(BpskHard(1001, 2, SourceKind::kPrbs15), 3u, kEbnoDb, errors,
                                   clean_frames);
   ForceScalarKernels(before);
   EXPECT_GT(errors, 1000u);

@@ -102,7 +102,7 @@ TEST(SchemeResultViews, ConstellationNoiseMatchesN0) {
     auto chain = Chain::Create(Qpsk(shaping), 3);
     ASSERT_TRUE(chain.ok());
     NoiseSpec spec;
-    spec.ebn0_db = 10;
+    spec.ebno_db = 10;
     spec.bits_per_symbol = 2;
     spec.samples_per_symbol = chain.value().samples_per_symbol();
     const AwgnChannel channel(spec);
@@ -132,13 +132,13 @@ TEST(SchemeResultViews, ConstellationIsDrawnAtTheOperatingPoint) {
 // Gray QPSK is two independent BPSK channels at half the Es/N0 each, so its
 // constrained capacity at rho bits per symbol needs the Eb/N0 of binary input
 // at rate rho/2 (common practice; an identity independent of the 2-D
-// quadrature, which BinaryInputMinEbn0Db evaluates in 1-D).
+// quadrature, which BinaryInputMinEbnoDb evaluates in 1-D).
 TEST(SchemeResultViews, QpskConstrainedCurveEqualsBinaryInputAtHalfRate) {
   const SchemeResult r = Analyse(Qpsk(PulseShape::kNone));
   ASSERT_EQ(r.limits.constrained_curve_rho.size(), 24u);
   for (std::size_t i = 0; i < r.limits.constrained_curve_rho.size(); ++i) {
     const double rho = r.limits.constrained_curve_rho[i];
-    EXPECT_NEAR(r.limits.constrained_curve_ebno_db[i], analysis::BinaryInputMinEbn0Db(rho / 2), 0.01)
+    EXPECT_NEAR(r.limits.constrained_curve_ebno_db[i], analysis::BinaryInputMinEbnoDb(rho / 2), 0.01)
         << "rho = " << rho;
   }
 }

@@ -76,7 +76,7 @@ TEST(Engine, StopsAtFirstPrefixReachingTargetErrors) {
   EXPECT_GE(r.counts.bit_errors, 500u);
   // Recompute the prefix serially, unit by unit.
   NoiseSpec spec;
-  spec.ebn0_db = 3.0;
+  spec.ebno_db = 3.0;
   spec.bits_per_symbol = 2;
   const AwgnChannel channel(spec);
   ChainWorkspace ws = chain.value().MakeWorkspace();

@@ -81,7 +81,7 @@ TEST(Theory, RateOutsideItsRangeIsAUsageError) {
   ExpectUsage(Table("qpsk", "0:1:2", kNan), "theory: --rate = nan" + rule);
 }
 
-TEST(Theory, EbN0PointsOutsideTheRangeOrNotNumbersAreUsageErrors) {
+TEST(Theory, EbnoPointsOutsideTheRangeOrNotNumbersAreUsageErrors) {
   ExpectUsage(Table("qpsk", "0:50:150", 1),
               "theory: --ebno-db = '0:50:150': point 150 dB is outside [-100, 100] dB");
   const Outcome r = Theory(Table("qpsk", "nan", 1));
