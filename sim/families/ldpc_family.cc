@@ -231,7 +231,8 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
 
 // Code facts, decoder settings and the density-evolution thresholds of an
 // LDPC scheme.
-void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r) {
+void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r,
+                 const std::atomic<bool>* stop) {
   const auto& ldpc = static_cast<const LdpcChannelCode&>(channel_code);
   const LdpcCode& code = ldpc.code();
   const LdpcSchemeConfig& c = scheme.ldpc;
@@ -275,7 +276,9 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
   }
   // The ensemble's threshold at the code's actual rate k/n (a rank-deficient
   // H carries a little more than the design rate).
-  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate);
+  analysis::QuantizedDeOptions de_options;
+  de_options.stop = stop;
+  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate, de_options);
   auto ga = analysis::GaussianApproxThreshold(dist.value(), r.code_rate);
   if (ga.ok()) lim.threshold_ga_ebno_db = ga.value().ebno_db;
   const auto& best = quantized.ok() ? quantized : ga;
