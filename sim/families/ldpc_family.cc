@@ -36,7 +36,9 @@ constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float
 constexpr KeySpec kLdpcKeys[] = {
     {"construction", "peg", OneOf(kConstructionWords),
      "progressive edge growth, a lifted quasi-cyclic base matrix, or a parity-check matrix file"},
-    {"length", "2016", IntegerIn(8, 1u << 20), "code length n, a multiple of bits per symbol",
+    // PEG and the dense encoder need O(n m) and O(m^2 n / 64) time: n = 32768
+    // builds in about 75 s on one core (README, "LDPC code sizes").
+    {"length", "2016", IntegerIn(8, 1u << 15), "code length n, a multiple of bits per symbol",
      OnlyWith("construction", kPegWord)},
     {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
      OnlyWith("construction", kPegWord)},
