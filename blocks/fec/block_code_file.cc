@@ -2,10 +2,10 @@
 #include "blocks/fec/block_code_file.h"
 
 #include <filesystem>
-#include <fstream>
 #include <system_error>
 #include <vector>
 
+#include "blocks/core/file_read.h"
 #include "blocks/fec/ldpc_matrix_file.h"
 
 namespace capgap {
@@ -146,18 +146,11 @@ Result<BlockCode> ReadBlockCodeFile(const std::string& path) {
     return Status::Error(path + ": " + std::to_string(size) + " bytes: must be at most " +
                          std::to_string(kMaxBlockCodeFileBytes) + " (1 MiB)");
   }
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return Status::Error(path + ": cannot open file");
-  // Read at most one byte past the limit (the file may have grown since).
-  std::string text(kMaxBlockCodeFileBytes + 1, '\0');
-  in.read(text.data(), static_cast<std::streamsize>(text.size()));
-  if (in.bad()) return Status::Error(path + ": read error");
-  text.resize(static_cast<std::size_t>(in.gcount()));
-  if (text.size() > kMaxBlockCodeFileBytes) {
-    return Status::Error(path + ": more than " + std::to_string(kMaxBlockCodeFileBytes) +
-                         " bytes: must be at most 1 MiB");
-  }
-  return ReadBlockCode(text, path);
+  // Bounded read: the type and size are checked again on the open
+  // descriptor (the file may have changed since).
+  Result<std::string> text = ReadRegularFile(path, kMaxBlockCodeFileBytes, "generator file", "file");
+  if (!text.ok()) return text.status();
+  return ReadBlockCode(text.value(), path);
 }
 
 Status WriteBlockCodeFile(const std::string& path, const BlockCode& code) {

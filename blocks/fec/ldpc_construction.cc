@@ -489,11 +489,11 @@ Result<BaseMatrix> ParseBaseMatrix(std::string_view text, std::string_view sourc
                          ": must be an integer >= 1");
   }
   const int z = base.design_lifting;
-  // Reserve no more than the text holds: a header alone (rows 100000 cols
-  // 2000000) must not allocate; missing rows are reported below.
-  std::size_t entries_in_text = 0;
-  for (std::size_t i = 1; i < lines.size(); ++i) entries_in_text += lines[i].words.size();
-  base.shifts.reserve(std::min(U(base.rows) * U(base.cols), entries_in_text));
+  // Reserved only when the text holds that many entries: the header alone
+  // sizes nothing (a short file stops at its first bad or missing row).
+  std::size_t entries = 0;
+  for (std::size_t i = 1; i < lines.size(); ++i) entries += lines[i].words.size();
+  if (U(base.rows) * U(base.cols) <= entries) base.shifts.reserve(U(base.rows) * U(base.cols));
   std::size_t next = 1;
   for (int r = 0; r < base.rows; ++r, ++next) {
     if (next >= lines.size()) {
@@ -526,7 +526,7 @@ Result<BaseMatrix> ParseBaseMatrix(std::string_view text, std::string_view sourc
 }
 
 Result<BaseMatrix> ReadBaseMatrixFile(const std::string& path) {
-  Result<std::string> text = ReadLdpcTextFile(path);
+  Result<std::string> text = ReadLdpcTextFile(path, kMaxBaseMatrixFileBytes, "base matrix file");
   if (!text.ok()) return text.status();
   return ParseBaseMatrix(text.value(), path);
 }

@@ -178,7 +178,11 @@ struct BaseMatrix {
 // which names the line and the value, e.g.
 //   "configs/codes/x.txt:7: entry '90': shift must be -1 or in [0, 84)".
 Result<BaseMatrix> ParseBaseMatrix(std::string_view text, std::string_view source_name);
-// Reads a file and parses it with source_name = path.
+// Largest base-matrix file read: 1 MiB (a base matrix has tens of columns).
+inline constexpr std::uint64_t kMaxBaseMatrixFileBytes = std::uint64_t{1} << 20;
+// Reads a regular file of at most kMaxBaseMatrixFileBytes (refused without
+// reading otherwise, blocks/core/file_read.h) and parses it with
+// source_name = path.
 Result<BaseMatrix> ReadBaseMatrixFile(const std::string& path);
 // The format above, preceded by `comment` (each of its lines prefixed "# ";
 // empty comment: none). ParseBaseMatrix(WriteBaseMatrix(b, c)) reproduces b.

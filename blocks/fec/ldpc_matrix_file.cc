@@ -1,23 +1,29 @@
 // Sparse H text format: reader, writer, and the shared text helpers.
 #include "blocks/fec/ldpc_matrix_file.h"
 
+#include <algorithm>
 #include <charconv>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
 #include <system_error>
 
+#include "blocks/core/file_read.h"
 #include "blocks/core/text.h"
 
 namespace capgap {
 namespace {
+
+// Headers with at most this many columns keep every message in file order
+// even when the check lines list fewer entries (see ReadLdpcMatrix).
+constexpr int kColumnsCheckedLate = 1 << 16;
 
 // Word separators of the LDPC text formats: blanks and a stray CR.
 constexpr std::string_view kSpaces = " \t\r";
 
 bool IsSpace(char c) { return kSpaces.find(c) != std::string_view::npos; }
 
-std::string_view Trim(std::string_view s) { return TrimBlanks(s, kSpaces); }
+std::string_view TrimSpaces(std::string_view s) { return TrimBlanks(s, kSpaces); }
 
 std::string Where(std::string_view source, int line) {
   return std::string(source) + ":" + std::to_string(line) + ": ";
@@ -36,7 +42,7 @@ std::vector<LdpcTextLine> SplitLdpcTextLines(std::string_view text) {
     std::string_view line = text.substr(pos, end - pos);
     const std::size_t hash = line.find('#');
     if (hash != std::string_view::npos) line = line.substr(0, hash);
-    line = Trim(line);
+    line = TrimSpaces(line);
     if (!line.empty()) {
       LdpcTextLine l;
       l.number = number;
@@ -68,13 +74,9 @@ bool ParseLdpcInt(std::string_view word, int* value) {
   return true;
 }
 
-Result<std::string> ReadLdpcTextFile(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return Status::Error(path + ": cannot open file");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  if (in.bad()) return Status::Error(path + ": read error");
-  return ss.str();
+Result<std::string> ReadLdpcTextFile(const std::string& path, std::uint64_t max_bytes,
+                                     std::string_view noun) {
+  return ReadRegularFile(path, max_bytes, noun, "file");
 }
 
 Status WriteLdpcTextFileAtomically(const std::string& path, std::string_view text) {
@@ -131,42 +133,37 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
   std::string description = "read from " + src;
   if (next < lines.size() && lines[next].words[0] == "description") {
     description =
-        std::string(Trim(lines[next].content.substr(std::string_view("description").size())));
+        std::string(TrimSpaces(lines[next].content.substr(std::string_view("description").size())));
     ++next;
   }
-  {
-    // The header's sizes against the text before anything is sized by them:
-    // m check lines must follow and every one of the n columns must be
-    // listed at least once, so a header alone cannot make the reader
-    // allocate gigabytes. (Small headers fall through to the line-by-line
-    // checks below, whose messages are more specific.)
-    constexpr std::size_t kSmall = std::size_t{1} << 20;
-    const std::size_t lines_left = lines.size() - next;
-    std::size_t column_words = 0;
-    for (std::size_t i = next; i < lines.size(); ++i) column_words += lines[i].words.size() - 1;
-    if (static_cast<std::size_t>(m) > lines_left && static_cast<std::size_t>(m) > kSmall) {
-      return Status::Error(src + ": ends after " + std::to_string(lines_left) + " of " +
-                           std::to_string(m) + " check lines");
-    }
-    if (static_cast<std::size_t>(n) > column_words && static_cast<std::size_t>(n) > kSmall) {
-      return Status::Error(Where(src, head.number) + "n " + Quoted(hw[2]) + ": the file lists " +
-                           std::to_string(column_words) +
-                           " column entries, fewer than n (every column must be in a check)");
-    }
+  // Nothing is sized from the header alone. The check lines are collected
+  // as they are read (a short file stops at "ends after"); the per-column
+  // marks need n entries, so a header declaring more columns than the check
+  // lines list (a file that must fail with "column ... is in no check") is
+  // refused up front once n is large enough for the marks to matter.
+  const std::size_t remaining = lines.size() - next;
+  std::size_t entries = 0;
+  for (std::size_t i = next; i < lines.size(); ++i) entries += lines[i].words.size() - 1;
+  if (static_cast<std::size_t>(n) > entries && n > kColumnsCheckedLate) {
+    return Status::Error(Where(src, head.number) + "n = " + std::to_string(n) +
+                         " columns but the check lines list " + std::to_string(entries) +
+                         " entries; every column must be in a check");
   }
-  std::vector<std::vector<int>> rows(static_cast<std::size_t>(m));
+  std::vector<std::vector<int>> rows;
+  rows.reserve(std::min(static_cast<std::size_t>(m), remaining));
   std::vector<int> seen_in_row(static_cast<std::size_t>(n), -1);
   // Block-row check for lifted codes: the last check (row) of the current
   // block row that used each column.
   std::vector<int> block_row_user(static_cast<std::size_t>(n), -1);
-  std::vector<int> row_line(static_cast<std::size_t>(m), 0);
+  std::vector<int> row_line;
+  row_line.reserve(rows.capacity());
   for (int r = 0; r < m; ++r, ++next) {
     if (next >= lines.size()) {
       return Status::Error(src + ": ends after " + std::to_string(r) + " of " + std::to_string(m) +
                            " check lines");
     }
     const LdpcTextLine& line = lines[next];
-    row_line[static_cast<std::size_t>(r)] = line.number;
+    row_line.push_back(line.number);
     const std::string_view first = line.words[0];
     int degree = -1;
     if (first.size() < 2 || first.back() != ':' ||
@@ -179,7 +176,7 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
                            std::to_string(degree) + " columns but lists " +
                            std::to_string(line.words.size() - 1));
     }
-    std::vector<int>& row = rows[static_cast<std::size_t>(r)];
+    std::vector<int>& row = rows.emplace_back();
     row.reserve(static_cast<std::size_t>(degree));
     for (std::size_t i = 1; i < line.words.size(); ++i) {
       int c = 0;
@@ -237,7 +234,7 @@ std::string WriteLdpcMatrix(const LdpcCode& code) {
   for (char& c : d) {
     if (c == '#' || c == '\n' || c == '\r') c = ' ';
   }
-  const std::string_view dt = Trim(d);
+  const std::string_view dt = TrimSpaces(d);
   if (!dt.empty()) {
     out += "description ";
     out += dt;
@@ -260,7 +257,7 @@ std::string WriteLdpcMatrix(const LdpcCode& code) {
 }
 
 Result<LdpcCode> ReadLdpcMatrixFile(const std::string& path) {
-  Result<std::string> text = ReadLdpcTextFile(path);
+  Result<std::string> text = ReadLdpcTextFile(path, kMaxLdpcMatrixFileBytes, "matrix file");
   if (!text.ok()) return text.status();
   return ReadLdpcMatrix(text.value(), path);
 }

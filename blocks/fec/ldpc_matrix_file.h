@@ -35,6 +35,7 @@
 #ifndef CAPGAP_BLOCKS_FEC_LDPC_MATRIX_FILE_H_
 #define CAPGAP_BLOCKS_FEC_LDPC_MATRIX_FILE_H_
 
+#include <cstdint>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -47,7 +48,12 @@ namespace capgap {
 Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_name);
 std::string WriteLdpcMatrix(const LdpcCode& code);
 
-// File variants. The writer writes "<path>.tmp" and renames it to path when
+// Largest sparse-matrix file read: 64 MiB (n = 1048576 columns at column
+// degree 3 take about 25 MB).
+inline constexpr std::uint64_t kMaxLdpcMatrixFileBytes = std::uint64_t{64} << 20;
+
+// File variants. The reader refuses anything but a regular file and files
+// over kMaxLdpcMatrixFileBytes without reading them. The writer writes "<path>.tmp" and renames it to path when
 // complete (common practice), so a reader never sees half a file.
 Result<LdpcCode> ReadLdpcMatrixFile(const std::string& path);
 Status WriteLdpcMatrixFile(const std::string& path, const LdpcCode& code);
@@ -67,8 +73,12 @@ std::vector<LdpcTextLine> SplitLdpcTextLines(std::string_view text);
 // Parses a whole word as a decimal int (optional leading '-'); false if the
 // word is not exactly one integer or overflows int.
 bool ParseLdpcInt(std::string_view word, int* value);
-// Whole file contents; errors "<path>: cannot open ..." / "<path>: read error".
-Result<std::string> ReadLdpcTextFile(const std::string& path);
+// Whole contents of a regular file of at most max_bytes (ReadRegularFile,
+// blocks/core/file_read.h; `noun` names the kind of file in messages):
+// "<path>: cannot open file", "<path>: is not a regular file (a FIFO)",
+// "<path>: is N bytes; a matrix file may have at most M bytes", ...
+Result<std::string> ReadLdpcTextFile(const std::string& path, std::uint64_t max_bytes,
+                                     std::string_view noun);
 // Writes "<path>.tmp", then renames it to path.
 Status WriteLdpcTextFileAtomically(const std::string& path, std::string_view text);
 

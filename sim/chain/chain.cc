@@ -246,8 +246,9 @@ void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, St
     return;
   }
   TransmitComplex(tx_bits, channel, s, ws);
-  CAPGAP_DCHECK(ws.state.uniform());
-  demapper_->Demap(ws.symbols, ws.state.n0_uniform, llrs);
+  // Per-symbol channel state (gain, N0) from the channel; AWGN reports a
+  // uniform state and the demapper keeps its scalar-N0 fast paths.
+  demapper_->Demap(ws.symbols, ws.state, llrs);
 }
 
 // A unit: frames in batches of batch_frames_ (1, or the whole unit for

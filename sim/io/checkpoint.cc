@@ -7,11 +7,11 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
-#include <fstream>
 #include <map>
 #include <set>
 #include <sstream>
 
+#include "blocks/core/file_read.h"
 #include "blocks/core/hash.h"
 #include "sim/config/text.h"
 #include "sim/io/atomic_file.h"
@@ -99,6 +99,55 @@ std::map<std::string, std::string> SectionEntries(const RunConfig& cfg, const st
 }
 
 std::string Quoted(const std::string& v) { return "'" + v + "'"; }
+
+std::string Is(const char* a, std::uint64_t x, const char* rel, const char* b, std::uint64_t y) {
+  return std::string(a) + " = " + std::to_string(x) + " " + rel + " " + b + " = " +
+         std::to_string(y);
+}
+
+// "" when a point record's numbers can be the sum of real units, else the
+// broken rule (a checksum proves the file undamaged, not its numbers sound).
+std::string CountsRule(const PointRecord& p) {
+  const UnitCounts& c = p.counts;
+  if (!std::isfinite(p.ebno_db)) return "ebno_db is not finite";
+  if (!std::isfinite(p.seconds) || p.seconds < 0) return "seconds must be finite and >= 0";
+  if (c.bit_errors > c.bits) return Is("bit_errors", c.bit_errors, ">", "bits", c.bits);
+  if (c.frame_errors > c.frames) {
+    return Is("frame_errors", c.frame_errors, ">", "frames", c.frames);
+  }
+  if (c.undetected_frame_errors > c.frame_errors) {
+    return Is("undetected_frame_errors", c.undetected_frame_errors, ">", "frame_errors",
+              c.frame_errors);
+  }
+  if ((c.frames == 0) != (c.bits == 0)) {
+    return Is("frames", c.frames, "and", "bits", c.bits) + ": both zero or both positive";
+  }
+  if (p.units == 0 && c.frames != 0) {
+    return Is("units", 0, "but", "frames", c.frames) + ": an empty prefix counts nothing";
+  }
+  if (p.units != 0 && c.frames < p.units) {
+    return Is("frames", c.frames, "<", "units", p.units) + ": every unit has a frame";
+  }
+  if (c.frame_errors == 0 && c.bit_errors != 0) {
+    return Is("bit_errors", c.bit_errors, "but", "frame_errors", 0);
+  }
+  if (c.frame_errors > c.bit_errors) {
+    return Is("frame_errors", c.frame_errors, ">", "bit_errors", c.bit_errors) +
+           ": an erroneous frame has a bit error";
+  }
+  // Iterations: the largest of one frame never exceeds the sum, and the sum
+  // never exceeds frames times the largest.
+  const std::uint64_t max_it = c.max_decoder_iterations;
+  if (max_it > c.decoder_iterations) {
+    return Is("max_decoder_iterations", max_it, ">", "decoder_iterations", c.decoder_iterations);
+  }
+  if (max_it == 0 ? c.decoder_iterations != 0 : c.decoder_iterations / max_it > c.frames) {
+    return Is("decoder_iterations", c.decoder_iterations, ">", "frames x max_decoder_iterations",
+              c.frames) +
+           " x " + std::to_string(max_it);
+  }
+  return "";
+}
 
 }  // namespace
 
@@ -306,6 +355,9 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
       if (p.finished == (p.stop_reason == StopReason::kInterrupted)) {
         return r.Error("point " + std::to_string(i) + ": finished and stop disagree");
       }
+      if (std::string why = CountsRule(p); !why.empty()) {
+        return r.Error("scheme " + rec.name + " point " + std::to_string(i) + ": " + why);
+      }
       rec.points.push_back(p);
     }
     c.schemes.push_back(std::move(rec));
@@ -319,12 +371,34 @@ Status WriteCheckpoint(const std::string& path, const Checkpoint& c) {
 }
 
 Result<Checkpoint> ReadCheckpoint(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return Status::Error(path + ": cannot open checkpoint");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  if (in.bad()) return Status::Error(path + ": read error");
-  return ParseCheckpoint(ss.str(), path);
+  Result<std::string> bytes = ReadRegularFile(path, kMaxCheckpointBytes, "checkpoint");
+  if (!bytes.ok()) return bytes.status();
+  return ParseCheckpoint(bytes.value(), path);
+}
+
+Status CheckRecordedCounts(const Checkpoint& ckpt, const std::vector<Chain>& chains,
+                           const std::string& ckpt_path) {
+  for (const Chain& chain : chains) {
+    const SchemeRecord* rec = ckpt.Find(chain.scheme().name);
+    if (!rec) continue;
+    const std::uint64_t unit_frames = chain.unit_frames();
+    const std::uint64_t frame_bits = chain.scheme().frame_bits;
+    for (std::size_t i = 0; i < rec->points.size(); ++i) {
+      const PointRecord& p = rec->points[i];
+      const std::string head = "cannot resume from " + ckpt_path + ": scheme " + rec->name +
+                               " point " + std::to_string(i) + ": ";
+      // Overflow-free: frames / unit_frames == units with no remainder.
+      if (p.counts.frames % unit_frames != 0 || p.counts.frames / unit_frames != p.units) {
+        return Status::Error(head + Is("frames", p.counts.frames, "!=", "units", p.units) + " x " +
+                             std::to_string(unit_frames) + " frames per unit");
+      }
+      if (p.counts.bits % frame_bits != 0 || p.counts.bits / frame_bits != p.counts.frames) {
+        return Status::Error(head + Is("bits", p.counts.bits, "!=", "frames", p.counts.frames) +
+                             " x " + std::to_string(frame_bits) + " bits per frame");
+      }
+    }
+  }
+  return Status::Ok();
 }
 
 Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::string& ckpt_path) {

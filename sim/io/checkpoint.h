@@ -102,7 +102,27 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
 
 // Crash-safe write (temporary file, fsync, rename, fsync of the directory).
 Status WriteCheckpoint(const std::string& path, const Checkpoint& c);
+
+// Largest checkpoint read: 64 MiB (the stored config is at most 4 MiB, a
+// point line about 300 bytes).
+inline constexpr std::uint64_t kMaxCheckpointBytes = std::uint64_t{64} << 20;
+// Reads a regular file of at most kMaxCheckpointBytes (anything else is
+// refused without reading it, blocks/core/file_read.h) and parses it.
+// ParseCheckpoint never trusts a count: a record whose numbers cannot be the
+// sum of real units is refused naming its scheme and point, e.g.
+// "x.ckpt: line 14: scheme qpsk point 2: bit_errors = 9 > bits = 8" (also
+// frame_errors > frames, undetected > frame errors, frames and bits not both
+// zero or both positive, fewer frames than units, frame errors without bit
+// errors or beyond them, iteration counts out of range, a non-finite Eb/N0
+// or time).
 Result<Checkpoint> ReadCheckpoint(const std::string& path);
+
+// The rules that need the built chains: for every recorded point of a scheme
+// in `chains`, frames = units x unit_frames and bits = frames x frame_bits.
+// Refused as "cannot resume from PATH: scheme S point I: frames = ... !=
+// units = ... x F frames per unit".
+Status CheckRecordedCounts(const Checkpoint& ckpt, const std::vector<Chain>& chains,
+                           const std::string& ckpt_path);
 
 // Whether `cfg` may continue the run recorded in `ckpt` (read from
 // `ckpt_path`, named in messages). Refused, naming the key and both values:

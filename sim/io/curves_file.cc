@@ -6,6 +6,9 @@
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
+#include <string>
+#include <type_traits>
+#include <vector>
 
 #include <H5Cpp.h>
 
@@ -34,6 +37,17 @@ void Dataset(H5::Group& g, const char* name, const H5::PredType& type, const std
   H5::DataSpace space(1, dims);
   H5::DataSet ds = g.createDataSet(name, type, space);
   if (!v.empty()) ds.write(v.data(), type);
+}
+
+// The dataset of one per-point quantity: get(point) for every point.
+template <typename Get>
+void PointDataset(H5::Group& g, const char* name, const H5::PredType& type,
+                  const std::vector<PointResult>& points, Get get) {
+  using T = std::decay_t<decltype(get(points.front()))>;
+  std::vector<T> v;
+  v.reserve(points.size());
+  for (const PointResult& p : points) v.push_back(get(p));
+  Dataset(g, name, type, v);
 }
 
 // Row-major rows x cols matrix.
@@ -80,30 +94,6 @@ void WriteCodeReport(H5::Group g, const CodeReport& report) {
   }
 }
 
-std::string ReadStrAttr(const H5::H5Object& obj, const char* name) {
-  H5::Attribute a = obj.openAttribute(name);
-  H5::StrType type = a.getStrType();
-  std::string out;
-  a.read(type, out);
-  return out;
-}
-
-double ReadDoubleAttr(const H5::H5Object& obj, const char* name) {
-  double v = 0;
-  obj.openAttribute(name).read(H5::PredType::NATIVE_DOUBLE, &v);
-  return v;
-}
-
-template <typename T>
-std::vector<T> ReadDataset(const H5::Group& g, const char* name, const H5::PredType& type) {
-  H5::DataSet ds = g.openDataSet(name);
-  hsize_t dims[1] = {0};
-  ds.getSpace().getSimpleExtentDims(dims);
-  std::vector<T> v(dims[0]);
-  if (!v.empty()) ds.read(v.data(), type);
-  return v;
-}
-
 }  // namespace
 
 std::string UtcNow() {
@@ -121,10 +111,19 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
   const fs::path final_path(path);
   std::error_code ec;
   if (final_path.has_parent_path()) fs::create_directories(final_path.parent_path(), ec);
-  const std::string tmp = path + ".tmp-" + std::to_string(::getpid());
+  // The file is built in memory (HDF5 core driver, no backing store) and its
+  // image written with plain POSIX calls (WriteFileAtomically): a full disk
+  // or any other write error is then an ordinary Status, and no HDF5 handle
+  // is ever left open on a file the library failed to flush (which crashed
+  // the library's shutdown at exit). The C++ objects close every id, in
+  // reverse order, on every path.
+  const std::string image_name = path + ".image-" + std::to_string(::getpid());
+  std::string image;
   H5::Exception::dontPrint();
   try {
-    H5::H5File file(tmp, H5F_ACC_TRUNC);
+    H5::FileAccPropList fapl;
+    fapl.setCore(std::size_t{1} << 20, false);
+    H5::H5File file(image_name, H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, fapl);
     StrAttr(file, "format", kCurvesFormat);
     NumAttr(file, "format_version", H5::PredType::NATIVE_INT, kCurvesFormatVersion);
     StrAttr(file, "program_version", ProgramVersion());
@@ -170,56 +169,39 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(g, "frame_bits", H5::PredType::NATIVE_UINT32, r.scheme.frame_bits);
       NumAttr(g, "unit_frames", H5::PredType::NATIVE_UINT32, r.scheme.ResolvedUnitFrames());
 
-      std::vector<double> ebno, esno, ber, ber_low, ber_high, fer, fer_low, fer_high, seconds;
-      std::vector<std::uint64_t> bits, bit_errors, frames, frame_errors;
-      std::vector<std::string> stop;
-      for (const PointResult& p : r.points) {
-        ebno.push_back(p.ebno_db);
-        esno.push_back(p.esno_db);
-        bits.push_back(p.counts.bits);
-        bit_errors.push_back(p.counts.bit_errors);
-        frames.push_back(p.counts.frames);
-        frame_errors.push_back(p.counts.frame_errors);
-        ber.push_back(p.ber());
-        ber_low.push_back(p.ber_ci.low);
-        ber_high.push_back(p.ber_ci.high);
-        fer.push_back(p.fer());
-        fer_low.push_back(p.fer_ci.low);
-        fer_high.push_back(p.fer_ci.high);
-        seconds.push_back(p.seconds);
-        stop.push_back(ToString(p.stop_reason));
-      }
+      // One dataset per per-point quantity, in this order.
       const auto& F64 = H5::PredType::NATIVE_DOUBLE;
       const auto& U64 = H5::PredType::NATIVE_UINT64;
-      Dataset(g, "ebno_db", F64, ebno);
-      Dataset(g, "esno_db", F64, esno);
-      Dataset(g, "bits", U64, bits);
-      Dataset(g, "bit_errors", U64, bit_errors);
-      Dataset(g, "frames", U64, frames);
-      Dataset(g, "frame_errors", U64, frame_errors);
-      Dataset(g, "ber", F64, ber);
-      Dataset(g, "ber_low", F64, ber_low);
-      Dataset(g, "ber_high", F64, ber_high);
-      Dataset(g, "fer", F64, fer);
-      Dataset(g, "fer_low", F64, fer_low);
-      Dataset(g, "fer_high", F64, fer_high);
-      Dataset(g, "seconds", F64, seconds);
+      using P = const PointResult&;
+      const auto& pts = r.points;
+      PointDataset(g, "ebno_db", F64, pts, [](P p) { return p.ebno_db; });
+      PointDataset(g, "esno_db", F64, pts, [](P p) { return p.esno_db; });
+      PointDataset(g, "bits", U64, pts, [](P p) { return p.counts.bits; });
+      PointDataset(g, "bit_errors", U64, pts, [](P p) { return p.counts.bit_errors; });
+      PointDataset(g, "frames", U64, pts, [](P p) { return p.counts.frames; });
+      PointDataset(g, "frame_errors", U64, pts, [](P p) { return p.counts.frame_errors; });
+      PointDataset(g, "ber", F64, pts, [](P p) { return p.ber(); });
+      PointDataset(g, "ber_low", F64, pts, [](P p) { return p.ber_ci.low; });
+      PointDataset(g, "ber_high", F64, pts, [](P p) { return p.ber_ci.high; });
+      PointDataset(g, "fer", F64, pts, [](P p) { return p.fer(); });
+      PointDataset(g, "fer_low", F64, pts, [](P p) { return p.fer_ci.low; });
+      PointDataset(g, "fer_high", F64, pts, [](P p) { return p.fer_ci.high; });
+      PointDataset(g, "seconds", F64, pts, [](P p) { return p.seconds; });
       if (r.iterative) {
         // Iterative decoding per point: mean and largest iteration count of a
         // frame, and frames that converged to a wrong codeword.
-        std::vector<double> it_mean;
-        std::vector<std::uint64_t> it_max, undetected;
-        for (const PointResult& p : r.points) {
-          it_mean.push_back(p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
-                                                  static_cast<double>(p.counts.frames)
-                                            : 0.0);
-          it_max.push_back(p.counts.max_decoder_iterations);
-          undetected.push_back(p.counts.undetected_frame_errors);
-        }
-        Dataset(g, "decoder_iterations_mean", F64, it_mean);
-        Dataset(g, "decoder_iterations_max", U64, it_max);
-        Dataset(g, "undetected_frame_errors", U64, undetected);
+        PointDataset(g, "decoder_iterations_mean", F64, pts, [](P p) {
+          return p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
+                                       static_cast<double>(p.counts.frames)
+                                 : 0.0;
+        });
+        PointDataset(g, "decoder_iterations_max", U64, pts,
+                     [](P p) { return std::uint64_t{p.counts.max_decoder_iterations}; });
+        PointDataset(g, "undetected_frame_errors", U64, pts,
+                     [](P p) { return p.counts.undetected_frame_errors; });
       }
+      std::vector<std::string> stop;
+      for (const PointResult& p : pts) stop.push_back(ToString(p.stop_reason));
       StringDataset(g, "stop_reason", stop);
 
       H5::Group th = g.createGroup("theory");
@@ -292,104 +274,21 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
         NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);
       }
     }
+    file.flush(H5F_SCOPE_GLOBAL);
+    const ssize_t size = H5Fget_file_image(file.getId(), nullptr, 0);
+    if (size <= 0) return Status::Error(path + ": HDF5 write failed: no file image");
+    image.resize(static_cast<std::size_t>(size));
+    if (H5Fget_file_image(file.getId(), image.data(), image.size()) != size) {
+      return Status::Error(path + ": HDF5 write failed: file image incomplete");
+    }
     file.close();
   } catch (const H5::Exception& e) {
-    std::remove(tmp.c_str());
     return Status::Error(path + ": HDF5 write failed: " + e.getDetailMsg());
   }
-  // fsync, rename, fsync of the directory: a kill or power loss at any
-  // instant leaves the previous file or the new one, both complete.
-  return CommitFile(tmp, final_path.string());
-}
-
-Result<StoredRun> ReadCurvesFile(const std::string& path) {
-  H5::Exception::dontPrint();
-  if (!std::filesystem::exists(path)) return Status::Error(path + ": no such file");
-  try {
-    if (!H5::H5File::isHdf5(path)) return Status::Error(path + ": not an HDF5 file");
-    H5::H5File file(path, H5F_ACC_RDONLY);
-    if (!file.attrExists("format") || ReadStrAttr(file, "format") != kCurvesFormat) {
-      return Status::Error(path + ": not a capgap curves file (attribute format != '" +
-                           std::string(kCurvesFormat) + "')");
-    }
-    int version = 0;
-    file.openAttribute("format_version").read(H5::PredType::NATIVE_INT, &version);
-    if (version != kCurvesFormatVersion) {
-      return Status::Error(path + ": format_version " + std::to_string(version) +
-                           " is not supported (this program reads " +
-                           std::to_string(kCurvesFormatVersion) + ")");
-    }
-    StoredRun run;
-    run.program_version = ReadStrAttr(file, "program_version");
-    run.created_utc = ReadStrAttr(file, "created_utc");
-    file.openAttribute("threads").read(H5::PredType::NATIVE_INT, &run.threads);
-    // HDF5 lists groups by name; the root attribute "schemes" keeps run order.
-    std::vector<std::string> names;
-    if (file.attrExists("schemes")) {
-      const std::string order = ReadStrAttr(file, "schemes");
-      std::size_t start = 0;
-      while (start < order.size()) {
-        std::size_t comma = order.find(',', start);
-        if (comma == std::string::npos) comma = order.size();
-        names.push_back(order.substr(start, comma - start));
-        start = comma + 1;
-      }
-    } else {
-      for (hsize_t i = 0; i < file.getNumObjs(); ++i) names.push_back(file.getObjnameByIdx(i));
-    }
-    for (const std::string& name : names) {
-      H5::Group g = file.openGroup("/" + name);
-      StoredScheme s;
-      s.name = name;
-      s.modulation = ReadStrAttr(g, "modulation");
-      s.demapper = ReadStrAttr(g, "demapper");
-      s.code = ReadStrAttr(g, "code");
-      s.code_rate = ReadDoubleAttr(g, "code_rate");
-      s.info_bits_per_symbol = ReadDoubleAttr(g, "info_bits_per_symbol");
-      s.spectral_efficiency = ReadDoubleAttr(g, "spectral_efficiency");
-      s.spectral_efficiency_ideal = g.attrExists("spectral_efficiency_ideal")
-                                        ? ReadDoubleAttr(g, "spectral_efficiency_ideal")
-                                        : s.spectral_efficiency;
-      s.target_ber = ReadDoubleAttr(g, "target_ber");
-      s.ebno_db = ReadDataset<double>(g, "ebno_db", H5::PredType::NATIVE_DOUBLE);
-      s.ber = ReadDataset<double>(g, "ber", H5::PredType::NATIVE_DOUBLE);
-      s.bits = ReadDataset<std::uint64_t>(g, "bits", H5::PredType::NATIVE_UINT64);
-      s.bit_errors = ReadDataset<std::uint64_t>(g, "bit_errors", H5::PredType::NATIVE_UINT64);
-      H5::Group lim = g.openGroup("limits");
-      s.shannon_ebno_db = ReadDoubleAttr(lim, "shannon_ebno_db");
-      s.constrained_ebno_db = ReadDoubleAttr(lim, "constrained_ebno_db");
-      H5::Group sum = g.openGroup("summary");
-      s.summary.ebno_at_target_db = ReadDoubleAttr(sum, "ebno_at_target_db");
-      s.summary.ebno_at_target_low_db = ReadDoubleAttr(sum, "ebno_at_target_low_db");
-      s.summary.ebno_at_target_high_db = ReadDoubleAttr(sum, "ebno_at_target_high_db");
-      s.summary.uncoded_ebno_at_target_db = ReadDoubleAttr(sum, "uncoded_ebno_at_target_db");
-      s.summary.coding_gain_db = ReadDoubleAttr(sum, "coding_gain_db");
-      s.summary.gap_to_shannon_db = ReadDoubleAttr(sum, "gap_to_shannon_db");
-      s.summary.gap_to_constrained_db = ReadDoubleAttr(sum, "gap_to_constrained_db");
-      if (lim.attrExists("threshold_ebno_db")) {
-        s.has_threshold = true;
-        s.threshold_ebno_db = ReadDoubleAttr(lim, "threshold_ebno_db");
-        s.threshold_method = ReadStrAttr(lim, "threshold_method");
-        s.binary_input_ebno_db = ReadDoubleAttr(lim, "binary_input_ebno_db");
-        s.summary.gap_to_threshold_db = ReadDoubleAttr(sum, "gap_to_threshold_db");
-        s.summary.gap_to_binary_input_db = ReadDoubleAttr(sum, "gap_to_binary_input_db");
-        s.decoder_iterations_mean =
-            ReadDataset<double>(g, "decoder_iterations_mean", H5::PredType::NATIVE_DOUBLE);
-        s.undetected_frame_errors =
-            ReadDataset<std::uint64_t>(g, "undetected_frame_errors", H5::PredType::NATIVE_UINT64);
-        H5::Group code = g.openGroup("code");
-        s.code_description = ReadStrAttr(code, "description");
-        s.decoder_description = ReadStrAttr(code, "decoder") + ", " + ReadStrAttr(code, "schedule");
-        int girth = 0;
-        code.openAttribute("girth").read(H5::PredType::NATIVE_INT, &girth);
-        s.code_girth = girth;
-      }
-      run.schemes.push_back(std::move(s));
-    }
-    return run;
-  } catch (const H5::Exception& e) {
-    return Status::Error(path + ": cannot read curves file: " + e.getDetailMsg());
-  }
+  // Temporary file, fsync, rename, fsync of the directory: a kill, full disk
+  // or power loss at any instant leaves the previous file or the new one,
+  // both complete.
+  return WriteFileAtomically(final_path.string(), image);
 }
 
 }  // namespace capgap

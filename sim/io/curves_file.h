@@ -5,6 +5,7 @@
 #ifndef CAPGAP_SIM_CURVES_FILE_H_
 #define CAPGAP_SIM_CURVES_FILE_H_
 
+#include <cstddef>
 #include <cstdint>
 #include <string>
 #include <vector>
@@ -63,7 +64,31 @@ struct StoredRun {
   std::vector<StoredScheme> schemes;
 };
 
+// Limits of the reader: the file (read whole into memory before HDF5 sees
+// it), the points of a curve, the schemes of a file and a fixed-length
+// string attribute.
+inline constexpr std::uint64_t kMaxCurvesFileBytes = std::uint64_t{256} << 20;
+inline constexpr std::uint64_t kMaxCurvePoints = 100000;
+inline constexpr std::size_t kMaxCurveSchemes = 1000;
+inline constexpr std::size_t kMaxCurveStringBytes = std::size_t{16} << 20;
+
+// Reads a curves file (sim/io/curves_reader.cc). The path must be a regular
+// file of at most kMaxCurvesFileBytes (blocks/core/file_read.h); its bytes
+// are handed to HDF5 as an in-memory image, so HDF5 never opens the path
+// itself. Before any value is read the whole layout is validated: every
+// group, dataset and attribute the summary needs exists as a hard link of
+// the right kind, every attribute is a scalar of the expected type class
+// (string, integer, or number), every per-point dataset is 1-D with the
+// expected type class and as many entries as /<scheme>/ebno_db (at most
+// kMaxCurvePoints), the "schemes" list names distinct existing groups; then
+// the values are checked (finite Eb/N0, bit_errors <= bits, frame_errors <=
+// frames, undetected_frame_errors <= frame_errors). Errors name the file and
+// the object, e.g. "x.h5: /qpsk/bits: 2-D dataset, expected 1-D of 7
+// entries" or "x.h5: /qpsk attribute 'code_rate': array of 1000 entries,
+// expected a scalar".
 Result<StoredRun> ReadCurvesFile(const std::string& path);
+// The same from the bytes of a file; `source` names it in messages.
+Result<StoredRun> ParseCurvesImage(const std::string& bytes, const std::string& source);
 
 // ISO 8601 UTC time of now, e.g. "2026-12-01T22:30:00Z".
 std::string UtcNow();

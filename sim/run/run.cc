@@ -268,6 +268,11 @@ int Run(const RunOptions& o) {
                     " point(s) finished); continue with: " + again(),
                 kExitStopped);
   }
+  // Recorded counts checked against the chains before anything is written:
+  // a refused checkpoint is left as it is.
+  if (resumed) {
+    if (Status s = CheckRecordedCounts(ckpt, chains, ckpt_path); !s.ok()) return fail(s.message());
+  }
 
   const ProgressMode mode = ResolveProgress(o, ranks);
   ProgressPrinter printer(mode, err);

@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Installs the Debian 12 packages capgap needs to build, test and plot, and
 # says which ones it installs. Safe to re-run: present packages are skipped.
-# Usage: bash sim/scripts/setup_debian.sh [--mpi]
+# Usage: bash sim/scripts/setup_debian.sh [--mpi | --fuzz]
 set -euo pipefail
 
 packages=(
@@ -13,6 +13,10 @@ packages=(
 )
 if [[ "${1:-}" == "--mpi" ]]; then
   packages+=(openmpi-bin libopenmpi-dev)
+fi
+# The fuzz targets (tests/fuzz): clang with libFuzzer and the sanitizer runtimes.
+if [[ "${1:-}" == "--fuzz" ]]; then
+  packages+=(clang-14 libclang-rt-14-dev)
 fi
 
 missing=()

@@ -4,6 +4,8 @@
 #include "blocks/fec/block_code_file.h"
 
 #include <gtest/gtest.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <filesystem>
@@ -142,6 +144,30 @@ TEST(BlockCodeFile, FileRoundTripAndFileRules) {
   const std::string bad = dir + "/bad.txt";
   std::ofstream(bad, std::ios::binary) << "block-code n 4 k 1\n10x0\n";
   EXPECT_EQ(msg(ReadBlockCodeFile(bad)), bad + ":2: row 0: character 2 is 'x': must be '0' or '1'");
+  std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace capgap
+
+namespace capgap {
+namespace {
+
+// A FIFO or a link to a device as generator file: refused at once.
+TEST(BlockCodeFile, FifosAndDeviceLinksAreRefusedWithoutReading) {
+  const std::filesystem::path dir = std::filesystem::temp_directory_path() /
+                                    ("capgap_block_hostile_" + std::to_string(::getpid()));
+  std::filesystem::remove_all(dir);
+  std::filesystem::create_directories(dir);
+  const std::string fifo = (dir / "g.fifo").string();
+  ASSERT_EQ(::mkfifo(fifo.c_str(), 0600), 0);
+  const std::string link = (dir / "zero.txt").string();
+  std::filesystem::create_symlink("/dev/zero", link);
+  for (const std::string& p : {fifo, link}) {
+    const Result<BlockCode> r = ReadBlockCodeFile(p);
+    ASSERT_FALSE(r.ok()) << p;
+    EXPECT_EQ(r.status().message(), p + ": not a regular file: a generator must be read from one");
+  }
   std::filesystem::remove_all(dir);
 }
 

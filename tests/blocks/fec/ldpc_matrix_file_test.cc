@@ -2,7 +2,11 @@
 // (blocks/fec/ldpc_matrix_file.h).
 #include "blocks/fec/ldpc_matrix_file.h"
 
+#include <sys/stat.h>
+#include <unistd.h>
+
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <string>
 #include <vector>
@@ -153,6 +157,73 @@ TEST(LdpcTextHelpers, SplitsLinesStripsCommentsAndParsesInts) {
   EXPECT_FALSE(ParseLdpcInt("", &v));
   EXPECT_FALSE(ParseLdpcInt("99999999999", &v));  // overflows int
   EXPECT_FALSE(ParseLdpcInt("+3", &v));
+}
+
+}  // namespace
+}  // namespace capgap
+
+namespace capgap {
+namespace {
+
+// Hostile paths: devices, links to them and FIFOs are refused without being
+// read (a FIFO without waiting for a writer), oversized files without being
+// read whole, and a header declaring absurd sizes allocates nothing.
+TEST(LdpcMatrixFile, NonFilesAndHugeFilesAreRefusedWithoutReading) {
+  const std::filesystem::path dir = std::filesystem::temp_directory_path() /
+                                    ("capgap_ldpc_hostile_" + std::to_string(::getpid()));
+  std::filesystem::remove_all(dir);
+  std::filesystem::create_directories(dir);
+  const std::string fifo = (dir / "fifo.txt").string();
+  ASSERT_EQ(::mkfifo(fifo.c_str(), 0600), 0);
+  const std::string link = (dir / "zero.txt").string();
+  std::filesystem::create_symlink("/dev/zero", link);
+  const auto matrix = [](const std::string& p) {
+    auto r = ReadLdpcMatrixFile(p);
+    return r.ok() ? std::string("OK") : r.status().message();
+  };
+  const auto base = [](const std::string& p) {
+    auto r = ReadBaseMatrixFile(p);
+    return r.ok() ? std::string("OK") : r.status().message();
+  };
+  EXPECT_EQ(matrix("/dev/zero"), "/dev/zero: is not a regular file (a character device)");
+  EXPECT_EQ(matrix(link), link + ": is not a regular file (a character device)");
+  EXPECT_EQ(matrix(fifo), fifo + ": is not a regular file (a FIFO)");
+  EXPECT_EQ(matrix(dir.string()), dir.string() + ": is a directory, not a matrix file");
+  EXPECT_EQ(base("/dev/zero"), "/dev/zero: is not a regular file (a character device)");
+  EXPECT_EQ(base(fifo), fifo + ": is not a regular file (a FIFO)");
+  EXPECT_EQ(base(dir.string()), dir.string() + ": is a directory, not a base matrix file");
+  const std::string huge = (dir / "huge.txt").string();
+  { std::ofstream(huge) << "ldpc-matrix n 4 m 2\n"; }
+  std::filesystem::resize_file(huge, kMaxLdpcMatrixFileBytes + 1);  // sparse
+  EXPECT_EQ(matrix(huge), huge + ": is " + std::to_string(kMaxLdpcMatrixFileBytes + 1) +
+                              " bytes; a matrix file may have at most " +
+                              std::to_string(kMaxLdpcMatrixFileBytes) + " bytes");
+  std::filesystem::resize_file(huge, kMaxBaseMatrixFileBytes + 1);
+  EXPECT_EQ(base(huge), huge + ": is " + std::to_string(kMaxBaseMatrixFileBytes + 1) +
+                            " bytes; a base matrix file may have at most " +
+                            std::to_string(kMaxBaseMatrixFileBytes) + " bytes");
+  std::filesystem::remove_all(dir);
+}
+
+TEST(LdpcMatrixFile, AbsurdHeaderSizesAllocateNothing) {
+  auto msg = [](const std::string& text) {
+    auto r = ReadLdpcMatrix(text, "f.txt");
+    return r.ok() ? std::string("OK") : r.status().message();
+  };
+  // 2^31 - 1 columns, two listed: refused before the per-column marks exist.
+  EXPECT_EQ(msg("ldpc-matrix n 2147483647 m 1\n2: 0 1\n"),
+            "f.txt:1: n = 2147483647 columns but the check lines list 2 entries; every column "
+            "must be in a check");
+  EXPECT_EQ(msg("ldpc-matrix n 2 m 2147483647\n2: 0 1\n"),
+            "f.txt: ends after 1 of 2147483647 check lines");
+  auto base = [](const std::string& text) {
+    auto r = ParseBaseMatrix(text, "b.txt");
+    return r.ok() ? std::string("OK") : r.status().message();
+  };
+  EXPECT_EQ(base("rows 100000 cols 2000000 lifting 65536\n0 1\n"),
+            "b.txt:2: base row 0 has 2 entries: expected cols = 2000000");
+  EXPECT_EQ(base("rows 2147483646 cols 2147483647 lifting 1\n"),
+            "b.txt: ends after 0 of 2147483646 base rows");
 }
 
 }  // namespace

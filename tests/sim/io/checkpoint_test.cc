@@ -7,12 +7,14 @@
 
 #include <signal.h>
 #include <sys/wait.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <cinttypes>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <random>
 #include <sstream>
 
@@ -31,12 +33,16 @@ fs::path TempDir(const std::string& name) {
   return dir;
 }
 
-// Every field a different non-zero value (field k of point p: p * 1000 + k + 1).
+// Every field a different non-zero value that real units could sum to (the
+// reader refuses impossible counts): field k of point p is p * 1000 + an
+// offset in 50..900, ordered bits > bit errors > frames > frame errors >
+// undetected, iterations between max and frames x max.
 UnitCounts DistinctCounts(std::uint64_t p) {
   UnitCounts c;
-  std::uint64_t k = 0;
+  const std::uint64_t offsets[kUnitCountFields] = {900, 500, 300, 200, 400, 100, 50};
+  std::size_t k = 0;
   ForEachCountField(c, [&](const char*, auto& field) {
-    field = static_cast<std::remove_reference_t<decltype(field)>>(p * 1000 + ++k);
+    field = static_cast<std::remove_reference_t<decltype(field)>>(p * 1000 + offsets[k++]);
   });
   return c;
 }
@@ -183,6 +189,78 @@ TEST(Checkpoint, DamagedOrForeignFilesAreRefusedWithTheReason) {
   EXPECT_NE(r.status().message().find("point 0: field 'undetected_frame_errors' missing or invalid"),
             std::string::npos)
       << r.status().message();
+}
+
+// A valid checksum proves the file undamaged, not its numbers sound: every
+// count rule is checked, naming the scheme and point.
+TEST(Checkpoint, ImpossibleCountsWithAValidChecksumAreRefused) {
+  struct Case {
+    std::function<void(PointRecord&)> edit;
+    std::string rule;
+  };
+  const std::vector<Case> cases = {
+      {[](PointRecord& p) { p.counts.bit_errors = p.counts.bits + 1; },
+       "bit_errors = 2901 > bits = 2900"},
+      {[](PointRecord& p) { p.counts.frame_errors = p.counts.frames + 1; },
+       "frame_errors = 2301 > frames = 2300"},
+      {[](PointRecord& p) { p.counts.undetected_frame_errors = p.counts.frame_errors + 1; },
+       "undetected_frame_errors = 2201 > frame_errors = 2200"},
+      {[](PointRecord& p) { p.counts.bits = 0; p.counts.bit_errors = 0; },
+       "frames = 2300 and bits = 0: both zero or both positive"},
+      {[](PointRecord& p) { p.units = 5000; }, "frames = 2300 < units = 5000: every unit has a frame"},
+      {[](PointRecord& p) { p.units = 0; }, "units = 0 but frames = 2300: an empty prefix counts nothing"},
+      {[](PointRecord& p) { p.counts.frame_errors = 0; p.counts.undetected_frame_errors = 0; },
+       "bit_errors = 2500 but frame_errors = 0"},
+      {[](PointRecord& p) { p.counts.frame_errors = p.counts.bit_errors + 1; p.counts.frames = p.counts.bits; },
+       "frame_errors = 2501 > bit_errors = 2500: an erroneous frame has a bit error"},
+      {[](PointRecord& p) { p.counts.max_decoder_iterations = 3000; },
+       "max_decoder_iterations = 3000 > decoder_iterations = 2400"},
+      {[](PointRecord& p) { p.counts.max_decoder_iterations = 1; },
+       "decoder_iterations = 2400 > frames x max_decoder_iterations = 2300 x 1"},
+      {[](PointRecord& p) { p.seconds = -1; }, "seconds must be finite and >= 0"},
+  };
+  for (const Case& k : cases) {
+    Checkpoint c = MakeCheckpoint();
+    k.edit(c.schemes[1].points[1]);
+    const auto r = ParseCheckpoint(SerializeCheckpoint(c), "x.ckpt");
+    ASSERT_FALSE(r.ok()) << k.rule;
+    const std::string& m = r.status().message();
+    ASSERT_NE(m.find("scheme "), std::string::npos) << m;
+    EXPECT_EQ(m.substr(m.find("scheme ")), "scheme q16 point 1: " + k.rule) << m;
+    EXPECT_EQ(m.rfind("x.ckpt: line ", 0), 0u) << m;
+  }
+}
+
+// Files that cannot be a checkpoint are refused without being read whole: a
+// link to /dev/zero, a FIFO (no wait for a writer), a directory, a file over
+// the size limit.
+TEST(Checkpoint, NonFilesAndHugeFilesAreRefusedWithoutReading) {
+  const fs::path dir = TempDir("nonfiles");
+  const std::string link = (dir / "zero.ckpt").string();
+  fs::create_symlink("/dev/zero", link);
+  auto r = ReadCheckpoint(link);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), link + ": is not a regular file (a character device)");
+  const std::string fifo = (dir / "fifo.ckpt").string();
+  ASSERT_EQ(::mkfifo(fifo.c_str(), 0600), 0);
+  r = ReadCheckpoint(fifo);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), fifo + ": is not a regular file (a FIFO)");
+  r = ReadCheckpoint(dir.string());
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), dir.string() + ": is a directory, not a checkpoint");
+  const std::string huge = (dir / "huge.ckpt").string();
+  {
+    std::ofstream out(huge, std::ios::binary);
+    out << SerializeCheckpoint(MakeCheckpoint());
+  }
+  fs::resize_file(huge, kMaxCheckpointBytes + 1);  // sparse: no disk used
+  r = ReadCheckpoint(huge);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), huge + ": is " + std::to_string(kMaxCheckpointBytes + 1) +
+                                      " bytes; a checkpoint may have at most " +
+                                      std::to_string(kMaxCheckpointBytes) + " bytes");
+  fs::remove_all(dir);
 }
 
 TEST(Checkpoint, WriteReplacesTheFileAndLeavesNoTemporary) {

@@ -166,6 +166,61 @@ TEST(Run, InterruptSetBeforeTheStartGives75AndACheckpointThatResumes) {
   fs::remove_all(dir);
 }
 
+// A checkpoint whose checksum is valid but whose counts are impossible is
+// refused on resume with status 1 and a message naming the record, before
+// anything is written: the checkpoint and the curves file keep their bytes.
+TEST(Run, ResumeRefusesImpossibleCountsAndRewritesNothing) {
+  const fs::path dir = TempDir("badcounts");
+  const fs::path h5 = dir / "tiny.h5";
+  const std::string ckpt_path = CheckpointPath(h5.string());
+  ASSERT_EQ(RunCaptured(Tiny(h5)).status, kExitDone);
+  const auto good = ReadCheckpoint(ckpt_path);
+  ASSERT_TRUE(good.ok()) << good.status().message();
+  // The first point of the second scheme (16qam): a record rule the parser
+  // checks alone, and the two rules that need the chain.
+  const PointRecord p0 = good.value().schemes.at(1).points.at(0);
+  ASSERT_GT(p0.counts.frames, p0.units);  // units + 1 passes the parser's frames >= units
+  struct Case {
+    std::function<void(PointRecord&)> edit;
+    std::string message;
+  };
+  const std::string head = "capgap: cannot resume: " + ckpt_path + ": line ";
+  const std::vector<Case> cases = {
+      {[](PointRecord& p) { p.counts.bit_errors = p.counts.bits + 1; },
+       "scheme 16qam point 0: bit_errors = " + std::to_string(p0.counts.bits + 1) +
+           " > bits = " + std::to_string(p0.counts.bits) + "\n"},
+      {[](PointRecord& p) { p.units += 1; },
+       "capgap: cannot resume from " + ckpt_path + ": scheme 16qam point 0: frames = " +
+           std::to_string(p0.counts.frames) + " != units = " + std::to_string(p0.units + 1) +
+           " x " + std::to_string(p0.counts.frames / p0.units) + " frames per unit\n"},
+      {[](PointRecord& p) { p.counts.bits += 1; },
+       "capgap: cannot resume from " + ckpt_path + ": scheme 16qam point 0: bits = " +
+           std::to_string(p0.counts.bits + 1) + " != frames = " + std::to_string(p0.counts.frames) +
+           " x " + std::to_string(p0.counts.bits / p0.counts.frames) + " bits per frame\n"},
+  };
+  for (const Case& k : cases) {
+    Checkpoint bad = good.value();
+    bad.complete = false;
+    k.edit(bad.schemes[1].points[0]);
+    ASSERT_TRUE(WriteCheckpoint(ckpt_path, bad).ok());
+    const auto before = Snapshot(dir);
+    RunOptions o = Tiny(h5);
+    o.resume = true;
+    const Outcome r = RunCaptured(o);
+    EXPECT_EQ(r.status, kExitFailed) << r.err;
+    if (k.message.rfind("capgap: ", 0) == 0) {
+      EXPECT_EQ(r.err, k.message);
+    } else {
+      EXPECT_EQ(r.err.rfind(head, 0), 0u) << r.err;
+      ASSERT_NE(r.err.find("scheme "), std::string::npos) << r.err;
+      EXPECT_EQ(r.err.substr(r.err.find("scheme ")), k.message);
+    }
+    EXPECT_EQ(r.out, "");
+    EXPECT_EQ(Snapshot(dir), before);  // checkpoint and curves file untouched
+  }
+  fs::remove_all(dir);
+}
+
 TEST(Run, BadConfigGives1WithOneLineOnTheErrorStreamAndNoFile) {
   const fs::path dir = TempDir("badcfg");
   RunOptions o = Tiny(dir / "bad.h5");
