@@ -117,7 +117,8 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
             "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
             "constraint_length, puncture, termination, decoder, traceback, construction, length, "
             "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
-            "max_iterations, arithmetic, normalization, offset" + LaterFamilyKeys());
+            "max_iterations, arithmetic, memory_limit_mb, normalization, offset" +
+                LaterFamilyKeys());
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
             "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
