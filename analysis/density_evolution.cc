@@ -505,6 +505,7 @@ class QuantizedDensityEvolution {
     v_ = channel_;
     double previous = ErrorProbability(v_);
     for (int iteration = 1; iteration <= options_.max_iterations; ++iteration) {
+      if (options_.stop && options_.stop->load(std::memory_order_relaxed)) return false;
       CheckNodeUpdate();
       const double pe = VariableNodeUpdate();
       if (pe <= options_.target_error_probability) return true;
@@ -953,7 +954,7 @@ Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution,
                fft_points, kMaxFftPoints));
   }
   QuantizedDensityEvolution de(distribution, options);
-  return ThresholdByBisection(
+  Result<ThresholdResult> result = ThresholdByBisection(
       distribution, rate, options.sigma_tolerance, DeMethod::kQuantized,
       Format("quantized sum-product density evolution (Richardson, Shokrollahi, Urbanke 2001; "
              "Chung, Forney, Richardson, Urbanke 2001): LLR step %g, range +-%g, message error "
@@ -961,6 +962,11 @@ Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution,
              options.llr_step, options.llr_max, options.target_error_probability,
              options.max_iterations),
       [&](double s) { return de.Decodes(s); });
+  // A stop makes every later sigma "fail", so the bisection ends at once.
+  if (options.stop && options.stop->load(std::memory_order_relaxed)) {
+    return Status::Stopped("quantized density evolution: stopped");
+  }
+  return result;
 }
 
 }  // namespace capgap::analysis

@@ -40,6 +40,7 @@
 #ifndef CAPGAP_ANALYSIS_DENSITY_EVOLUTION_H_
 #define CAPGAP_ANALYSIS_DENSITY_EVOLUTION_H_
 
+#include <atomic>
 #include <span>
 #include <string>
 #include <vector>
@@ -101,6 +102,9 @@ struct QuantizedDeOptions {
   double stall_fraction = 1e-5;
   // Bisection stops when the bracket [decodes, fails] is narrower than this.
   double sigma_tolerance = 1e-4;
+  // Checked every iteration: once it reads true, QuantizedThreshold returns
+  // Status::Stopped. nullptr: never.
+  const std::atomic<bool>* stop = nullptr;
 };
 
 struct GaussianApproxOptions {
@@ -123,7 +127,8 @@ Result<ThresholdResult> GaussianApproxThreshold(const EdgeDistribution& distribu
 // (0, 0.5), stall_fraction in [0, 1), sigma_tolerance > 0, and
 // 2 d_max llr_max / llr_step <= 2^21 for the largest variable degree d_max,
 // which bounds the FFT size). Fails with a Status if even the capacity sigma
-// "decodes" (a grid far too coarse to be trusted). (3,6) takes about 0.5 s.
+// "decodes" (a grid far too coarse to be trusted). (3,6) takes about 0.5 s,
+// irregular ensembles a few seconds; Status::Stopped when options.stop is set.
 Result<ThresholdResult> QuantizedThreshold(const EdgeDistribution& distribution, double rate,
                                            const QuantizedDeOptions& options = {});
 

@@ -57,8 +57,11 @@ struct CodeFamily {
                                                       const std::string& key_prefix,
                                                       const BuildContext& context);
   // Adds the family's theory, limits and code facts to a scheme's result
-  // (code is what build made); nullptr: nothing to add.
-  void (*analyse)(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r);
+  // (code is what build made); nullptr: nothing to add. Long computations
+  // (density evolution) give up once *stop reads true (stop may be null);
+  // the caller then discards the result.
+  void (*analyse)(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r,
+                  const std::atomic<bool>* stop);
 };
 
 // A channel model. `additive_only` as Channel::additive_only() of every

@@ -104,7 +104,7 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
 }  // namespace
 
 SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
-                           std::vector<PointResult> points) {
+                           std::vector<PointResult> points, const std::atomic<bool>* stop) {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   SchemeResult r;
   r.scheme = chain.scheme();
@@ -140,7 +140,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
 
   // The code family's own analysis: bounds, thresholds, code facts.
   if (const CodeFamily* family = FindCodeFamily(chain.scheme().code); family && family->analyse) {
-    family->analyse(chain.code(), chain.scheme(), r);
+    family->analyse(chain.code(), chain.scheme(), r, stop);
   }
 
   r.limits.shannon_ebno_db = analysis::ShannonMinEbnoDb(r.spectral_efficiency);

@@ -5,6 +5,7 @@
 #ifndef CAPGAP_SIM_SCHEME_RESULT_H_
 #define CAPGAP_SIM_SCHEME_RESULT_H_
 
+#include <atomic>
 #include <limits>
 #include <string>
 #include <string_view>
@@ -147,9 +148,12 @@ struct SchemeResult {
   Summary summary;
 };
 
-// Fills theory, limits and summary for simulated points of `chain`.
+// Fills theory, limits and summary for simulated points of `chain`. Once
+// *stop reads true (stop may be null) long parts (density evolution) give
+// up and the result is incomplete: the caller must discard it.
 SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
-                           std::vector<PointResult> points);
+                           std::vector<PointResult> points,
+                           const std::atomic<bool>* stop = nullptr);
 
 }  // namespace capgap
 

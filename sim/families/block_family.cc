@@ -86,7 +86,8 @@ Result<std::shared_ptr<const ChannelCode>> BuildBlock(const SchemeConfig& scheme
   return std::shared_ptr<const ChannelCode>(std::move(built).value());
 }
 
-void AnalyseBlock(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r) {
+void AnalyseBlock(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r,
+                  const std::atomic<bool>* /*stop*/) {
   const auto& block = static_cast<const BlockChannelCode&>(channel_code);
   const BlockCode& code = block.code();
   const BlockWeightEnumerator& we = code.weight_enumerator();

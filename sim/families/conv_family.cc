@@ -96,7 +96,8 @@ Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
 
 // The free distance and distance spectrum, and the soft-decision union
 // bound on BER beside the curve where it applies.
-void AnalyseConv(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r) {
+void AnalyseConv(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r,
+                 const std::atomic<bool>* /*stop*/) {
   const auto& conv = static_cast<const ConvChannelCode&>(code);
   const ConvSchemeConfig& c = scheme.conv;
   auto spectrum = ComputeDistanceSpectrum(conv.code(), 10);

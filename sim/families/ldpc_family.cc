@@ -36,7 +36,9 @@ constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float
 constexpr KeySpec kLdpcKeys[] = {
     {"construction", "peg", OneOf(kConstructionWords),
      "progressive edge growth, a lifted quasi-cyclic base matrix, or a parity-check matrix file"},
-    {"length", "2016", IntegerIn(8, 1u << 20), "code length n, a multiple of bits per symbol",
+    // PEG and the dense encoder need O(n m) and O(m^2 n / 64) time: n = 32768
+    // builds in about 75 s on one core (README, "LDPC code sizes").
+    {"length", "2016", IntegerIn(8, 1u << 15), "code length n, a multiple of bits per symbol",
      OnlyWith("construction", kPegWord)},
     {"rate", "0.5", NumberIn(Open(0), Open(1)), "design rate, m = round(n (1 - rate)) checks",
      OnlyWith("construction", kPegWord)},
@@ -231,7 +233,8 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
 
 // Code facts, decoder settings and the density-evolution thresholds of an
 // LDPC scheme.
-void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r) {
+void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, SchemeResult& r,
+                 const std::atomic<bool>* stop) {
   const auto& ldpc = static_cast<const LdpcChannelCode&>(channel_code);
   const LdpcCode& code = ldpc.code();
   const LdpcSchemeConfig& c = scheme.ldpc;
@@ -275,7 +278,9 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
   }
   // The ensemble's threshold at the code's actual rate k/n (a rank-deficient
   // H carries a little more than the design rate).
-  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate);
+  analysis::QuantizedDeOptions de_options;
+  de_options.stop = stop;
+  auto quantized = analysis::QuantizedThreshold(dist.value(), r.code_rate, de_options);
   auto ga = analysis::GaussianApproxThreshold(dist.value(), r.code_rate);
   if (ga.ok()) lim.threshold_ga_ebno_db = ga.value().ebno_db;
   const auto& best = quantized.ok() ? quantized : ga;

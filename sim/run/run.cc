@@ -347,7 +347,16 @@ int Run(const RunOptions& o) {
 
   std::vector<SchemeResult> results;
   for (std::size_t i = 0; i < chains.size(); ++i) {
-    results.push_back(AnalyseScheme(chains[i], cfg.SweepFor(i), std::move(session.points[i])));
+    results.push_back(
+        AnalyseScheme(chains[i], cfg.SweepFor(i), std::move(session.points[i]), o.interrupt));
+  }
+  // A stop during the analysis (density evolution takes seconds for some
+  // LDPC ensembles): every point is in the checkpoint, --resume redoes the
+  // analysis and writes the file.
+  if (o.interrupt && o.interrupt->load()) {
+    say("stopped by signal during the analysis; checkpoint " + ckpt_path + " saved (" +
+        std::to_string(ckpt.FinishedPoints()) + " point(s) finished); continue with: " + again());
+    return kExitStopped;
   }
   RunMetadata meta;
   meta.command_line = o.command_line;

@@ -123,11 +123,9 @@ TEST(LdpcLimits, AbsurdHeadersAreRefusedWithoutAllocating) {
   EXPECT_EQ(h.status().message(),
             "f.txt:1: n = 2000000000 columns but the check lines list 0 entries; every column "
             "must be in a check");
-  h = ReadLdpcMatrix("ldpc-matrix n 2000000000 m 1\n2: 0 1\n", "f.txt");
+  h = ReadLdpcMatrix("ldpc-matrix n 3 m 1000000000\n2: 0 1\n1: 2\n", "f.txt");
   ASSERT_FALSE(h.ok());
-  EXPECT_EQ(h.status().message(),
-            "f.txt:1: n = 2000000000 columns but the check lines list 2 entries; every column "
-            "must be in a check");
+  EXPECT_EQ(h.status().message(), "f.txt: ends after 2 of 1000000000 check lines");
 }
 
 TEST(LdpcLimits, DecoderBatchHoldsAboutAMegabitAndSeveralLaneLoads) {

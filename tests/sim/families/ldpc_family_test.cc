@@ -39,14 +39,18 @@ std::string ErrorOf(const SchemeConfig& s, int threads = 1) {
 
 std::string Mb(std::uint64_t bytes) { return std::to_string(CeilMegabytes(bytes)) + " MB"; }
 
-// PEG, n = 2^20, rate 1/2, degree 3: m = 2^19 checks, E = 3 n edges.
+// PEG, n = 2^20, rate 1/2, degree 3: m = 2^19 checks, E = 3 n edges. The
+// `length` key stops at 32768; a program that fills SchemeConfig itself is
+// still refused by the family, before anything is built.
 TEST(LdpcMemory, HugePegCodeIsRefusedNamingLengthLimitAndEstimate) {
+  SchemeConfig huge = Scheme("");
+  huge.ldpc.length = 1 << 20;
   const LdpcMemoryEstimate e =
       EstimateLdpcMemory(1 << 20, 1 << 19, 3 << 20, false, 64, /*threads=*/1);
   // The encoder's part by hand (arithmetic): m n / 8 elimination bits +
   // m (n - m) / 8 packed columns + n flags = 64 GiB + 32 GiB + 1 MiB.
   EXPECT_EQ(CeilMegabytes(e.encoder_bytes), 98305u);
-  EXPECT_EQ(ErrorOf(Scheme("length = 1048576\n")),
+  EXPECT_EQ(ErrorOf(huge),
             "scheme.a.length = 1048576 with construction = peg (n = 1048576, m = 524288): needs "
             "an estimated " + Mb(e.total_bytes()) + " (code " + Mb(e.code_bytes) +
                 ", encoder elimination matrix 98305 MB, decoder 1 thread(s) x " +
@@ -54,6 +58,14 @@ TEST(LdpcMemory, HugePegCodeIsRefusedNamingLengthLimitAndEstimate) {
                 "), over scheme.a.memory_limit_mb = 4096; use a smaller code, a qc construction "
                 "with a dual-diagonal base matrix (linear-time encoder, no dense matrix), fewer "
                 "threads, or raise memory_limit_mb");
+}
+
+TEST(LdpcMemory, LengthKeyStopsAtWhatBuildsInAboutAMinute) {
+  auto r = ParseRunConfig(
+      "[sweep]\nebno_db = 1\n[scheme.a]\nmodulation = bpsk\ncode = ldpc\nlength = 32770\n",
+      "t.ini", {});
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.status().message(), "t.ini: scheme.a.length = '32770': must be an integer in [8, 32768]");
 }
 
 TEST(LdpcMemory, LimitIsTheMemoryLimitMbKey) {
