@@ -115,9 +115,11 @@ class Scheme:
         if "theory" in g and "ebno_db" in g["theory"] and "ber_uncoded" in g["theory"]:
             self.theory_ebno = np.asarray(g["theory/ebno_db"][()], dtype=np.float64)
             self.theory_ber = np.asarray(g["theory/ber_uncoded"][()], dtype=np.float64)
-        self.bound_ber = None
+        self.bound_ber = self.bound_fer = None
         if "theory" in g and "ber_bound" in g["theory"]:
             self.bound_ber = np.asarray(g["theory/ber_bound"][()], dtype=np.float64)
+        if "theory" in g and "fer_bound" in g["theory"]:
+            self.bound_fer = np.asarray(g["theory/fer_bound"][()], dtype=np.float64)
         self.coded = self.code != "none"
         lim = g["limits"] if "limits" in g else None
         if lim is None:
@@ -363,11 +365,12 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
             ok = s.theory_ber > 0
             ax.plot(s.theory_ebno[ok], s.theory_ber[ok], color=colour, linestyle=(0, (5, 2.5)),
                     linewidth=1.3, alpha=0.9, zorder=2)
-        if rate == "ber" and s.theory_ebno is not None and s.bound_ber is not None:
+        bound = s.bound_ber if rate == "ber" else s.bound_fer
+        if s.theory_ebno is not None and bound is not None:
             # Union bound of a coded scheme (its uncoded curve is not drawn:
             # it would duplicate the uncoded scheme of the same modulation).
-            ok = (s.bound_ber > 0) & (s.bound_ber < 0.5)
-            ax.plot(s.theory_ebno[ok], s.bound_ber[ok], color=colour,
+            ok = (bound > 0) & (bound < (0.5 if rate == "ber" else 1.0))
+            ax.plot(s.theory_ebno[ok], bound[ok], color=colour,
                     linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)), linewidth=1.2, alpha=0.9, zorder=2)
         _draw_points(ax, s, rate, colour, marker)
         _draw_limits(ax, s, colour)
@@ -424,7 +427,9 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
         any_constrained=any(math.isfinite(s.constrained) for s in schemes),
         with_theory="ber" in rates and any(s.theory_ebno is not None and not s.coded
                                            for s in schemes),
-        any_bound="ber" in rates and any(s.bound_ber is not None for s in schemes),
+        any_bound=any((r == "ber" and s.bound_ber is not None)
+                      or (r == "fer" and s.bound_fer is not None)
+                      for s in schemes for r in rates),
         any_threshold=any(math.isfinite(s.threshold) for s in schemes))
     for k, (ax, rate) in enumerate(zip(axes, rates)):
         last = k == len(rates) - 1

@@ -20,11 +20,29 @@ class [[nodiscard]] Status {
     s.message_ = std::move(message);
     return s;
   }
+  // A long computation (e.g. a code construction) gave up because its stop
+  // flag was set: not an error of its input. Callers that add context to a
+  // message keep the kind (WithPrefix); a run turns it into "stopped"
+  // (exit 75), not into a failure.
+  static Status Stopped(std::string message) {
+    Status s = Error(std::move(message));
+    s.stopped_ = true;
+    return s;
+  }
   bool ok() const { return ok_; }
+  bool stopped() const { return stopped_; }
   const std::string& message() const { return message_; }
+  // The same status with `prefix` put before its message (OK stays OK).
+  Status WithPrefix(const std::string& prefix) const {
+    if (ok_) return *this;
+    Status s = *this;
+    s.message_ = prefix + message_;
+    return s;
+  }
 
  private:
   bool ok_ = true;
+  bool stopped_ = false;
   std::string message_;
 };
 

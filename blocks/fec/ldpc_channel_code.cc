@@ -2,6 +2,7 @@
 // code-family role.
 #include "blocks/fec/ldpc_channel_code.h"
 
+#include <algorithm>
 #include <vector>
 
 namespace capgap {
@@ -17,13 +18,23 @@ class LdpcWorkspace final : public ChannelCode::Workspace {
 }  // namespace
 
 Result<std::shared_ptr<const LdpcChannelCode>> LdpcChannelCode::Create(
-    std::shared_ptr<const LdpcCode> code, const LdpcDecoderOptions& options) {
-  auto encoder = LdpcEncoder::Create(code);
-  if (!encoder.ok()) return Status::Error("code: " + encoder.status().message());
+    std::shared_ptr<const LdpcCode> code, const LdpcDecoderOptions& options,
+    const std::atomic<bool>* stop) {
+  auto encoder = LdpcEncoder::Create(code, LdpcEncoder::Method::kAuto, stop);
+  if (!encoder.ok()) return encoder.status().WithPrefix("code: ");
   auto decoder = LdpcDecoder::Create(code, options);
   if (!decoder.ok()) return Status::Error("decoder: " + decoder.status().message());
   return std::shared_ptr<const LdpcChannelCode>(
       new LdpcChannelCode(std::move(code), std::move(encoder).value(), std::move(decoder).value()));
+}
+
+std::uint32_t LdpcChannelCode::BatchFrames(std::uint32_t unit_frames, std::size_t coded_bits,
+                                           int decoder_lanes) {
+  constexpr std::size_t kBatchCodedBits = std::size_t{1} << 20;
+  const auto lanes = static_cast<std::size_t>(std::max(decoder_lanes, 1));
+  std::size_t frames = kBatchCodedBits / std::max<std::size_t>(coded_bits, 1);
+  frames = std::max(frames / lanes * lanes, 4 * lanes);
+  return static_cast<std::uint32_t>(std::min<std::size_t>(unit_frames, frames));
 }
 
 std::unique_ptr<ChannelCode::Workspace> LdpcChannelCode::MakeWorkspace(

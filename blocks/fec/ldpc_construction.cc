@@ -43,8 +43,10 @@ std::string ShortestDouble(double x) {
 // girth (girth = kNoCycle: the new edge may close no cycle at all). Checks,
 // variables and target checks are tried in increasing index order, so the
 // pass is deterministic. Stops when no such move exists.
-void BalanceCheckDegrees(int girth, std::vector<std::vector<int>>& var_checks,
-                         std::vector<std::vector<int>>& check_vars) {
+// Returns false when `stop` was set before the pass ended.
+bool BalanceCheckDegrees(int girth, std::vector<std::vector<int>>& var_checks,
+                         std::vector<std::vector<int>>& check_vars,
+                         const std::atomic<bool>* stop) {
   const int n = static_cast<int>(var_checks.size());
   const int m = static_cast<int>(check_vars.size());
   // A cycle closed by edge (u, lo) has length dist(u, lo) + 1 in the graph
@@ -58,7 +60,8 @@ void BalanceCheckDegrees(int girth, std::vector<std::vector<int>>& var_checks,
       max_deg = std::max(max_deg, static_cast<int>(vs.size()));
       min_deg = std::min(min_deg, static_cast<int>(vs.size()));
     }
-    if (max_deg - min_deg < 2) return;
+    if (max_deg - min_deg < 2) return true;
+    if (stop && stop->load(std::memory_order_relaxed)) return false;
     bool moved = false;
     for (int hi = 0; hi < m && !moved; ++hi) {
       if (static_cast<int>(check_vars[U(hi)].size()) != max_deg) continue;
@@ -104,7 +107,7 @@ void BalanceCheckDegrees(int girth, std::vector<std::vector<int>>& var_checks,
         for (const int x : touched_vars) var_seen[U(x)] = 0;
       }
     }
-    if (!moved) return;
+    if (!moved) return true;
   }
 }
 
@@ -379,6 +382,12 @@ Result<LdpcCode> BuildPegCode(const PegSpec& spec) {
   };
 
   for (int v = 0; v < n; ++v) {
+    // One variable costs O(m) (its breadth-first searches): milliseconds at
+    // most, so the flag is seen well within a second.
+    if (spec.stop && spec.stop->load(std::memory_order_relaxed)) {
+      return Status::Stopped("peg: stopped after placing " + std::to_string(v) + " of " +
+                             std::to_string(n) + " variables");
+    }
     for (int k = 0; k < var_degree[U(v)]; ++k) {
       best = INT_MAX;
       ties.clear();
@@ -432,7 +441,9 @@ Result<LdpcCode> BuildPegCode(const PegSpec& spec) {
   if (spec.balance_check_degrees) {
     Result<LdpcCode> grown = LdpcCode::FromRows(n, check_vars);
     if (!grown.ok()) return Status::Error("peg: " + grown.status().message());
-    BalanceCheckDegrees(Girth(grown.value()), var_checks, check_vars);
+    if (!BalanceCheckDegrees(Girth(grown.value()), var_checks, check_vars, spec.stop)) {
+      return Status::Stopped("peg: stopped while balancing the check degrees");
+    }
   }
   for (int c = 0; c < m; ++c) {
     if (check_vars[U(c)].size() < 2) {
@@ -563,6 +574,27 @@ Result<LdpcCode> LiftBaseMatrix(const BaseMatrix& base, int lifting) {
     }
   }
   const int z = lifting;
+  {
+    // The lifted sizes must fit LdpcCode's int indices (checked in 64 bits
+    // before anything is allocated).
+    std::int64_t nonzero = 0;
+    for (const int s : base.shifts) nonzero += s >= 0 ? 1 : 0;
+    const std::int64_t limit = INT_MAX;
+    const std::int64_t zz = z;
+    const struct {
+      const char* what;
+      std::int64_t value;
+    } sizes[] = {{"n = cols x lifting", std::int64_t{base.cols} * zz},
+                 {"m = rows x lifting", std::int64_t{base.rows} * zz},
+                 {"edges = nonzero entries x lifting", nonzero * zz}};
+    for (const auto& size : sizes) {
+      if (size.value > limit) {
+        return Status::Error(src + ": lifting " + std::to_string(z) + ": " + size.what + " = " +
+                             std::to_string(size.value) + ": must be at most " +
+                             std::to_string(limit));
+      }
+    }
+  }
   std::vector<std::vector<int>> rows(U(base.rows) * U(z));
   for (int r = 0; r < base.rows; ++r) {
     for (int c = 0; c < base.cols; ++c) {

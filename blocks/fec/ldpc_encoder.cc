@@ -21,7 +21,25 @@ constexpr int kChunkWords = 8;
 
 }  // namespace
 
-Result<LdpcEncoder> LdpcEncoder::Create(std::shared_ptr<const LdpcCode> code, Method method) {
+bool LdpcEncoder::HasDualDiagonalPath(const LdpcCode& code) {
+  const std::optional<BaseMatrix> base = RecoverBaseMatrix(code);
+  return base && FindDualDiagonal(*base).has_value();
+}
+
+std::uint64_t LdpcEncoder::GeneralPathBytes(std::int64_t n, std::int64_t m) {
+  if (n <= 0 || m <= 0) return 0;
+  const auto un = static_cast<std::uint64_t>(n), um = static_cast<std::uint64_t>(m);
+  const std::uint64_t rank = std::min(um, un);
+  const std::uint64_t k = un - rank;
+  const auto chunk_words = static_cast<std::uint64_t>(kChunkWords);
+  const std::uint64_t chunk_bits = 64 * chunk_words;
+  const std::uint64_t rows = um * ((un + 63) / 64) * 8;
+  const std::uint64_t columns = (rank + chunk_bits - 1) / chunk_bits * k * chunk_words * 8;
+  return rows + columns + un;  // + the pivot flags
+}
+
+Result<LdpcEncoder> LdpcEncoder::Create(std::shared_ptr<const LdpcCode> code, Method method,
+                                        const std::atomic<bool>* stop) {
   if (!code) return Status::Error("LDPC encoder: no code");
   LdpcEncoder enc;
   enc.code_ = std::move(code);
@@ -73,6 +91,13 @@ Result<LdpcEncoder> LdpcEncoder::Create(std::shared_ptr<const LdpcCode> code, Me
   std::vector<std::uint8_t> is_pivot(U(n), 0);
   int rank = 0;
   for (int c = n - 1; c >= 0 && rank < m; --c) {
+    // One column costs at most m row operations of n/64 words (about 10 ms
+    // at n = 65536), so the flag is seen well within a second.
+    if (stop && stop->load(std::memory_order_relaxed)) {
+      return Status::Stopped("LDPC encoder: stopped during the elimination (" +
+                             std::to_string(n - 1 - c) + " of " + std::to_string(n) +
+                             " columns done)");
+    }
     int p = -1;
     for (int r = rank; r < m; ++r) {
       if (bit(r, c)) {

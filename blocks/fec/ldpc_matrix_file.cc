@@ -23,7 +23,7 @@ constexpr std::string_view kSpaces = " \t\r";
 
 bool IsSpace(char c) { return kSpaces.find(c) != std::string_view::npos; }
 
-std::string_view Trim(std::string_view s) { return TrimBlanks(s, kSpaces); }
+std::string_view TrimSpaces(std::string_view s) { return TrimBlanks(s, kSpaces); }
 
 std::string Where(std::string_view source, int line) {
   return std::string(source) + ":" + std::to_string(line) + ": ";
@@ -42,7 +42,7 @@ std::vector<LdpcTextLine> SplitLdpcTextLines(std::string_view text) {
     std::string_view line = text.substr(pos, end - pos);
     const std::size_t hash = line.find('#');
     if (hash != std::string_view::npos) line = line.substr(0, hash);
-    line = Trim(line);
+    line = TrimSpaces(line);
     if (!line.empty()) {
       LdpcTextLine l;
       l.number = number;
@@ -133,7 +133,7 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
   std::string description = "read from " + src;
   if (next < lines.size() && lines[next].words[0] == "description") {
     description =
-        std::string(Trim(lines[next].content.substr(std::string_view("description").size())));
+        std::string(TrimSpaces(lines[next].content.substr(std::string_view("description").size())));
     ++next;
   }
   // Nothing is sized from the header alone. The check lines are collected
@@ -234,7 +234,7 @@ std::string WriteLdpcMatrix(const LdpcCode& code) {
   for (char& c : d) {
     if (c == '#' || c == '\n' || c == '\r') c = ' ';
   }
-  const std::string_view dt = Trim(d);
+  const std::string_view dt = TrimSpaces(d);
   if (!dt.empty()) {
     out += "description ";
     out += dt;

@@ -260,7 +260,7 @@ void ViterbiDecoder::Traceback(const Workspace& ws, int state, std::size_t end, 
     });
   } else {
     walk([&](std::size_t t) {
-      const unsigned bit = (dec[t * row + (s >> 3)] >> (s & 7u)) & 1u;
+      const unsigned bit = static_cast<unsigned>(dec[t * row + (s >> 3)] >> (s & 7u)) & 1u;
       s = ((s << 1) & mask) | bit;
     });
   }

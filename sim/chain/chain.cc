@@ -8,7 +8,8 @@
 
 namespace capgap {
 
-Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
+Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
+                            const BuildContext& context) {
   Chain chain;
   chain.scheme_ = scheme;
   const std::string p = "scheme." + scheme.name + ".";
@@ -16,7 +17,7 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed) {
   if (!family) {
     return Status::Error(p + "code = '" + scheme.code + "': valid: " + CodeFamilyNames());
   }
-  auto code = family->build(scheme, p);
+  auto code = family->build(scheme, p, context);
   if (!code.ok()) return code.status();
   chain.code_ = std::move(code).value();
   // The family fixes the information bits per frame (LDPC: the code's k).
@@ -245,8 +246,9 @@ void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, St
     return;
   }
   TransmitComplex(tx_bits, channel, s, ws);
-  CAPGAP_DCHECK(ws.state.uniform());
-  demapper_->Demap(ws.symbols, ws.state.n0_uniform, llrs);
+  // Per-symbol channel state (gain, N0) from the channel; AWGN reports a
+  // uniform state and the demapper keeps its scalar-N0 fast paths.
+  demapper_->Demap(ws.symbols, ws.state, llrs);
 }
 
 // A unit: frames in batches of batch_frames_ (1, or the whole unit for
@@ -256,6 +258,14 @@ void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, St
 // depend on the batching.
 UnitCounts Chain::RunUnit(const Channel& channel, std::uint32_t point_index,
                           std::uint32_t unit_index, ChainWorkspace& ws) const {
+  return *RunUnitUnlessStopped(channel, point_index, unit_index, ws, nullptr);
+}
+
+std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
+                                                      std::uint32_t point_index,
+                                                      std::uint32_t unit_index,
+                                                      ChainWorkspace& ws,
+                                                      const std::atomic<bool>* stop) const {
   Streams s = UnitStreams(point_index, unit_index);
   const std::size_t k = scheme_.frame_bits, n = code_->coded_bits();
   const bool uncoded = code_->identity();
@@ -271,6 +281,8 @@ UnitCounts Chain::RunUnit(const Channel& channel, std::uint32_t point_index,
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
   for (std::uint32_t f0 = 0; f0 < unit_frames_; f0 += batch_frames_) {
+    // A relaxed load per frame or batch: nothing next to the frame's work.
+    if (stop && stop->load(std::memory_order_relaxed)) return std::nullopt;
     const std::uint32_t batch = std::min(batch_frames_, unit_frames_ - f0);
     for (std::uint32_t b = 0; b < batch; ++b) {
       const std::span<Bit> bits(ws.batch_bits.data() + b * k, k);

@@ -21,6 +21,7 @@
 #define CAPGAP_SIM_CHAIN_CHAIN_H_
 
 #include <algorithm>
+#include <atomic>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -68,7 +69,10 @@ struct ChainWorkspace {
 
 class Chain {
  public:
-  static Result<Chain> Create(const SchemeConfig& scheme, std::uint64_t seed);
+  // context.stop reaches the code's construction: a stopped build returns a
+  // Status with stopped() set (the run exits as interrupted).
+  static Result<Chain> Create(const SchemeConfig& scheme, std::uint64_t seed,
+                              const BuildContext& context = {});
 
   const SchemeConfig& scheme() const { return scheme_; }
   const Mapper& mapper() const { return *mapper_; }
@@ -105,6 +109,16 @@ class Chain {
   // channel. Deterministic in (seed, scheme name, point, unit).
   UnitCounts RunUnit(const Channel& channel, std::uint32_t point_index,
                      std::uint32_t unit_index, ChainWorkspace& ws) const;
+  // The same unit, abandoned as soon as *stop reads true: the flag is read
+  // before every frame (every decoder batch for codes that decode several
+  // frames per call, LdpcChannelCode::BatchFrames), and an abandoned unit
+  // returns nullopt, its partial counts dropped, so whatever is counted
+  // stays a pure function of (seed, scheme, point, unit). With stop never
+  // set the result is exactly RunUnit's. stop = nullptr: never abandoned.
+  std::optional<UnitCounts> RunUnitUnlessStopped(const Channel& channel,
+                                                 std::uint32_t point_index,
+                                                 std::uint32_t unit_index, ChainWorkspace& ws,
+                                                 const std::atomic<bool>* stop) const;
 
  private:
   Chain() = default;

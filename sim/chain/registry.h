@@ -7,6 +7,7 @@
 #ifndef CAPGAP_SIM_CHAIN_REGISTRY_H_
 #define CAPGAP_SIM_CHAIN_REGISTRY_H_
 
+#include <atomic>
 #include <cstdint>
 #include <memory>
 #include <span>
@@ -24,6 +25,16 @@ namespace capgap {
 
 struct SchemeResult;  // sim/chain/scheme_result.h
 
+// What building a scheme's code may know about the run around it.
+struct BuildContext {
+  // Long constructions (PEG, an encoder's elimination) look at it often
+  // enough to react within a second; once it reads true, build returns a
+  // Status::Stopped. nullptr: never stops.
+  const std::atomic<bool>* stop = nullptr;
+  // Worker threads that will each make a workspace (memory estimates).
+  int threads = 1;
+};
+
 // A code family, named by the scheme's `code` key.
 struct CodeFamily {
   const char* name;
@@ -40,9 +51,11 @@ struct CodeFamily {
   // (checks that span keys go here); nullptr: nothing to read.
   Status (*parse)(const ResolvedKeys& keys, const std::string& source, SchemeConfig& scheme);
   // Builds the family's code for `scheme`. Every message names the full key
-  // (`key_prefix` is "scheme.NAME.") with its value and the rule.
+  // (`key_prefix` is "scheme.NAME.") with its value and the rule. A build
+  // that context.stop ended returns a Status with stopped() set.
   Result<std::shared_ptr<const ChannelCode>> (*build)(const SchemeConfig& scheme,
-                                                      const std::string& key_prefix);
+                                                      const std::string& key_prefix,
+                                                      const BuildContext& context);
   // Adds the family's theory, limits and code facts to a scheme's result
   // (code is what build made); nullptr: nothing to add.
   void (*analyse)(const ChannelCode& code, const SchemeConfig& scheme, SchemeResult& r);

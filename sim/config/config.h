@@ -76,6 +76,8 @@ struct LdpcSchemeConfig {
   std::string arithmetic = "auto";             // auto, int8, int16, float
   double normalization = 0.75;
   double offset = 0.5;
+  // Refuse codes whose estimated memory (H, encoder, decoder x threads) is larger.
+  std::uint64_t memory_limit_mb = 4096;
   // Directory of the config file: relative paths above are taken from it.
   std::string config_dir;
   // base_matrix / matrix_file resolved against config_dir.

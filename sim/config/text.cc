@@ -75,58 +75,7 @@ bool AllDigits(std::string_view t) {
   return true;
 }
 
-// The escaped form of the longest prefix of `text` that fits in
-// `max_chars` characters; *shown = bytes of `text` it covers.
-std::string EscapedPrefix(std::string_view text, std::size_t max_chars, std::size_t* shown) {
-  std::string out;
-  std::size_t i = 0;
-  for (; i < text.size(); ++i) {
-    const char c = text[i];
-    const auto u = static_cast<unsigned char>(c);
-    char buf[8] = {c, '\0'};
-    if (u < 0x20 || u >= 0x7f) {
-      std::snprintf(buf, sizeof buf, "\\x%02X", static_cast<unsigned>(u));
-    } else if (c == '\\') {
-      std::snprintf(buf, sizeof buf, "\\\\");
-    }
-    const std::size_t n = std::strlen(buf);
-    if (out.size() + n > max_chars) break;
-    out.append(buf, n);
-  }
-  *shown = i;
-  return out;
-}
-
 }  // namespace
-
-std::string Trim(std::string_view text) {
-  constexpr std::string_view kSpace = " \t\r\n";
-  const auto b = text.find_first_not_of(kSpace);
-  if (b == std::string_view::npos) return "";
-  const auto e = text.find_last_not_of(kSpace);
-  return std::string(text.substr(b, e - b + 1));
-}
-
-std::string Printable(std::string_view text, std::size_t max_bytes) {
-  std::size_t shown = 0;
-  std::string out = EscapedPrefix(text, max_bytes, &shown);
-  if (shown < text.size()) out += "... (" + std::to_string(text.size()) + " bytes)";
-  return out;
-}
-
-std::string QuoteValue(std::string_view text, std::size_t max_bytes) {
-  std::size_t shown = 0;
-  std::string out = "'";
-  out += EscapedPrefix(text, max_bytes, &shown);
-  if (shown < text.size()) {
-    out += "...' (";
-    out += std::to_string(text.size());
-    out += " bytes)";
-  } else {
-    out += '\'';
-  }
-  return out;
-}
 
 Result<std::uint64_t> ParseUint64(std::string_view text) {
   if (text.empty()) return Status::Error("empty; expected an integer");

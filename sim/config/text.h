@@ -18,24 +18,11 @@
 #include <string_view>
 
 #include "blocks/core/status.h"
+#include "blocks/core/text.h"
 
 namespace capgap {
 
-// Removes leading and trailing spaces, tabs, CR and LF.
-std::string Trim(std::string_view text);
-
-// Most characters of a value shown in a message; longer values are cut.
-inline constexpr std::size_t kMaxShownBytes = 80;
-
-// `text` made printable for a message: control bytes, DEL and bytes >= 0x80
-// become \xNN, a backslash becomes \\. If that takes more than `max_bytes`
-// characters, only the bytes that fit are shown, followed by "... (N
-// bytes)" with N the length of `text`.
-std::string Printable(std::string_view text, std::size_t max_bytes = kMaxShownBytes);
-
-// Printable(text) in single quotes: 'abc'; a shortened value reads
-// 'first bytes...' (10485760 bytes).
-std::string QuoteValue(std::string_view text, std::size_t max_bytes = kMaxShownBytes);
+// Trim, Printable, QuoteValue: blocks/core/text.h.
 
 // Decimal digits, optionally preceded by '-' (ParseInt64); the whole
 // 64-bit range. Messages: "empty; expected an integer", "not an integer",

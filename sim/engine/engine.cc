@@ -15,6 +15,7 @@
 #include <limits>
 #include <map>
 #include <mutex>
+#include <optional>
 #include <thread>
 
 #include "blocks/core/types.h"
@@ -176,9 +177,15 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
         break;
       }
       const std::uint32_t unit = st.next_unit.fetch_add(1, std::memory_order_relaxed);
-      const UnitCounts counts = chain.RunUnit(channel, point_index, unit, ws);
+      // Abandoned once the point is decided: by the stopping rule (the unit
+      // lies beyond the deciding one and would be discarded) or by the
+      // interrupt flag, which the supervisor turns into done within a tick.
+      // An abandoned unit never reaches the counted prefix.
+      const std::optional<UnitCounts> counts =
+          chain.RunUnitUnlessStopped(channel, point_index, unit, ws, &st.done_flag);
+      if (!counts) break;
       std::lock_guard<std::mutex> lock(st.mu);
-      st.AbsorbLocked(unit, counts);
+      st.AbsorbLocked(unit, *counts);
     }
   };
 

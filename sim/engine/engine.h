@@ -127,7 +127,11 @@ struct EngineOptions {
   double progress_interval_seconds = 0.25;
   // Set (e.g. from a signal handler) to stop as soon as possible; the
   // interrupted point is reported with StopReason::kInterrupted and its
-  // counted prefix.
+  // counted prefix. The supervising thread sees it within a tick (50 ms at
+  // most) and marks the point done; workers then abandon the units they
+  // are simulating (Chain::RunUnitUnlessStopped looks before every frame or
+  // decoder batch), whose partial counts are dropped, so a stop during a
+  // long unit takes about a frame, not the rest of the unit.
   const std::atomic<bool>* interrupt = nullptr;
   // Called from RunPoint's calling thread every checkpoint_interval_seconds
   // (0: never) with the counted prefix, while worker threads keep running.

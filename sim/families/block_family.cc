@@ -60,7 +60,8 @@ Status ParseBlock(const ResolvedKeys& k, const std::string& source, SchemeConfig
 }
 
 Result<std::shared_ptr<const ChannelCode>> BuildBlock(const SchemeConfig& scheme,
-                                                      const std::string& p) {
+                                                      const std::string& p,
+                                                      const BuildContext& /*context*/) {
   const auto* o = std::any_cast<BlockOptions>(&scheme.code_options);
   if (!o) return Status::Error(p + "block_code: options not parsed");
   Result<BlockCode> code = Status::Error("unset");

@@ -55,7 +55,8 @@ Result<ConvDecoderKind> ParseConvDecoder(const std::string& word) {
 }
 
 Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
-                                                     const std::string& p) {
+                                                     const std::string& p,
+                                                     const BuildContext& /*context*/) {
   const ConvSchemeConfig& c = scheme.conv;
   ConvCodeSpec spec;
   auto gens = ParseGenerators(c.generators);

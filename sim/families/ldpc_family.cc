@@ -3,8 +3,12 @@
 // decoder, built into an LdpcChannelCode. frame_bits becomes the code's k.
 #include "sim/families/ldpc_family.h"
 
+#include <algorithm>
+#include <climits>
+#include <cstdint>
 #include <filesystem>
 #include <memory>
+#include <vector>
 
 #include "blocks/fec/ldpc_channel_code.h"
 #include "blocks/fec/ldpc_construction.h"
@@ -58,6 +62,8 @@ constexpr KeySpec kLdpcKeys[] = {
      "iteration budget (stops early on a zero syndrome)"},
     {"arithmetic", "auto", OneOf(kArithmeticWords),
      "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
+    {"memory_limit_mb", "4096", IntegerIn(1, 1u << 24),
+     "refuse a code whose estimated memory (H, encoder, decoder x threads) is larger, in MiB"},
     {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",
      OnlyWith("decoder", kNormalizedWord)},
     {"offset", "0.5", NumberIn(Closed(0), Closed(10)), "offset min-sum offset in LLR units",
@@ -91,16 +97,46 @@ Status ParseLdpc(const ResolvedKeys& k, const std::string& source, SchemeConfig&
   if (c.decoder == "sum_product" && (c.arithmetic == "int8" || c.arithmetic == "int16")) {
     return k.Fail("arithmetic", "sum_product runs in float only (valid with it: auto, float)");
   }
+  c.memory_limit_mb = k.integer("memory_limit_mb");
   if (k.has("normalization")) c.normalization = k.number("normalization");
   if (k.has("offset")) c.offset = k.number("offset");
   return Status::Ok();
 }
 
 
+std::string Mb(std::uint64_t bytes) { return std::to_string(CeilMegabytes(bytes)) + " MB"; }
+
+// OK when the estimate for (n, m, edges) fits scheme.NAME.memory_limit_mb;
+// else the refusal, naming `what` (the keys that fixed the sizes, with their
+// values), the estimate and its parts.
+Status CheckLdpcMemory(const SchemeConfig& scheme, const std::string& p, const std::string& what,
+                       std::int64_t n, std::int64_t m, std::int64_t edges, bool dual_diagonal,
+                       const BuildContext& context) {
+  SchemeConfig sized = scheme;
+  sized.frame_bits = static_cast<std::uint32_t>(std::clamp<std::int64_t>(n - m, 1, INT32_MAX));
+  const LdpcMemoryEstimate e = EstimateLdpcMemory(n, m, edges, dual_diagonal,
+                                                  sized.ResolvedUnitFrames(), context.threads);
+  const std::uint64_t limit = scheme.ldpc.memory_limit_mb;
+  if (CeilMegabytes(e.total_bytes()) <= limit) return Status::Ok();
+  std::string parts = "code " + Mb(e.code_bytes);
+  if (!dual_diagonal) parts += ", encoder elimination matrix " + Mb(e.encoder_bytes);
+  parts += ", decoder " + std::to_string(e.threads) + " thread(s) x " + Mb(e.per_thread_bytes);
+  const std::string advice =
+      dual_diagonal ? "a smaller code"
+                    : "a smaller code, a qc construction with a dual-diagonal base matrix "
+                      "(linear-time encoder, no dense matrix)";
+  return Status::Error(p + what + " (n = " + std::to_string(n) + ", m = " + std::to_string(m) +
+                       "): needs an estimated " + Mb(e.total_bytes()) + " (" + parts +
+                       "), over " + p + "memory_limit_mb = " + std::to_string(limit) + "; use " +
+                       advice + ", fewer threads, or raise memory_limit_mb");
+}
+
 Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
-                                                     const std::string& p) {
+                                                     const std::string& p,
+                                                     const BuildContext& context) {
   const LdpcSchemeConfig& c = scheme.ldpc;
   Result<LdpcCode> code = Status::Error("unset");
+  bool checked = false;  // the memory estimate was made before construction
   if (c.construction == "peg") {
     auto degrees = ParseVariableDegrees(c.degrees);
     if (!degrees.ok()) {
@@ -111,13 +147,37 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
     spec.checks = ChecksForRate(c.length, c.rate);
     spec.degrees = degrees.value();
     spec.seed = c.construction_seed;
+    spec.stop = context.stop;
+    std::int64_t edges = 0;
+    const std::vector<int> counts = VariableDegreeCounts(spec.degrees, spec.length);
+    for (std::size_t i = 0; i < counts.size(); ++i) {
+      edges += std::int64_t{counts[i]} * spec.degrees.degrees[i];
+    }
+    const std::string what = "length = " + std::to_string(c.length) + " with construction = peg";
+    if (Status s = CheckLdpcMemory(scheme, p, what, spec.length, spec.checks, edges, false, context);
+        !s.ok()) {
+      return s;
+    }
+    checked = true;
     code = BuildPegCode(spec);
-    if (!code.ok()) return Status::Error(p + "length/rate/degrees: " + code.status().message());
+    if (!code.ok()) return code.status().WithPrefix(p + "length/rate/degrees: ");
   } else if (c.construction == "qc") {
     auto base = ReadBaseMatrixFile(c.ResolvePath(c.base_matrix));
     if (!base.ok()) return Status::Error(p + "base_matrix: " + base.status().message());
-    const int z = c.lifting > 0 ? c.lifting : base.value().design_lifting;
-    code = LiftBaseMatrix(base.value(), z);
+    const BaseMatrix& b = base.value();
+    const int z = c.lifting > 0 ? c.lifting : b.design_lifting;
+    std::int64_t nonzero = 0;
+    for (const int s : b.shifts) nonzero += s >= 0 ? 1 : 0;
+    const std::string what = "base_matrix = '" + c.base_matrix + "' with lifting = " +
+                             std::to_string(z);
+    if (Status s = CheckLdpcMemory(scheme, p, what, std::int64_t{b.cols} * z,
+                                   std::int64_t{b.rows} * z, nonzero * z,
+                                   FindDualDiagonal(b).has_value(), context);
+        !s.ok()) {
+      return s;
+    }
+    checked = true;
+    code = LiftBaseMatrix(b, z);
     if (!code.ok()) {
       return Status::Error(p + "lifting = " + std::to_string(z) + ": " + code.status().message());
     }
@@ -126,6 +186,17 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
     if (!code.ok()) return Status::Error(p + "matrix_file: " + code.status().message());
   } else {
     return Status::Error(p + "construction = '" + c.construction + "': valid: peg, qc, file");
+  }
+  if (!checked) {
+    // A matrix file: H is read (its size bounded by the file's), the
+    // encoder's elimination matrix is not made yet.
+    const LdpcCode& h = code.value();
+    const std::string what = "matrix_file = '" + c.matrix_file + "'";
+    if (Status s = CheckLdpcMemory(scheme, p, what, h.length(), h.checks(), h.edges(),
+                                   LdpcEncoder::HasDualDiagonalPath(h), context);
+        !s.ok()) {
+      return s;
+    }
   }
   auto shared = std::make_shared<const LdpcCode>(std::move(code).value());
   const int n = shared->length();
@@ -153,8 +224,8 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
   opt.arithmetic = arithmetic.value();
   opt.normalization = static_cast<float>(c.normalization);
   opt.offset = static_cast<float>(c.offset);
-  auto built = LdpcChannelCode::Create(std::move(shared), opt);
-  if (!built.ok()) return Status::Error(p + built.status().message());
+  auto built = LdpcChannelCode::Create(std::move(shared), opt, context.stop);
+  if (!built.ok()) return built.status().WithPrefix(p);
   return std::shared_ptr<const ChannelCode>(std::move(built).value());
 }
 
@@ -226,6 +297,23 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
 
 
 }  // namespace
+
+std::uint64_t CeilMegabytes(std::uint64_t bytes) { return (bytes + (1u << 20) - 1) >> 20; }
+
+LdpcMemoryEstimate EstimateLdpcMemory(std::int64_t n, std::int64_t m, std::int64_t edges,
+                                      bool dual_diagonal, std::uint32_t unit_frames, int threads) {
+  const auto un = static_cast<std::uint64_t>(std::max<std::int64_t>(n, 0));
+  const auto um = static_cast<std::uint64_t>(std::max<std::int64_t>(m, 0));
+  const auto ue = static_cast<std::uint64_t>(std::max<std::int64_t>(edges, 0));
+  LdpcMemoryEstimate e;
+  e.threads = std::max(threads, 1);
+  e.code_bytes = 32 * (un + um) + 24 * ue;
+  e.encoder_bytes = dual_diagonal ? 0 : LdpcEncoder::GeneralPathBytes(n, m);
+  const std::uint64_t batch =
+      LdpcChannelCode::BatchFrames(unit_frames, static_cast<std::size_t>(un), 64);
+  e.per_thread_bytes = 64 * (4 * un + ue) + batch * 7 * un + 24 * un;
+  return e;
+}
 
 const CodeFamily kLdpcFamily = {"ldpc",      &kLdpcKeyTable, /*fixed_frame=*/true,
                                 /*unit_frames_multiple=*/64, &ParseLdpc, &BuildLdpc,

@@ -10,7 +10,8 @@ namespace capgap {
 namespace {
 
 Result<std::shared_ptr<const ChannelCode>> BuildUncoded(const SchemeConfig& scheme,
-                                                        const std::string& /*key_prefix*/) {
+                                                        const std::string& /*key_prefix*/,
+                                                        const BuildContext& /*context*/) {
   return std::shared_ptr<const ChannelCode>(std::make_shared<UncodedCode>(scheme.frame_bits));
 }
 

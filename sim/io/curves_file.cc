@@ -6,6 +6,9 @@
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
+#include <string>
+#include <type_traits>
+#include <vector>
 
 #include <H5Cpp.h>
 
@@ -34,6 +37,17 @@ void Dataset(H5::Group& g, const char* name, const H5::PredType& type, const std
   H5::DataSpace space(1, dims);
   H5::DataSet ds = g.createDataSet(name, type, space);
   if (!v.empty()) ds.write(v.data(), type);
+}
+
+// The dataset of one per-point quantity: get(point) for every point.
+template <typename Get>
+void PointDataset(H5::Group& g, const char* name, const H5::PredType& type,
+                  const std::vector<PointResult>& points, Get get) {
+  using T = std::decay_t<decltype(get(points.front()))>;
+  std::vector<T> v;
+  v.reserve(points.size());
+  for (const PointResult& p : points) v.push_back(get(p));
+  Dataset(g, name, type, v);
 }
 
 // Row-major rows x cols matrix.
@@ -155,56 +169,39 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(g, "frame_bits", H5::PredType::NATIVE_UINT32, r.scheme.frame_bits);
       NumAttr(g, "unit_frames", H5::PredType::NATIVE_UINT32, r.scheme.ResolvedUnitFrames());
 
-      std::vector<double> ebno, esno, ber, ber_low, ber_high, fer, fer_low, fer_high, seconds;
-      std::vector<std::uint64_t> bits, bit_errors, frames, frame_errors;
-      std::vector<std::string> stop;
-      for (const PointResult& p : r.points) {
-        ebno.push_back(p.ebno_db);
-        esno.push_back(p.esno_db);
-        bits.push_back(p.counts.bits);
-        bit_errors.push_back(p.counts.bit_errors);
-        frames.push_back(p.counts.frames);
-        frame_errors.push_back(p.counts.frame_errors);
-        ber.push_back(p.ber());
-        ber_low.push_back(p.ber_ci.low);
-        ber_high.push_back(p.ber_ci.high);
-        fer.push_back(p.fer());
-        fer_low.push_back(p.fer_ci.low);
-        fer_high.push_back(p.fer_ci.high);
-        seconds.push_back(p.seconds);
-        stop.push_back(ToString(p.stop_reason));
-      }
+      // One dataset per per-point quantity, in this order.
       const auto& F64 = H5::PredType::NATIVE_DOUBLE;
       const auto& U64 = H5::PredType::NATIVE_UINT64;
-      Dataset(g, "ebno_db", F64, ebno);
-      Dataset(g, "esno_db", F64, esno);
-      Dataset(g, "bits", U64, bits);
-      Dataset(g, "bit_errors", U64, bit_errors);
-      Dataset(g, "frames", U64, frames);
-      Dataset(g, "frame_errors", U64, frame_errors);
-      Dataset(g, "ber", F64, ber);
-      Dataset(g, "ber_low", F64, ber_low);
-      Dataset(g, "ber_high", F64, ber_high);
-      Dataset(g, "fer", F64, fer);
-      Dataset(g, "fer_low", F64, fer_low);
-      Dataset(g, "fer_high", F64, fer_high);
-      Dataset(g, "seconds", F64, seconds);
+      using P = const PointResult&;
+      const auto& pts = r.points;
+      PointDataset(g, "ebno_db", F64, pts, [](P p) { return p.ebno_db; });
+      PointDataset(g, "esno_db", F64, pts, [](P p) { return p.esno_db; });
+      PointDataset(g, "bits", U64, pts, [](P p) { return p.counts.bits; });
+      PointDataset(g, "bit_errors", U64, pts, [](P p) { return p.counts.bit_errors; });
+      PointDataset(g, "frames", U64, pts, [](P p) { return p.counts.frames; });
+      PointDataset(g, "frame_errors", U64, pts, [](P p) { return p.counts.frame_errors; });
+      PointDataset(g, "ber", F64, pts, [](P p) { return p.ber(); });
+      PointDataset(g, "ber_low", F64, pts, [](P p) { return p.ber_ci.low; });
+      PointDataset(g, "ber_high", F64, pts, [](P p) { return p.ber_ci.high; });
+      PointDataset(g, "fer", F64, pts, [](P p) { return p.fer(); });
+      PointDataset(g, "fer_low", F64, pts, [](P p) { return p.fer_ci.low; });
+      PointDataset(g, "fer_high", F64, pts, [](P p) { return p.fer_ci.high; });
+      PointDataset(g, "seconds", F64, pts, [](P p) { return p.seconds; });
       if (r.iterative) {
         // Iterative decoding per point: mean and largest iteration count of a
         // frame, and frames that converged to a wrong codeword.
-        std::vector<double> it_mean;
-        std::vector<std::uint64_t> it_max, undetected;
-        for (const PointResult& p : r.points) {
-          it_mean.push_back(p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
-                                                  static_cast<double>(p.counts.frames)
-                                            : 0.0);
-          it_max.push_back(p.counts.max_decoder_iterations);
-          undetected.push_back(p.counts.undetected_frame_errors);
-        }
-        Dataset(g, "decoder_iterations_mean", F64, it_mean);
-        Dataset(g, "decoder_iterations_max", U64, it_max);
-        Dataset(g, "undetected_frame_errors", U64, undetected);
+        PointDataset(g, "decoder_iterations_mean", F64, pts, [](P p) {
+          return p.counts.frames ? static_cast<double>(p.counts.decoder_iterations) /
+                                       static_cast<double>(p.counts.frames)
+                                 : 0.0;
+        });
+        PointDataset(g, "decoder_iterations_max", U64, pts,
+                     [](P p) { return std::uint64_t{p.counts.max_decoder_iterations}; });
+        PointDataset(g, "undetected_frame_errors", U64, pts,
+                     [](P p) { return p.counts.undetected_frame_errors; });
       }
+      std::vector<std::string> stop;
+      for (const PointResult& p : pts) stop.push_back(ToString(p.stop_reason));
       StringDataset(g, "stop_reason", stop);
 
       H5::Group th = g.createGroup("theory");

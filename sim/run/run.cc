@@ -225,12 +225,48 @@ int Run(const RunOptions& o) {
     }
   }
 
+  const int nthreads = ResolveThreadCount(cfg.sweep.threads);
+  // Command line to continue a stopped run.
+  auto again = [&]() {
+    std::string line = "capgap run " + o.config_path + " -o " + output + " --resume";
+    for (const std::string& set : o.overrides) line += " --set " + set;
+    if (o.threads) line += " --threads " + std::to_string(*o.threads);
+    if (o.seed) line += " --seed " + *o.seed;
+    return line;
+  };
+
   // Build every chain before the first frame, so a bad scheme fails fast.
+  // The interrupt flag reaches the constructions (PEG, the encoder's
+  // elimination), which then stop within a second.
+  BuildContext build;
+  build.stop = o.interrupt;
+  build.threads = nthreads;
   std::vector<Chain> chains;
   for (const SchemeConfig& s : cfg.schemes) {
-    auto chain = Chain::Create(s, cfg.sweep.seed);
-    if (!chain.ok()) return fail(o.config_path + ": " + chain.status().message());
-    chains.push_back(std::move(chain).value());
+    auto chain = Chain::Create(s, cfg.sweep.seed, build);
+    if (chain.ok()) {
+      chains.push_back(std::move(chain).value());
+      continue;
+    }
+    if (!chain.status().stopped()) return fail(o.config_path + ": " + chain.status().message());
+    // Stopped before anything was simulated: a resumed checkpoint stays as
+    // it is; a fresh run records its config with no point yet, so that the
+    // run continues with --resume like after any other stop.
+    if (!resumed) {
+      ckpt.complete = false;
+      ckpt.seed = cfg.sweep.seed;
+      ckpt.kernel_target = NoiseKernelTarget();
+      ckpt.config_text = cfg.ResolvedText();
+      ckpt.updated_utc = UtcNow();
+      ckpt.schemes.clear();
+      for (const SchemeConfig& sc : cfg.schemes) ckpt.schemes.push_back(SchemeRecord{sc.name, {}});
+      if (Status w = WriteCheckpoint(ckpt_path, ckpt); !w.ok()) return fail(w.message());
+    }
+    return fail("stopped by signal while building the code of scheme '" + s.name +
+                    "'; checkpoint " + ckpt_path + " saved (" +
+                    std::to_string(ckpt.FinishedPoints()) +
+                    " point(s) finished); continue with: " + again(),
+                kExitStopped);
   }
   // Recorded counts checked against the chains before anything is written:
   // a refused checkpoint is left as it is.
@@ -238,7 +274,6 @@ int Run(const RunOptions& o) {
     if (Status s = CheckRecordedCounts(ckpt, chains, ckpt_path); !s.ok()) return fail(s.message());
   }
 
-  const int nthreads = ResolveThreadCount(cfg.sweep.threads);
   const ProgressMode mode = ResolveProgress(o, ranks);
   ProgressPrinter printer(mode, err);
 
@@ -303,12 +338,8 @@ int Run(const RunOptions& o) {
   if (session.end == SessionEnd::kInterrupted) {
     std::string why = "stopped by signal";
     if (peers && !peers->failure().empty()) why = peers->failure();
-    std::string again = "capgap run " + o.config_path + " -o " + output + " --resume";
-    for (const std::string& set : o.overrides) again += " --set " + set;
-    if (o.threads) again += " --threads " + std::to_string(*o.threads);
-    if (o.seed) again += " --seed " + *o.seed;
     say(why + "; checkpoint " + ckpt_path + " saved (" + std::to_string(ckpt.FinishedPoints()) +
-        " point(s) finished); continue with: " + again);
+        " point(s) finished); continue with: " + again());
   }
   if (peers) peers->Finish(session.end, ckpt_path, err);
   if (session.end == SessionEnd::kFailed) return fail(session.status.message());

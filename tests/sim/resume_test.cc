@@ -255,15 +255,25 @@ TEST(ResumeCli, SigtermSavesTheCheckpointAndExitsWith75) {
   fs::remove_all(dir);
 }
 
-// Units of 2^18 frames (about 0.25 Gbit, more than a second) keep the workers
-// inside their first unit after the first SIGINT, so the second one (50 ms
-// later; two signals sent back to back may merge into one) arrives before the
-// run could stop by itself.
+// Workers abandon a unit within a frame of a stop, so the longest stretch
+// without a look at the flag is one decoder call: here an LDPC batch of 520
+// frames (LdpcChannelCode::BatchFrames for n = 2016 and the one-lane float
+// decoder) through sum-product at -5 dB, where no frame converges in 1000
+// iterations (tens of seconds). The second SIGINT (50 ms after the first;
+// two signals sent back to back may merge into one) arrives inside that
+// call, before the run could stop by itself.
 TEST(ResumeCli, SecondSigintExitsAtOnceWith130AndTheCheckpointStaysGood) {
   const fs::path dir = TempDir("int2");
   const std::string out = (dir / "out.h5").string();
-  Process p(RunArgs(out, {"--threads", "2", "--set", "scheme.qpsk.unit_frames=262144"}),
-            dir / "int_log.txt");
+  const std::string config = (dir / "slow.ini").string();
+  std::ofstream(config) << "[sweep]\nebno_db = -5\ntarget_errors = 1000000\n"
+                           "max_bits = 1000000000\nseed = 11\n"
+                           "[scheme.ldpc]\nmodulation = qpsk\ncode = ldpc\nconstruction = qc\n"
+                           "base_matrix = "
+                        << Config("codes/qc_r1-2_24x12.txt")
+                        << "\ndecoder = sum_product\nmax_iterations = 1000\nunit_frames = 1024\n"
+                           "[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n";
+  Process p({"run", config, "-o", out, "--quiet", "--threads", "2"}, dir / "int_log.txt");
   const auto t0 = Clock::now();
   while (!p.Exited() && !ReadCheckpoint(CheckpointPath(out)).ok() &&
          std::chrono::duration<double>(Clock::now() - t0).count() < 30) {

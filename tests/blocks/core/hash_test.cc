@@ -36,7 +36,7 @@ TEST(Fnv1a64, IsUsableAtCompileTime) {
 
 // SplitMix64 sequences (Steele, Lea, Flood, OOPSLA 2014; reference outputs of
 // Vigna's splitmix64.c for seeds 0 and 1234567, from memory), re-computed
-// independently with a Python transcription of the generator.
+// independently with a Python rewrite of the generator.
 TEST(SplitMix64Generator, SeedZeroMatchesReferenceSequence) {
   SplitMix64Generator g(0);
   EXPECT_EQ(g.Next(), 0xe220a8397b1dcdafull);

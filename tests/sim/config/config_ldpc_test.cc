@@ -2,6 +2,9 @@
 // keys, the shared `decoder` key, and exact messages for bad values.
 #include <gtest/gtest.h>
 
+#include "sim/chain/registry.h"
+#include "tests/sim/config/later_families.h"
+
 #include "sim/config/config.h"
 
 namespace capgap {
@@ -98,7 +101,7 @@ TEST(ConfigLdpc, BadValuesNameKeyValueAndRule) {
   EXPECT_EQ(ErrorOf(Scheme("construction = random\n")),
             "dir/test.ini: scheme.a.construction = 'random': valid: peg, qc, file");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\ncode = turbo\n"),
-            "dir/test.ini: scheme.a.code = 'turbo': valid: none, conv, ldpc");
+            "dir/test.ini: scheme.a.code = 'turbo': valid: none, conv, ldpc" + LaterCodeWords());
 }
 
 // A scheme may sweep its own Eb/N0 points (an LDPC waterfall needs a finer

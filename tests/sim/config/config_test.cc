@@ -4,8 +4,32 @@
 
 #include <gtest/gtest.h>
 
+#include "sim/chain/registry.h"
+#include "tests/sim/config/later_families.h"
+#include "sim/config/key_table.h"
+
 namespace capgap {
 namespace {
+
+// The keys that families registered after none, conv and ldpc add to the
+// [scheme.NAME] key list (in registry order, names not listed before).
+std::string LaterFamilyKeys() {
+  std::string s;
+  const auto families = CodeFamilies();
+  for (std::size_t i = 3; i < families.size(); ++i) {
+    if (!families[i]->keys) continue;
+    for (const KeySpec& k : families[i]->keys->keys) {
+      bool listed = false;
+      for (std::size_t j = 0; j < i; ++j) {
+        if (families[j]->keys && FindKey(std::span<const KeyTable>(families[j]->keys, 1), k.name)) {
+          listed = true;
+        }
+      }
+      if (!listed) s += ", " + std::string(k.name);
+    }
+  }
+  return s;
+}
 
 constexpr char kGood[] = R"(
 [sweep]
@@ -93,7 +117,8 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
             "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
             "constraint_length, puncture, termination, decoder, traceback, construction, length, "
             "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
-            "max_iterations, arithmetic, normalization, offset");
+            "max_iterations, arithmetic, memory_limit_mb, normalization, offset" +
+                LaterFamilyKeys());
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[channel]\nx = 1\n"),
             "test.ini: unknown section [channel]; sections: [sweep], [scheme.NAME]");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.bpsk.frame_bits=100"}),
@@ -121,7 +146,7 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
             "test.ini: scheme.qpsk.generators applies only with code = conv (this scheme has "
             "code = none)");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=turbo"}),
-            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv, ldpc");
+            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv, ldpc" + LaterCodeWords());
   auto r = ParseRunConfig(kGood, "test.ini",
                           {"scheme.qpsk.code=conv", "scheme.qpsk.generators=5,7",
                            "scheme.qpsk.constraint_length=3"});
