@@ -42,7 +42,10 @@ struct TheoryOptions {
 int RunTheory(const TheoryOptions& options);
 
 // `capgap summary FILE.h5`: the summary table of every scheme in a curves
-// file on `out`; 0, or 1 with the reason on `err`.
+// file on `out`; 0, or 1 with the reason on `err`. The file is read
+// (ReadCurvesFile) in a child process, so a damaged file that crashes the
+// HDF5 library gives status 1 ("FILE: damaged HDF5 file: the HDF5 library
+// failed reading it (signal 11)"), not a crash.
 int RunSummary(const std::string& path, std::ostream& out, std::ostream& err);
 
 }  // namespace capgap

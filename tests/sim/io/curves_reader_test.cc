@@ -344,3 +344,30 @@ TEST_F(CurvesReader, NonFilesAreRefusedWithoutReading) {
 
 }  // namespace
 }  // namespace capgap
+
+namespace capgap {
+namespace {
+
+// Found by tests/fuzz/fuzz_curves_bytes.cc: a real curves file with bytes
+// changed so that a variable-length string points into a corrupt global
+// heap. The HDF5 library (1.10.8) crashes decoding it (H5HG_read); `capgap
+// summary` reads in a child process, so the command ends with status 1 and
+// one line naming the file (under AddressSanitizer the child exits instead
+// of dying by the signal; the message then says the reader failed).
+TEST(CurvesReaderRegression, FileThatCrashesTheHdf5LibraryGivesStatus1) {
+  const std::string path =
+      std::string(CAPGAP_SOURCE_DIR) + "/tests/fuzz/regressions/curves_heap_crash.h5";
+  ASSERT_TRUE(std::filesystem::is_regular_file(path)) << path;
+  std::ostringstream out, err;
+  EXPECT_EQ(RunSummary(path, out, err), kExitFailed);
+  EXPECT_EQ(out.str(), "");
+  const std::string e = err.str();
+  EXPECT_EQ(e.rfind("capgap: " + path + ": ", 0), 0u) << e;
+  EXPECT_EQ(e.find('\n'), e.size() - 1) << e;
+  const bool named = e.find("damaged HDF5 file") != std::string::npos ||
+                     e.find("reader process failed") != std::string::npos;
+  EXPECT_TRUE(named) << e;
+}
+
+}  // namespace
+}  // namespace capgap
