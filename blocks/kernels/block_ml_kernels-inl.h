@@ -94,7 +94,7 @@ inline bool BlockMlDecodeKernel(const BlockMlView& v, const float* llrs, std::si
   for (std::size_t f = 0; f < frames; ++f) {
     const float* llr = llrs + f * n;
     for (std::size_t i = 0; i < n; ++i) {
-      const auto low = hn::BitCast(d, hn::Load(du, v.low_masks + i * lanes));
+      const auto low = hn::BitCast(d, hn::LoadU(du, v.low_masks + i * lanes));
       hn::Store(hn::Xor(hn::Set(d, llr[i]), low), d, s + i * lanes);
     }
     auto best = hn::Set(d, -std::numeric_limits<float>::infinity());
