@@ -18,6 +18,7 @@
 #include <utility>
 #include <vector>
 
+#include "blocks/channel/channel_spec.h"
 #include "blocks/core/status.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/modulation.h"
@@ -107,6 +108,10 @@ struct SchemeConfig {
   // Typed options of code families that keep them outside the structs above
   // (set by the family's parse, read by its build; sim/families/).
   std::any code_options;
+  // The channel and the interleaver between encoder and mapper (defaults:
+  // AWGN, no interleaver).
+  ChannelSpec channel;
+  InterleaverSpec interleaver;
   // Frames per work unit after resolving "automatic" (a function of the
   // scheme only, never of the thread count or the CPU): about 64 kbit, for
   // LDPC a multiple of 64 codewords.
