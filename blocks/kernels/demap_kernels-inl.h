@@ -110,6 +110,26 @@ template <int B, bool kExact>
 HWY_INLINE void LlrsFromMetrics(DF df, const VF* e, VF scale, VF* o) {
   constexpr int N = 1 << B;
   const VF inf = hn::Set(df, reference::demap_detail::kInf);
+  if constexpr (kExact && B == 2) {
+    // Two labels per bit value (4-PAM, the axes of 16-QAM). The oracle's
+    // sum over a pair is (0 + exp((m - e_a) s)) + exp((m - e_b) s) with
+    // m = min(e_a, e_b): one term is exp(+-0) = 1 exactly (ExpNonPositive
+    // returns 1 for a zero argument) and the other is exp((m - max) s), and
+    // float addition commutes, so 1 + exp((min - max) s) is the same float
+    // with one exponential instead of two.
+    const VF one = hn::Set(df, 1.0f);
+    for (int k = 0; k < B; ++k) {
+      // Labels with bit k = 0 and = 1 (bit k counted from the MSB).
+      const int a0 = 0, b0 = k == 0 ? 1 : 2;
+      const int a1 = k == 0 ? 2 : 1, b1 = 3;
+      const VF m0 = MinOf(MinOf(inf, e[a0]), e[b0]);
+      const VF m1 = MinOf(MinOf(inf, e[a1]), e[b1]);
+      const VF s0 = hn::Add(one, ExpNonPositive(df, hn::Mul(hn::Sub(m0, hn::Max(e[a0], e[b0])), scale)));
+      const VF s1 = hn::Add(one, ExpNonPositive(df, hn::Mul(hn::Sub(m1, hn::Max(e[a1], e[b1])), scale)));
+      o[k] = hn::Add(hn::Mul(hn::Sub(m1, m0), scale), LogPositive(df, hn::Div(s0, s1)));
+    }
+    return;
+  }
   for (int k = 0; k < B; ++k) {
     VF m0 = inf, m1 = inf;
     for (int l = 0; l < N; ++l) {

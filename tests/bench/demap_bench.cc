@@ -20,7 +20,7 @@
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
 #include "blocks/mapping/modulation.h"
-#include "sim/build_info.h"
+#include "sim/io/build_info.h"
 
 namespace capgap {
 namespace {
