@@ -487,6 +487,23 @@ double FadingSer(const Modulation& modulation, const ChannelSpec& channel, doubl
       [&modulation](double db) { return UncodedSer(modulation, db); });
 }
 
+double FadingEbnoDbAtBer(const Modulation& modulation, const ChannelSpec& channel, double ber) {
+  if (SupportedBitsPerSymbol(modulation) == 0 || !(ber > 0.0) || !(ber < 0.5)) return kNaN;
+  auto above = [&](double ebno_db) { return FadingBer(modulation, channel, ebno_db) > ber; };
+  double lo = -10.0;
+  while (!above(lo)) {
+    lo -= 10.0;
+    if (lo < -100.0) return kNaN;
+  }
+  double hi = 20.0;
+  while (above(hi)) {
+    hi += 10.0;
+    if (hi > 300.0) return kNaN;
+  }
+  const Bracket b = Bisect(lo, hi, 1e-6, above);
+  return 0.5 * (b.lo + b.hi);
+}
+
 double BpskRayleighMrcBerClosedForm(double ebno_linear, int branches) {
   if (!(ebno_linear >= 0.0) || branches < 1) return kNaN;
   const double mu = std::sqrt(ebno_linear / (1.0 + ebno_linear));

@@ -152,6 +152,10 @@ double CraigAverage(const CombinedGain& gain, double a_times_snr, double upper);
 double FadingBer(const Modulation& modulation, const ChannelSpec& channel, double ebno_db);
 double FadingSer(const Modulation& modulation, const ChannelSpec& channel, double ebno_db);
 
+// Mean Eb/N0 (dB) at which FadingBer equals `ber` (0 < ber < 0.5), by
+// bracketing and bisection to 1e-6 dB; NaN if not reachable.
+double FadingEbnoDbAtBer(const Modulation& modulation, const ChannelSpec& channel, double ber);
+
 // BPSK over Rayleigh, L-branch MRC, closed form (Proakis & Salehi, Digital
 // Communications, 5th ed., ch. 13): with mu = sqrt(g / (1 + g)), g the mean
 // Eb/N0 per branch (linear), Pb = ((1 - mu)/2)^L sum_{k=0}^{L-1}
