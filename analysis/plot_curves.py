@@ -351,7 +351,8 @@ def _draw_outage(ax, s, colour):
 
 
 def _draw_gap(ax, s, colour, y):
-    """Arrow from the Shannon limit to the Eb/N0 reached at target_ber.
+    """Arrow from the Shannon limit (fading schemes: the ergodic limit) to
+    the Eb/N0 reached at target_ber.
 
     Drawn at height y (the target itself for the first scheme, staggered
     below it for the others); a thin drop line joins the arrow's right end to
@@ -360,19 +361,24 @@ def _draw_gap(ax, s, colour, y):
     if not (math.isfinite(s.at_target) and math.isfinite(s.shannon)):
         return
     gap = s.gap_shannon if math.isfinite(s.gap_shannon) else s.at_target - s.shannon
+    limit, what = s.shannon, "gap"
+    if s.fading() and math.isfinite(s.ergodic):
+        # A fading scheme is measured against its channel's ergodic limit.
+        limit, what = s.ergodic, "gap to ergodic"
+        gap = s.gap_ergodic if math.isfinite(s.gap_ergodic) else s.at_target - s.ergodic
     if y < s.target_ber:
         ax.plot([s.at_target, s.at_target], [y, s.target_ber], color=colour, linewidth=0.8,
                 linestyle=(0, (1, 1.5)), zorder=5)
     ax.plot([s.at_target], [s.target_ber], marker="o", markersize=4.5, color=colour,
             markerfacecolor="white", markeredgewidth=1.2, zorder=6)
-    ax.annotate("", xy=(s.at_target, y), xytext=(s.shannon, y),
+    ax.annotate("", xy=(s.at_target, y), xytext=(limit, y),
                 arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                 shrinkA=0, shrinkB=0, mutation_scale=9),
                 zorder=5)
     # Label centred just above its own arrow: arrows are staggered by more
     # than a text height, so labels of schemes with similar gaps never collide.
-    mid = 0.5 * (s.shannon + s.at_target)
-    ax.annotate(f"gap {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
+    mid = 0.5 * (limit + s.at_target)
+    ax.annotate(f"{what} {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
                 textcoords="offset points", ha="center", va="bottom",
                 fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
                 bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
@@ -409,7 +415,7 @@ def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
     if any_ergodic:
         h.append(Line2D([], [], color=GREY, linestyle=ERGODIC_STYLE, linewidth=1.4,
                         label="ergodic capacity limit at \u03c1 (fading, receiver knows h)"))
-    if rate == "fer" and any_outage:
+    if any_outage:
         h.append(Line2D([], [], color=GREY, linestyle=OUTAGE_STYLE, linewidth=1.0,
                         label="outage probability, Gaussian input (block fading)"))
         h.append(Line2D([], [], color=GREY, linestyle=(0, (4, 2)), linewidth=1.0,

@@ -100,6 +100,22 @@ TEST(FadingBer, QpskBitErrorRateEqualsBpsk) {
   }
 }
 
+// Uncoded decisions are symbol by symbol with perfect CSI, so only the
+// marginal law of h matters: fast, block and Doppler fading share one
+// average error rate (the statement fading_theory.h documents).
+TEST(FadingBer, TimeVariationDoesNotChangeTheUncodedAverage) {
+  ChannelSpec fast = Rician(4.0, 2);
+  ChannelSpec block = fast, doppler = fast;
+  block.time = FadingTime::kBlock;
+  block.coherence_symbols = 100;
+  doppler.time = FadingTime::kDoppler;
+  doppler.doppler = 0.05;
+  for (double db : {5.0, 15.0}) {
+    EXPECT_EQ(FadingBer(k16Qam, block, db), FadingBer(k16Qam, fast, db));
+    EXPECT_EQ(FadingBer(k16Qam, doppler, db), FadingBer(k16Qam, fast, db));
+  }
+}
+
 // ---- Identities between laws ----
 
 TEST(FadingBer, NakagamiWithMEqualToOneIsRayleigh) {

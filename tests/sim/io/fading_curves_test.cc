@@ -19,6 +19,7 @@
 #include "analysis/fading_theory.h"
 #include "analysis/uncoded_theory.h"
 #include "sim/chain/scheme_result.h"
+#include "sim/engine/stats.h"
 #include "sim/io/curves_file.h"
 #include "sim/io/summary_table.h"
 
@@ -57,8 +58,8 @@ std::vector<PointResult> Points() {
     p.counts.bit_errors = bit_errors[i];
     p.counts.frames = 1000;
     p.counts.frame_errors = frame_errors[i];
-    p.ber_ci = {p.ber() * 0.9, p.ber() * 1.1};
-    p.fer_ci = {p.fer() * 0.9, p.fer() * 1.1};
+    p.ber_ci = ClopperPearson(p.counts.bit_errors, p.counts.bits);
+    p.fer_ci = ClopperPearson(p.counts.frame_errors, p.counts.frames);
     points.push_back(p);
   }
   return points;
@@ -117,7 +118,14 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
   fs::create_directories(dir);
   const std::string path = (dir / "run.h5").string();
   RunMetadata meta;
-  meta.config_text = "[sweep]\n";
+  meta.command_line = "sim_io_fading_curves_test (fabricated points)";
+  meta.config_text =
+      "[sweep]\nebno_db = 0:5:20\ntarget_ber = 1e-2\nseed = 5\n[scheme.fad]\nmodulation = qpsk\n"
+      "[scheme.awgn]\nmodulation = qpsk\n";
+  meta.threads = 1;
+  meta.seed = 5;
+  meta.kernel_target = "none (points fabricated)";
+  meta.demap_kernel_target = "none (points fabricated)";
   meta.created_utc = UtcNow();
   ASSERT_TRUE(WriteCurvesFile(path, meta, {rf, ra}).ok());
 
