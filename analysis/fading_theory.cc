@@ -130,7 +130,6 @@ class MgfTable {
   std::unique_ptr<boost::math::interpolators::cardinal_cubic_b_spline<double>> spline_;
 };
 
-
 CombinedGain CombinedGain::FromSpec(const ChannelSpec& spec) {
   CombinedGain g;
   g.law_ = spec.law;
@@ -163,19 +162,24 @@ bool CombinedGain::closed_form_mgf() const {
 double CombinedGain::BranchCdf(double x) const {
   if (x <= 0.0) return 0.0;
   switch (law_) {
-    case FadingLaw::kAwgn: return x >= 1.0 ? 1.0 : 0.0;
-    case FadingLaw::kRician: return boost::math::cdf(RicianChi2(k_, 1), 2.0 * (1.0 + k_) * x);
-    default: return boost::math::cdf(BranchGamma(m_), x);
+    case FadingLaw::kAwgn:
+      return x >= 1.0 ? 1.0 : 0.0;
+    case FadingLaw::kRician:
+      return boost::math::cdf(RicianChi2(k_, 1), 2.0 * (1.0 + k_) * x);
+    default:
+      return boost::math::cdf(BranchGamma(m_), x);
   }
 }
 
 double CombinedGain::BranchSurvival(double x) const {
   if (x <= 0.0) return 1.0;
   switch (law_) {
-    case FadingLaw::kAwgn: return x >= 1.0 ? 0.0 : 1.0;
+    case FadingLaw::kAwgn:
+      return x >= 1.0 ? 0.0 : 1.0;
     case FadingLaw::kRician:
       return boost::math::cdf(boost::math::complement(RicianChi2(k_, 1), 2.0 * (1.0 + k_) * x));
-    default: return boost::math::cdf(boost::math::complement(BranchGamma(m_), x));
+    default:
+      return boost::math::cdf(boost::math::complement(BranchGamma(m_), x));
   }
 }
 
@@ -239,10 +243,8 @@ double CombinedGain::MgfIntegral(double s) const {
   if (std::isinf(s)) return 0.0;
   // By parts, M(s) = int_0^inf e^{-u} F(u/s)^L du, F the CDF of X.
   auto integrand = [this, s](double u) { return std::exp(-u) * Cdf(u / s); };
-  return gauss_kronrod<double, 61>::integrate(integrand, 0.0, kInf, kCraigMaxDepth,
-                                              kMgfTolerance);
+  return gauss_kronrod<double, 61>::integrate(integrand, 0.0, kInf, kCraigMaxDepth, kMgfTolerance);
 }
-
 
 double CombinedGain::Cdf(double x) const {
   if (std::isnan(x)) return kNaN;
@@ -655,9 +657,8 @@ double ErgodicTableMinEbnoDb(std::span<const cf32> points, const ChannelSpec& ch
   // C_CM <= log2(1 + gamma) pointwise: the Gaussian ergodic limit is below.
   const double lo = ErgodicShannonMinEbnoDb(channel, rho) - 0.01;
   if (std::isnan(lo)) return kNaN;
-  return MinEbnoDb(rho, lo, [&](double esno_db) {
-    return ErgodicTableCapacity(table, channel, esno_db);
-  });
+  return MinEbnoDb(rho, lo,
+                   [&](double esno_db) { return ErgodicTableCapacity(table, channel, esno_db); });
 }
 
 }  // namespace
@@ -667,8 +668,7 @@ double ErgodicConstrainedMinEbnoDb(std::span<const cf32> points, const ChannelSp
   return ErgodicTableMinEbnoDb(points, channel, rho, false);
 }
 
-double ErgodicBicmMinEbnoDb(std::span<const cf32> points, const ChannelSpec& channel,
-                            double rho) {
+double ErgodicBicmMinEbnoDb(std::span<const cf32> points, const ChannelSpec& channel, double rho) {
   return ErgodicTableMinEbnoDb(points, channel, rho, true);
 }
 

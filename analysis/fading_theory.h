@@ -199,8 +199,8 @@ double OutageProbabilityConstrained(std::span<const cf32> points, const ChannelS
                                     double rho, double ebno_db);
 // Mean Eb/N0 (dB) at which the outage probability with SNR threshold
 // threshold_esno_db equals p (0 < p < 1): the quantile of X, exact.
-double OutageEbnoDbAtProbability(const ChannelSpec& channel, double threshold_esno_db,
-                                 double rho, double p);
+double OutageEbnoDbAtProbability(const ChannelSpec& channel, double threshold_esno_db, double rho,
+                                 double p);
 // Es/N0 threshold of Gaussian input: 10 log10(2^rho - 1).
 double GaussianOutageThresholdEsnoDb(double rho);
 

@@ -153,8 +153,8 @@ TEST(FadingBer, RicianTendsToAwgnAsKGrows) {
   EXPECT_EQ(FadingBer(k16Qam, awgn, 7.0), UncodedBer(k16Qam, 7.0));
   EXPECT_EQ(FadingSer(k8Psk, awgn, 7.0), UncodedSer(k8Psk, 7.0));
   // AWGN with two MRC branches: array gain of 3.01 dB.
-  EXPECT_NEAR(FadingBer(kBpsk, Spec(FadingLaw::kAwgn, 2), 5.0),
-              UncodedBer(kBpsk, 5.0 + Db(2.0)), 1e-15);
+  EXPECT_NEAR(FadingBer(kBpsk, Spec(FadingLaw::kAwgn, 2), 5.0), UncodedBer(kBpsk, 5.0 + Db(2.0)),
+              1e-15);
 }
 
 // Rician with K = 0 (rician_k_db = -inf) is Rayleigh.
@@ -188,7 +188,8 @@ TEST(FadingBer, MrcHighSnrSlopeIsLDecadesPer10dB) {
 // L sum_k (-1)^k C(L-1, k) / (1 + k + s).
 TEST(CombinedGain, SelectionRayleighMgfMatchesAlternatingSum) {
   for (int l = 1; l <= 5; ++l) {
-    const CombinedGain g = CombinedGain::FromSpec(Spec(FadingLaw::kRayleigh, l, Combining::kSelection));
+    const CombinedGain g =
+        CombinedGain::FromSpec(Spec(FadingLaw::kRayleigh, l, Combining::kSelection));
     for (double s : {0.01, 0.3, 1.0, 4.0, 20.0}) {
       double sum = 0.0;
       for (int k = 0; k < l; ++k) {
@@ -219,9 +220,9 @@ TEST(FadingBer, DensityAverageAgreesWithMgfRoute) {
   }
   // SC of Nakagami and Rician (tabulated numerical MGF in FadingBer) against
   // the density average of the AWGN rate.
-  for (const ChannelSpec& sc : {Nakagami(1.5, 2, Combining::kSelection),
-                                Nakagami(0.6, 3, Combining::kSelection),
-                                Rician(6.0, 2, Combining::kSelection)}) {
+  for (const ChannelSpec& sc :
+       {Nakagami(1.5, 2, Combining::kSelection), Nakagami(0.6, 3, Combining::kSelection),
+        Rician(6.0, 2, Combining::kSelection)}) {
     const CombinedGain g = CombinedGain::FromSpec(sc);
     for (double db : {0.0, 10.0, 20.0, 35.0}) {
       for (const Modulation& mod : {kBpsk, k16Qam}) {
@@ -254,8 +255,8 @@ TEST(FadingSer, DensityAverageAgreesWithMgfRoute) {
 // The tabulated SC MGF against its defining integral between grid points
 // (stated accuracy: 3e-7 relative; measured up to 1.9e-7).
 TEST(CombinedGain, TabulatedSelectionMgfWithin3e7) {
-  for (const ChannelSpec& sc : {Nakagami(1.5, 2, Combining::kSelection),
-                                Rician(6.0, 3, Combining::kSelection)}) {
+  for (const ChannelSpec& sc :
+       {Nakagami(1.5, 2, Combining::kSelection), Rician(6.0, 3, Combining::kSelection)}) {
     const CombinedGain g = CombinedGain::FromSpec(sc);
     EXPECT_FALSE(g.closed_form_mgf());
     for (double s = 1.234e-9; s < 1e16; s *= 7.77) {
@@ -292,14 +293,16 @@ TEST(FadingBer, MatchesMonteCarloAverageOfAwgnRate) {
     const double k = std::pow(10.0, c.spec.rician_k_db / 10.0);
     auto branch_gain = [&]() {
       switch (c.spec.law) {
-        case FadingLaw::kNakagami: return gamma(rng);
+        case FadingLaw::kNakagami:
+          return gamma(rng);
         case FadingLaw::kRician: {
           const std::complex<double> h =
               std::sqrt(k / (k + 1.0)) +
               std::sqrt(1.0 / (k + 1.0)) * std::complex<double>(normal(rng), normal(rng));
           return std::norm(h);
         }
-        default: return std::norm(std::complex<double>(normal(rng), normal(rng)));
+        default:
+          return std::norm(std::complex<double>(normal(rng), normal(rng)));
       }
     };
     double sum = 0.0, sum_sq = 0.0;
@@ -427,9 +430,9 @@ TEST(Outage, GaussianRayleighClosedForms) {
     for (double ebno_db = -5.0; ebno_db <= 40.0; ebno_db += 5.0) {
       const double snr = rate * Lin(ebno_db);
       const double t = (std::pow(2.0, rate) - 1.0) / snr;
-      EXPECT_NEAR(OutageProbabilityGaussian(Spec(FadingLaw::kRayleigh), rate, ebno_db) /
-                      -std::expm1(-t),
-                  1.0, 1e-12);
+      EXPECT_NEAR(
+          OutageProbabilityGaussian(Spec(FadingLaw::kRayleigh), rate, ebno_db) / -std::expm1(-t),
+          1.0, 1e-12);
       EXPECT_NEAR(OutageProbabilityGaussian(Spec(FadingLaw::kRayleigh, 2), rate, ebno_db) /
                       (std::exp(-t) * (std::expm1(t) - t)),
                   1.0, 1e-9);

@@ -4,10 +4,9 @@
 // an AWGN scheme of the same file keeps exactly its former datasets. The
 // points are fabricated (their counts do not matter here): the test covers
 // analysis and output, not the channel simulation.
+#include <H5Cpp.h>
 #include <gtest/gtest.h>
 #include <unistd.h>
-
-#include <H5Cpp.h>
 
 #include <cmath>
 #include <cstdlib>
@@ -79,7 +78,8 @@ std::set<std::string> Children(const H5::Group& g) {
 
 std::set<std::string> AttrNames(const H5::H5Object& obj) {
   std::set<std::string> names;
-  for (int i = 0; i < obj.getNumAttrs(); ++i) names.insert(obj.openAttribute(static_cast<unsigned>(i)).getName());
+  for (int i = 0; i < obj.getNumAttrs(); ++i)
+    names.insert(obj.openAttribute(static_cast<unsigned>(i)).getName());
   return names;
 }
 
@@ -114,7 +114,8 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
   const SchemeResult rf = Analyse(fading);
   const SchemeResult ra = Analyse(Qpsk("awgn"));
 
-  const fs::path dir = fs::temp_directory_path() / ("capgap_fading_curves_" + std::to_string(::getpid()));
+  const fs::path dir =
+      fs::temp_directory_path() / ("capgap_fading_curves_" + std::to_string(::getpid()));
   fs::create_directories(dir);
   const std::string path = (dir / "run.h5").string();
   RunMetadata meta;
@@ -133,9 +134,9 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
     H5::H5File file(path, H5F_ACC_RDONLY);
     // The channel group: every channel key, perfect channel state, per-branch Eb/N0.
     const H5::Group ch = file.openGroup("/fad/channel");
-    const std::set<std::string> keys = {"channel",   "rician_k_db", "nakagami_m",    "fading",
-                                        "coherence_symbols", "doppler", "branches", "combining",
-                                        "channel_state", "ebno_basis"};
+    const std::set<std::string> keys = {
+        "channel", "rician_k_db", "nakagami_m", "fading",        "coherence_symbols",
+        "doppler", "branches",    "combining",  "channel_state", "ebno_basis"};
     EXPECT_EQ(AttrNames(ch), keys);
     EXPECT_EQ(ReadStr(ch, "channel"), "rayleigh");
     EXPECT_EQ(ReadStr(ch, "fading"), "block");
@@ -145,8 +146,8 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
 
     // Theory on the scheme's own channel, the AWGN curve beside it.
     const H5::Group th = file.openGroup("/fad/theory");
-    EXPECT_EQ(Children(th), (std::set<std::string>{"ebno_db", "ber_uncoded", "ser_uncoded",
-                                                   "ber_uncoded_awgn"}));
+    EXPECT_EQ(Children(th),
+              (std::set<std::string>{"ebno_db", "ber_uncoded", "ser_uncoded", "ber_uncoded_awgn"}));
     const std::vector<double> x = ReadSeries(th, "ebno_db");
     const std::vector<double> ber = ReadSeries(th, "ber_uncoded");
     const std::vector<double> awgn = ReadSeries(th, "ber_uncoded_awgn");
@@ -158,8 +159,8 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
 
     // Limits: ergodic attributes; block fading adds the outage datasets.
     const H5::Group lim = file.openGroup("/fad/limits");
-    for (const char* a : {"ergodic_shannon_ebno_db", "ergodic_constrained_ebno_db",
-                          "ergodic_bicm_ebno_db"}) {
+    for (const char* a :
+         {"ergodic_shannon_ebno_db", "ergodic_constrained_ebno_db", "ergodic_bicm_ebno_db"}) {
       EXPECT_TRUE(lim.attrExists(a)) << a;
     }
     EXPECT_EQ(ReadNum(lim, "ergodic_shannon_ebno_db"),
@@ -187,8 +188,8 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
       EXPECT_EQ(aber[k], analysis::UncodedBer(Qpsk("q").modulation, ax[k]));
     }
     const H5::Group alim = file.openGroup("/awgn/limits");
-    EXPECT_EQ(Children(alim), (std::set<std::string>{"constrained_curve_rho",
-                                                     "constrained_curve_ebno_db"}));
+    EXPECT_EQ(Children(alim),
+              (std::set<std::string>{"constrained_curve_rho", "constrained_curve_ebno_db"}));
     EXPECT_FALSE(alim.attrExists("ergodic_shannon_ebno_db"));
     EXPECT_FALSE(file.openGroup("/awgn/summary").attrExists("gap_to_ergodic_db"));
     EXPECT_EQ(ReadStr(file.openGroup("/awgn/channel"), "channel"), "awgn");
