@@ -374,6 +374,11 @@ TEST(ErgodicCapacity, LowRateLimitTendsToMinus159dB) {
               2e-3);
   EXPECT_NEAR(ErgodicShannonMinEbnoDb(Spec(FadingLaw::kRayleigh, 2, Combining::kSelection), 1e-4),
               shannon - Db(1.5), 2e-3);
+  // Without fading the ergodic limit is the AWGN one, (2^rho - 1)/rho
+  // (Shannon, Proc. IRE, 1949), lowered by the array gain with MRC.
+  EXPECT_NEAR(ErgodicShannonMinEbnoDb(ChannelSpec{}, 2.0), ShannonMinEbnoDb(2.0), 1e-5);
+  EXPECT_NEAR(ErgodicShannonMinEbnoDb(Spec(FadingLaw::kAwgn, 2), 2.0),
+              ShannonMinEbnoDb(2.0) - Db(2.0), 1e-5);
   // At rate 1 fading costs more than AWGN's 0 dB; two branches recover some.
   const double one = ErgodicShannonMinEbnoDb(Spec(FadingLaw::kRayleigh), 1.0);
   EXPECT_GT(one, 0.0);
