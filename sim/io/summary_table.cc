@@ -116,7 +116,9 @@ std::string FormatSummaryTable(const StoredRun& run) {
     out += "ergodic: Eb/N0 (average per branch) where the ergodic Gaussian-input capacity with "
            "perfect receiver\nchannel state equals rho; gap = simulated - ergodic; erg-CM, "
            "erg-BICM: the same for the constellation;\noutage: block fading, simulated minus "
-           "Gaussian-input outage Eb/N0 at the target FER ('-' without one).\n";
+           "Gaussian-input outage Eb/N0 at the target FER ('-' without one);\nin the first "
+           "table, theory and gain of fading schemes use the uncoded theory on their own "
+           "channel.\n";
   }
   return out;
 }
