@@ -121,6 +121,19 @@ class Scheme:
         if "theory" in g and "fer_bound" in g["theory"]:
             self.bound_fer = np.asarray(g["theory/fer_bound"][()], dtype=np.float64)
         self.coded = self.code != "none"
+        # Fading (optional /<scheme>/channel group; absent or "awgn" with one
+        # branch: the AWGN channel).
+        ch = g["channel"] if "channel" in g and isinstance(g["channel"], h5py.Group) else None
+        self.channel = _str(ch.attrs["channel"]) if ch is not None and "channel" in ch.attrs \
+            else "awgn"
+        self.fading_time = _str(ch.attrs.get("fading", "fast")) if ch is not None else "fast"
+        self.branches = int(ch.attrs.get("branches", 1)) if ch is not None else 1
+        self.combining = _str(ch.attrs.get("combining", "mrc")) if ch is not None else "mrc"
+        self.k_db = float(ch.attrs.get("rician_k_db", 0.0)) if ch is not None else 0.0
+        self.m = float(ch.attrs.get("nakagami_m", 1.0)) if ch is not None else 1.0
+        self.theory_ber_awgn = None
+        if "theory" in g and "ber_uncoded_awgn" in g["theory"]:
+            self.theory_ber_awgn = np.asarray(g["theory/ber_uncoded_awgn"][()], dtype=np.float64)
         lim = g["limits"] if "limits" in g else None
         if lim is None:
             raise FileFormatError(f"{where}: missing group 'limits'")
@@ -137,6 +150,22 @@ class Scheme:
         self.shaping = _str(g.attrs["shaping"]) if "shaping" in g.attrs else "none"
         self.rolloff = float(g.attrs["rolloff"]) if "rolloff" in g.attrs else None
         self.timing_offset = float(g.attrs.get("timing_offset", 0.0))
+        nan = float("nan")
+        self.ergodic = float(lim.attrs.get("ergodic_shannon_ebno_db", nan))
+        self.ergodic_cm = float(lim.attrs.get("ergodic_constrained_ebno_db", nan))
+        self.ergodic_rho = self.ergodic_ebno = None
+        if "ergodic_curve_rho" in lim and "ergodic_curve_ebno_db" in lim:
+            self.ergodic_rho = np.asarray(lim["ergodic_curve_rho"][()], dtype=np.float64)
+            self.ergodic_ebno = np.asarray(lim["ergodic_curve_ebno_db"][()], dtype=np.float64)
+        self.outage_ebno = self.outage_gaussian = self.outage_constrained = None
+        if all(n in lim for n in ("outage_ebno_db", "outage_probability_gaussian",
+                                  "outage_probability_constrained")):
+            self.outage_ebno = np.asarray(lim["outage_ebno_db"][()], dtype=np.float64)
+            self.outage_gaussian = np.asarray(lim["outage_probability_gaussian"][()],
+                                              dtype=np.float64)
+            self.outage_constrained = np.asarray(lim["outage_probability_constrained"][()],
+                                                 dtype=np.float64)
+        self.gap_ergodic = float(summ.attrs.get("gap_to_ergodic_db", nan))
         self.curve_rho = self.curve_ebno = None
         if "constrained_curve_rho" in lim and "constrained_curve_ebno_db" in lim:
             self.curve_rho = np.asarray(lim["constrained_curve_rho"][()], dtype=np.float64)
@@ -170,7 +199,21 @@ class Scheme:
                 else f"{self.code_rate:.3g}"
             code = f"{self.code}, R = {rate}"
         demapper = f", {self.demapper} demapper" if self.demapper else ""
-        return f"{self.name}  ({mod}, {code}{demapper}, \u03b7 = {self.eta:.3g})"
+        return f"{self.name}  ({mod}, {code}{demapper}, \u03b7 = {self.eta:.3g}{self.channel_label()})"
+
+    def fading(self):
+        return self.channel != "awgn" or self.branches > 1
+
+    def channel_label(self):
+        """', Rayleigh, 2-branch MRC, block' for fading schemes, '' for AWGN."""
+        if not self.fading():
+            return ""
+        law = {"rician": f"Rician K = {self.k_db:g} dB", "nakagami": f"Nakagami m = {self.m:g}"}
+        text = ", " + law.get(self.channel, self.channel.capitalize())
+        if self.branches > 1:
+            comb = "MRC" if self.combining == "mrc" else "SC"
+            text += f", {self.branches}-branch {comb}"
+        return text + f", {self.fading_time}"
 
 
 def read_file(path, wanted):
@@ -238,7 +281,8 @@ def _x_limits(schemes):
     xs = []
     for s in schemes:
         xs += list(s.ebno_db)
-        xs += [v for v in (s.shannon, s.constrained, s.at_target, s.threshold) if math.isfinite(v)]
+        xs += [v for v in (s.shannon, s.constrained, s.at_target, s.threshold, s.ergodic)
+               if math.isfinite(v)]
     lo, hi = min(xs), max(xs)
     return math.floor(lo - 1.0), math.ceil(hi + 1.0)
 
@@ -289,10 +333,26 @@ def _draw_limits(ax, s, colour):
     if math.isfinite(s.threshold):
         ax.axvline(s.threshold, color=colour, linestyle=THRESHOLD_STYLE, linewidth=1.4, alpha=0.9,
                    zorder=2)
+    if math.isfinite(s.ergodic):
+        ax.axvline(s.ergodic, color=colour, linestyle=ERGODIC_STYLE, linewidth=1.4, alpha=0.9,
+                   zorder=2)
+
+
+def _draw_outage(ax, s, colour):
+    """Block fading: outage probability against Eb/N0 (FER panel): Gaussian
+    input solid and thin, the constellation-constrained one dashed."""
+    if s.outage_ebno is None:
+        return
+    for y, style in ((s.outage_gaussian, OUTAGE_STYLE), (s.outage_constrained, (0, (4, 2)))):
+        ok = (y > 0) & (y < 1)
+        if np.any(ok):
+            ax.plot(s.outage_ebno[ok], y[ok], color=colour, linestyle=style, linewidth=1.0,
+                    alpha=0.8, zorder=2)
 
 
 def _draw_gap(ax, s, colour, y):
-    """Arrow from the Shannon limit to the Eb/N0 reached at target_ber.
+    """Arrow from the Shannon limit (fading schemes: the ergodic limit) to
+    the Eb/N0 reached at target_ber.
 
     Drawn at height y (the target itself for the first scheme, staggered
     below it for the others); a thin drop line joins the arrow's right end to
@@ -301,19 +361,24 @@ def _draw_gap(ax, s, colour, y):
     if not (math.isfinite(s.at_target) and math.isfinite(s.shannon)):
         return
     gap = s.gap_shannon if math.isfinite(s.gap_shannon) else s.at_target - s.shannon
+    limit, what = s.shannon, "gap"
+    if s.fading() and math.isfinite(s.ergodic):
+        # A fading scheme is measured against its channel's ergodic limit.
+        limit, what = s.ergodic, "gap to ergodic"
+        gap = s.gap_ergodic if math.isfinite(s.gap_ergodic) else s.at_target - s.ergodic
     if y < s.target_ber:
         ax.plot([s.at_target, s.at_target], [y, s.target_ber], color=colour, linewidth=0.8,
                 linestyle=(0, (1, 1.5)), zorder=5)
     ax.plot([s.at_target], [s.target_ber], marker="o", markersize=4.5, color=colour,
             markerfacecolor="white", markeredgewidth=1.2, zorder=6)
-    ax.annotate("", xy=(s.at_target, y), xytext=(s.shannon, y),
+    ax.annotate("", xy=(s.at_target, y), xytext=(limit, y),
                 arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                 shrinkA=0, shrinkB=0, mutation_scale=9),
                 zorder=5)
     # Label centred just above its own arrow: arrows are staggered by more
     # than a text height, so labels of schemes with similar gaps never collide.
-    mid = 0.5 * (s.shannon + s.at_target)
-    ax.annotate(f"gap {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
+    mid = 0.5 * (limit + s.at_target)
+    ax.annotate(f"{what} {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
                 textcoords="offset points", ha="center", va="bottom",
                 fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
                 bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
@@ -321,10 +386,13 @@ def _draw_gap(ax, s, colour, y):
 
 
 THRESHOLD_STYLE = (0, (10, 2, 2, 2, 2, 2))  # long dash, two dots
+ERGODIC_STYLE = (0, (6, 2, 1, 2))             # dash, dot
+OUTAGE_STYLE = "-"
+AWGN_REFERENCE_STYLE = (0, (1, 1.5))
 
 
 def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
-                 any_threshold=False):
+                 any_threshold=False, any_ergodic=False, any_outage=False, any_awgn_ref=False):
     h = [Line2D([], [], color=GREY, marker="o", markersize=5, linewidth=1.4,
                 label="simulated, 95 % Clopper\u2013Pearson interval")]
     if any_zero:
@@ -341,6 +409,17 @@ def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
     if any_threshold:
         h.append(Line2D([], [], color=GREY, linestyle=THRESHOLD_STYLE, linewidth=1.4,
                         label="LDPC BP threshold (density evolution)"))
+    if with_theory and any_awgn_ref:
+        h.append(Line2D([], [], color=GREY, linestyle=AWGN_REFERENCE_STYLE, linewidth=1.0,
+                        alpha=0.6, label="uncoded theory on AWGN (fading schemes)"))
+    if any_ergodic:
+        h.append(Line2D([], [], color=GREY, linestyle=ERGODIC_STYLE, linewidth=1.4,
+                        label="ergodic capacity limit at \u03c1 (fading, receiver knows h)"))
+    if any_outage:
+        h.append(Line2D([], [], color=GREY, linestyle=OUTAGE_STYLE, linewidth=1.0,
+                        label="outage probability, Gaussian input (block fading)"))
+        h.append(Line2D([], [], color=GREY, linestyle=(0, (4, 2)), linewidth=1.0,
+                        label="outage probability, constellation (block fading)"))
     if rate == "ber" and any_bound:
         h.append(Line2D([], [], color=GREY, linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)),
                         linewidth=1.2, label="union bound (coded, soft decisions)"))
@@ -365,6 +444,12 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
             ok = s.theory_ber > 0
             ax.plot(s.theory_ebno[ok], s.theory_ber[ok], color=colour, linestyle=(0, (5, 2.5)),
                     linewidth=1.3, alpha=0.9, zorder=2)
+            if s.theory_ber_awgn is not None:
+                ok = (s.theory_ber_awgn > 0) & (s.theory_ber_awgn >= y_lim[0])
+                ax.plot(s.theory_ebno[ok], s.theory_ber_awgn[ok], color=colour,
+                        linestyle=AWGN_REFERENCE_STYLE, linewidth=1.0, alpha=0.6, zorder=2)
+        if rate == "fer":
+            _draw_outage(ax, s, colour)
         bound = s.bound_ber if rate == "ber" else s.bound_fer
         if s.theory_ebno is not None and bound is not None:
             # Union bound of a coded scheme (its uncoded curve is not drawn:
@@ -430,7 +515,10 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
         any_bound=any((r == "ber" and s.bound_ber is not None)
                       or (r == "fer" and s.bound_fer is not None)
                       for s in schemes for r in rates),
-        any_threshold=any(math.isfinite(s.threshold) for s in schemes))
+        any_threshold=any(math.isfinite(s.threshold) for s in schemes),
+        any_ergodic=any(math.isfinite(s.ergodic) for s in schemes),
+        any_outage="fer" in rates and any(s.outage_ebno is not None for s in schemes),
+        any_awgn_ref=any(s.theory_ber_awgn is not None and not s.coded for s in schemes))
     for k, (ax, rate) in enumerate(zip(axes, rates)):
         last = k == len(rates) - 1
         draw_panel(ax, schemes, rate, x_lim, scheme_legend=(k == 0),

@@ -44,7 +44,8 @@ def make_figure(path, schemes, meta, dpi):
     reached = [s for s in schemes if math.isfinite(s.at_target)]
     etas = [s.eta for s in schemes] + [1.0]
     y_max = max(2.0, math.ceil(max(etas) * 1.15 + 0.5))
-    xs = [s.at_target for s in reached] + [-1.6]
+    xs = [s.at_target for s in reached] + [-1.6] + \
+        [s.ergodic for s in reached if math.isfinite(getattr(s, "ergodic", float("nan")))]
     x_lo = math.floor(min(xs) - 1.0)
     x_hi = math.ceil(max(xs + [shannon_ebno_db(y_max)]) + 3.0)  # room for the names
 
@@ -72,7 +73,23 @@ def make_figure(path, schemes, meta, dpi):
         ax.annotate(_modulation_label(s.modulation), xy=(x[-1], y[-1]), xytext=(4, 0),
                     textcoords="offset points", fontsize=8, color="#6f6f6f", va="center")
 
-    # Schemes: point, name, and the horizontal distance to the bound. Schemes
+    # Ergodic Gaussian-input bound of every fading channel in the run (the
+    # C++ side's /<scheme>/limits/ergodic_curve_*; eta = rho, receiver knows h).
+    seen_channels = set()
+    for s in schemes:
+        if s.ergodic_rho is None or s.channel_label() in seen_channels:
+            continue
+        seen_channels.add(s.channel_label())
+        ok = np.isfinite(s.ergodic_ebno) & (s.ergodic_rho <= y_max)
+        if not np.any(ok):
+            continue
+        x, y = s.ergodic_ebno[ok], s.ergodic_rho[ok]
+        ax.plot(x, y, color="#444444", linewidth=1.3, linestyle=(0, (6, 2, 1, 2)), zorder=3)
+        ax.annotate("ergodic" + s.channel_label(), xy=(x[-1], y[-1]), xytext=(4, 0),
+                    textcoords="offset points", fontsize=8, color="#444444", va="center")
+
+    # Schemes: point, name, and the horizontal distance to the bound (for a
+    # fading scheme: to its channel's ergodic bound at its rho). Schemes
     # at the same eta share an arrow line: the first labels above it, the
     # next ones below, so the labels never sit on each other.
     per_eta = {}
@@ -81,6 +98,8 @@ def make_figure(path, schemes, meta, dpi):
             continue
         colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
         limit = float(shannon_ebno_db(s.eta)) if s.eta > 0 else s.shannon
+        if s.fading() and math.isfinite(s.ergodic):
+            limit = s.ergodic
         ax.annotate("", xy=(s.at_target, s.eta), xytext=(limit, s.eta),
                     arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                     shrinkA=0, shrinkB=4, mutation_scale=9), zorder=4)
@@ -119,6 +138,11 @@ def make_figure(path, schemes, meta, dpi):
                       label="constellation-constrained capacity (Nyquist, \u03b7 = \u03c1)"),
                Line2D([], [], color="#222222", linestyle=(0, (1, 2)), linewidth=0.9,
                       label="\u22121.59 dB (\u03b7 \u2192 0)")]
+    if seen_channels:
+        handles.append(Line2D([], [], color="#444444", linewidth=1.3,
+                              linestyle=(0, (6, 2, 1, 2)),
+                              label="ergodic capacity, Gaussian input, receiver knows h "
+                                    "(\u03b7 = \u03c1, Eb/N0 per branch)"))
     for i, s in enumerate(schemes):
         if math.isfinite(s.at_target):
             handles.append(Line2D([], [], color=PALETTE[i % len(PALETTE)],
@@ -130,7 +154,8 @@ def make_figure(path, schemes, meta, dpi):
                               label="not reached in the sweep: " + ", ".join(missing)))
     ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=8.5,
               borderaxespad=0.0, alignment="left",
-              title="arrow: distance to the Shannon bound at the scheme's \u03b7")
+              title="arrow: distance to the Shannon bound at the scheme's \u03b7"
+                    + ("\n(fading schemes: to their ergodic bound)" if seen_channels else ""))
     fig.suptitle(f"Power\u2013bandwidth plane at target BER {target_text}", fontsize=13.5,
                  fontweight="semibold")
     ax.text(1.01, 0.0, provenance(path, meta).replace("  \u00b7  ", "\n"), transform=ax.transAxes,

@@ -70,6 +70,19 @@ add_test(NAME python_h5_layout_of_real_run
           --plotter ${CMAKE_SOURCE_DIR}/analysis/plot_curves.py
   WORKING_DIRECTORY ${_capgap_py_work})
 
+# (d) A fading scheme's file (written by tests/sim/io/fading_curves_test.cc):
+#     layout check with the fading theory, and the plots with the ergodic and
+#     outage limits.
+add_test(NAME python_fading_file
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_fading_file.py
+          --test-binary ${CMAKE_BINARY_DIR}/tests/sim_io_fading_curves_test
+          --out ${_capgap_py_work}/fading/fading.h5
+          --checker ${_capgap_py_dir}/check_h5_layout.py
+          --plotter ${CMAKE_SOURCE_DIR}/analysis/plot_curves.py
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_fading_file
+  PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 300)
+
 set_tests_properties(python_checker_rejects_broken_files python_plot_fake_file
   PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 120)
 set_tests_properties(python_h5_layout_of_real_run

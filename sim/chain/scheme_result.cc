@@ -7,10 +7,12 @@
 
 #include "analysis/capacity.h"
 #include "analysis/density_evolution.h"
+#include "analysis/fading_theory.h"
 #include "analysis/uncoded_theory.h"
 #include "blocks/shaping/pulse.h"
 #include "blocks/shaping/spectrum.h"
 #include "sim/chain/registry.h"
+#include "sim/engine/stats.h"
 
 namespace capgap {
 namespace {
@@ -101,7 +103,100 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
   }
 }
 
+// Words of the channel keys (the same words the scheme's channel keys take).
+const char* LawWord(FadingLaw law) {
+  switch (law) {
+    case FadingLaw::kAwgn: return "awgn";
+    case FadingLaw::kRayleigh: return "rayleigh";
+    case FadingLaw::kRician: return "rician";
+    case FadingLaw::kNakagami: return "nakagami";
+  }
+  return "?";
+}
+
+const char* TimeWord(FadingTime time) {
+  switch (time) {
+    case FadingTime::kFast: return "fast";
+    case FadingTime::kBlock: return "block";
+    case FadingTime::kDoppler: return "doppler";
+  }
+  return "?";
+}
+
+const char* CombiningWord(Combining combining) {
+  return combining == Combining::kMrc ? "mrc" : "selection";
+}
+
+// The channel differs from one-branch AWGN: fading theory and limits apply.
+bool FadingTheoryApplies(const ChannelSpec& channel) {
+  return channel.fading() || channel.branches > 1;
+}
+
+// Fading limits and the outage curve (see Limits in scheme_result.h).
+void AnalyseFadingLimits(const Chain& chain, SchemeResult& r) {
+  const ChannelSpec& ch = chain.scheme().channel;
+  const auto points = chain.mapper().points();
+  const double rho = r.info_bits_per_symbol;
+  Limits& lim = r.limits;
+  lim.ergodic_present = true;
+  lim.ergodic_shannon_ebno_db = analysis::ErgodicShannonMinEbnoDb(ch, rho);
+  lim.ergodic_constrained_ebno_db = analysis::ErgodicConstrainedMinEbnoDb(points, ch, rho);
+  lim.ergodic_bicm_ebno_db = analysis::ErgodicBicmMinEbnoDb(points, ch, rho);
+  // The Gaussian-input ergodic bound on the power-bandwidth plane, eta = rho
+  // from 0.05 to 10 bit/s/Hz (geometric steps).
+  for (int i = 0; i <= 24; ++i) {
+    const double eta = 0.05 * std::pow(200.0, i / 24.0);
+    lim.ergodic_curve_rho.push_back(eta);
+    lim.ergodic_curve_ebno_db.push_back(analysis::ErgodicShannonMinEbnoDb(ch, eta));
+  }
+  if (ch.time != FadingTime::kBlock) return;
+  lim.outage_present = true;
+  lim.outage_threshold_gaussian_esno_db = analysis::GaussianOutageThresholdEsnoDb(rho);
+  lim.outage_threshold_constrained_esno_db = analysis::OutageThresholdEsnoDb(points, rho);
+  for (const double x : r.theory.ebno_db) {
+    lim.outage_ebno_db.push_back(x);
+    lim.outage_probability_gaussian.push_back(analysis::OutageProbabilityAtThreshold(
+        ch, lim.outage_threshold_gaussian_esno_db, rho, x));
+    lim.outage_probability_constrained.push_back(analysis::OutageProbabilityAtThreshold(
+        ch, lim.outage_threshold_constrained_esno_db, rho, x));
+  }
+}
+
 }  // namespace
+
+CodeReport DescribeChannel(const ChannelSpec& channel) {
+  CodeReport report;
+  report.Add("channel", std::string(LawWord(channel.law)));
+  report.Add("rician_k_db", channel.rician_k_db);
+  report.Add("nakagami_m", channel.nakagami_m);
+  report.Add("fading", std::string(TimeWord(channel.time)));
+  report.Add("coherence_symbols", static_cast<int>(channel.coherence_symbols));
+  report.Add("doppler", channel.doppler);
+  report.Add("branches", channel.branches);
+  report.Add("combining", std::string(CombiningWord(channel.combining)));
+  report.Add("channel_state", std::string("perfect"));
+  report.Add("ebno_basis", std::string("Eb/N0 is the average per receive branch (E|h|^2 = 1 "
+                                       "per branch); the receiver knows every gain h"));
+  return report;
+}
+
+double OutageGapDb(const SchemeResult& r, double target_fer) {
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  const ChannelSpec& ch = r.scheme.channel;
+  if (ch.time != FadingTime::kBlock || !FadingTheoryApplies(ch)) return nan;
+  if (!(target_fer > 0.0) || !(target_fer < 1.0)) return nan;
+  std::vector<double> x, fer;
+  for (const auto& p : r.points) {
+    if (p.stop_reason == StopReason::kInterrupted) continue;
+    x.push_back(p.ebno_db);
+    fer.push_back(p.fer());
+  }
+  const double simulated = CrossingDb(x, fer, target_fer);
+  const double rho = r.info_bits_per_symbol;
+  const double outage = analysis::OutageEbnoDbAtProbability(
+      ch, analysis::GaussianOutageThresholdEsnoDb(rho), rho, target_fer);
+  return simulated - outage;
+}
 
 SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
                            std::vector<PointResult> points, const std::atomic<bool>* stop) {
@@ -127,15 +222,26 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   r.points = std::move(points);
 
   // Theory on a 0.05 dB grid spanning the configured sweep, one dB either side.
+  // Fading schemes: the average over the scheme's channel, the AWGN curve
+  // beside it.
   const Modulation& mod = chain.scheme().modulation;
+  const ChannelSpec& channel = chain.scheme().channel;
+  const bool fading = FadingTheoryApplies(channel);
+  r.channel = DescribeChannel(channel);
   const double lo = sweep.ebno_db.front() - 1.0;
   const double hi = sweep.ebno_db.back() + 1.0;
   const int n = static_cast<int>(std::floor((hi - lo) / 0.05 + 1e-9)) + 1;
   for (int i = 0; i < n; ++i) {
     const double x = std::round((lo + 0.05 * i) * 1e6) / 1e6;
     r.theory.ebno_db.push_back(x);
-    r.theory.ber_uncoded.push_back(analysis::UncodedBer(mod, x));
-    r.theory.ser_uncoded.push_back(analysis::UncodedSer(mod, x));
+    if (fading) {
+      r.theory.ber_uncoded.push_back(analysis::FadingBer(mod, channel, x));
+      r.theory.ser_uncoded.push_back(analysis::FadingSer(mod, channel, x));
+      r.theory.ber_uncoded_awgn.push_back(analysis::UncodedBer(mod, x));
+    } else {
+      r.theory.ber_uncoded.push_back(analysis::UncodedBer(mod, x));
+      r.theory.ser_uncoded.push_back(analysis::UncodedSer(mod, x));
+    }
   }
 
   // The code family's own analysis: bounds, thresholds, code facts.
@@ -160,6 +266,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
           analysis::ConstrainedMinEbnoDb(chain.mapper().points(), rho));
     }
   }
+  if (fading) AnalyseFadingLimits(chain, r);
   if (std::isinf(r.limits.constrained_ebno_db)) {
     r.limits.notes =
         "constrained limit is infinite: an uncoded constellation carries its m bits per symbol "
@@ -179,12 +286,18 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   // The lower BER bound crosses first (optimistic Eb/N0), the upper bound last.
   s.ebno_at_target_low_db = CrossingDb(x, ber_low, sweep.target_ber);
   s.ebno_at_target_high_db = CrossingDb(x, ber_high, sweep.target_ber);
-  s.uncoded_ebno_at_target_db = analysis::UncodedEbnoDbAtBer(mod, sweep.target_ber);
+  s.uncoded_ebno_at_target_db = fading
+                                    ? analysis::FadingEbnoDbAtBer(mod, channel, sweep.target_ber)
+                                    : analysis::UncodedEbnoDbAtBer(mod, sweep.target_ber);
   s.coding_gain_db = s.uncoded_ebno_at_target_db - s.ebno_at_target_db;
   s.gap_to_shannon_db = s.ebno_at_target_db - r.limits.shannon_ebno_db;
   s.gap_to_constrained_db = std::isfinite(r.limits.constrained_ebno_db)
                                 ? s.ebno_at_target_db - r.limits.constrained_ebno_db
                                 : nan;
+  if (r.limits.ergodic_present) {
+    s.gap_to_ergodic_db = s.ebno_at_target_db - r.limits.ergodic_shannon_ebno_db;
+  }
+  s.gap_to_outage_db = OutageGapDb(r, r.target_fer);
   if (r.limits.threshold_present) {
     const Modulation& m = chain.scheme().modulation;
     if (m.family == ModulationFamily::kPsk && m.order <= 4) {

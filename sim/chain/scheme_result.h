@@ -20,8 +20,13 @@ namespace capgap {
 
 struct TheoryCurve {
   std::vector<double> ebno_db;
+  // Uncoded BER and SER on the scheme's own channel (AWGN or the average
+  // over its fading and combining, analysis/fading_theory.h).
   std::vector<double> ber_uncoded;
   std::vector<double> ser_uncoded;
+  // Fading schemes (channel other than AWGN with one branch): the AWGN
+  // uncoded BER on the same grid, for comparison; empty otherwise.
+  std::vector<double> ber_uncoded_awgn;
   // The code's union bounds on BER and FER on the theory grid (empty when the
   // family has none or it does not apply to the mapper), and what they
   // assume.
@@ -89,6 +94,24 @@ struct Limits {
   double threshold_ga_ebno_db = std::numeric_limits<double>::quiet_NaN();
   double binary_input_ebno_db = std::numeric_limits<double>::quiet_NaN();
   std::string threshold_channel;
+  // Fading schemes (ergodic_present): mean Eb/N0 per branch at which the
+  // ergodic capacity with receiver CSI equals rho = info_bits_per_symbol,
+  // for Gaussian input, the constellation (CM) and BICM (+inf for the
+  // constrained ones when rho = m), and the Gaussian-input ergodic bound on
+  // the power-bandwidth plane (eta = rho, ideal Nyquist) for the chart.
+  bool ergodic_present = false;
+  double ergodic_shannon_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double ergodic_constrained_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  double ergodic_bicm_ebno_db = std::numeric_limits<double>::quiet_NaN();
+  std::vector<double> ergodic_curve_rho, ergodic_curve_ebno_db;
+  // Block fading (outage_present): the outage probability at rate rho
+  // against mean Eb/N0 per branch, Gaussian input and constellation-
+  // constrained (CM), and the SNR thresholds behind them (Es/N0, dB).
+  bool outage_present = false;
+  std::vector<double> outage_ebno_db, outage_probability_gaussian,
+      outage_probability_constrained;
+  double outage_threshold_gaussian_esno_db = std::numeric_limits<double>::quiet_NaN();
+  double outage_threshold_constrained_esno_db = std::numeric_limits<double>::quiet_NaN();
 };
 
 struct Summary {
@@ -102,6 +125,12 @@ struct Summary {
   // LDPC on BPSK/QPSK (where the binary-input analysis applies), else NaN.
   double gap_to_threshold_db = std::numeric_limits<double>::quiet_NaN();
   double gap_to_binary_input_db = std::numeric_limits<double>::quiet_NaN();
+  // Fading schemes: ebno_at_target_db - ergodic_shannon_ebno_db.
+  double gap_to_ergodic_db = std::numeric_limits<double>::quiet_NaN();
+  // Block fading: Eb/N0 where the simulated FER crosses target_fer minus the
+  // Eb/N0 where the Gaussian-input outage probability equals target_fer
+  // (OutageGapDb); NaN while no target FER is set.
+  double gap_to_outage_db = std::numeric_limits<double>::quiet_NaN();
 };
 
 // Power spectral density of the transmitted signal of a shaped scheme
@@ -139,14 +168,32 @@ struct SchemeResult {
   SpectrumResult spectrum;
   SignalViews signal;
   CodeReport code;
+  // The /<scheme>/channel group: every channel key and the receiver's
+  // channel state, as attributes (same shape as a code report).
+  CodeReport channel;
   // The decoder is iterative: the points carry iteration statistics.
   bool iterative = false;
   double target_ber = 1e-5;
+  // FER of the summary's outage gap; NaN (no gap computed) until the sweep
+  // carries a target FER.
+  double target_fer = std::numeric_limits<double>::quiet_NaN();
   std::vector<PointResult> points;
   TheoryCurve theory;
   Limits limits;
   Summary summary;
 };
+
+// Gap to the block-fading outage limit at a target FER: the Eb/N0 where the
+// simulated FER (points not interrupted) crosses target_fer minus the Eb/N0
+// where the Gaussian-input outage probability of r's channel at rate
+// r.info_bits_per_symbol equals target_fer. NaN unless r's channel is block
+// fading, 0 < target_fer < 1 and the FER curve crosses it.
+double OutageGapDb(const SchemeResult& r, double target_fer);
+
+// The /<scheme>/channel attributes of a channel spec: channel, rician_k_db,
+// nakagami_m, fading, coherence_symbols, doppler, branches, combining,
+// channel_state = "perfect", ebno_basis (Eb/N0 is the average per branch).
+CodeReport DescribeChannel(const ChannelSpec& channel);
 
 // Fills theory, limits and summary for simulated points of `chain`. Once
 // *stop reads true (stop may be null) long parts (density evolution) give

@@ -208,6 +208,13 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       Dataset(th, "ebno_db", F64, r.theory.ebno_db);
       Dataset(th, "ber_uncoded", F64, r.theory.ber_uncoded);
       Dataset(th, "ser_uncoded", F64, r.theory.ser_uncoded);
+      if (!r.theory.ber_uncoded_awgn.empty()) {
+        Dataset(th, "ber_uncoded_awgn", F64, r.theory.ber_uncoded_awgn);
+        StrAttr(th, "ber_uncoded_basis",
+                "ber_uncoded, ser_uncoded: exact average over the scheme's fading and combining "
+                "(MGF method, perfect channel state); ber_uncoded_awgn: the same modulation on "
+                "AWGN");
+      }
       if (!r.theory.ber_bound.empty()) Dataset(th, "ber_bound", F64, r.theory.ber_bound);
       if (!r.theory.fer_bound.empty()) Dataset(th, "fer_bound", F64, r.theory.fer_bound);
       if (!r.theory.ber_bound.empty() || !r.theory.fer_bound.empty()) {
@@ -215,6 +222,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       }
 
       if (r.code.present) WriteCodeReport(g.createGroup("code"), r.code);
+      if (r.channel.present) WriteCodeReport(g.createGroup("channel"), r.channel);
 
       if (r.spectrum.present) {
         H5::Group sp = g.createGroup("spectrum");
@@ -259,6 +267,30 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       }
       Dataset(lim, "constrained_curve_rho", F64, r.limits.constrained_curve_rho);
       Dataset(lim, "constrained_curve_ebno_db", F64, r.limits.constrained_curve_ebno_db);
+      if (r.limits.ergodic_present) {
+        NumAttr(lim, "ergodic_shannon_ebno_db", F64, r.limits.ergodic_shannon_ebno_db);
+        NumAttr(lim, "ergodic_constrained_ebno_db", F64, r.limits.ergodic_constrained_ebno_db);
+        NumAttr(lim, "ergodic_bicm_ebno_db", F64, r.limits.ergodic_bicm_ebno_db);
+        StrAttr(lim, "ergodic_basis",
+                "mean Eb/N0 per branch where the ergodic capacity with receiver channel state "
+                "equals rho = info_bits_per_symbol: Gaussian input, constellation (CM), BICM");
+        Dataset(lim, "ergodic_curve_rho", F64, r.limits.ergodic_curve_rho);
+        Dataset(lim, "ergodic_curve_ebno_db", F64, r.limits.ergodic_curve_ebno_db);
+      }
+      if (r.limits.outage_present) {
+        NumAttr(lim, "outage_rate", F64, r.info_bits_per_symbol);
+        NumAttr(lim, "outage_threshold_gaussian_esno_db", F64,
+                r.limits.outage_threshold_gaussian_esno_db);
+        NumAttr(lim, "outage_threshold_constrained_esno_db", F64,
+                r.limits.outage_threshold_constrained_esno_db);
+        StrAttr(lim, "outage_basis",
+                "block fading: P(C(gamma) < rho) against mean Eb/N0 per branch, C the "
+                "Gaussian-input capacity log2(1 + gamma) or the constellation's AWGN CM capacity");
+        Dataset(lim, "outage_ebno_db", F64, r.limits.outage_ebno_db);
+        Dataset(lim, "outage_probability_gaussian", F64, r.limits.outage_probability_gaussian);
+        Dataset(lim, "outage_probability_constrained", F64,
+                r.limits.outage_probability_constrained);
+      }
 
       H5::Group sum = g.createGroup("summary");
       const Summary& s = r.summary;
@@ -269,6 +301,11 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(sum, "coding_gain_db", F64, s.coding_gain_db);
       NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
       NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
+      if (r.limits.ergodic_present) NumAttr(sum, "gap_to_ergodic_db", F64, s.gap_to_ergodic_db);
+      if (r.limits.outage_present) {
+        NumAttr(sum, "gap_to_outage_db", F64, s.gap_to_outage_db);
+        NumAttr(sum, "target_fer", F64, r.target_fer);
+      }
       if (r.limits.threshold_present) {
         NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
         NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);

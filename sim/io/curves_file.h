@@ -54,6 +54,15 @@ struct StoredScheme {
   int code_girth = 0;
   std::vector<double> decoder_iterations_mean;
   std::vector<std::uint64_t> undetected_frame_errors;
+  // The /<scheme>/channel group (absent in files of earlier versions: then
+  // has_channel is false and the channel is AWGN with one branch).
+  bool has_channel = false;
+  std::string channel = "awgn", fading = "fast", combining = "mrc";
+  int branches = 1;
+  // Fading schemes: the ergodic limits (has_ergodic) and, for block fading,
+  // the outage gap (has_outage).
+  bool has_ergodic = false, has_outage = false;
+  double ergodic_shannon_ebno_db = 0, ergodic_constrained_ebno_db = 0, ergodic_bicm_ebno_db = 0;
   Summary summary{};
 };
 

@@ -346,6 +346,25 @@ StoredScheme ReadScheme(const H5::H5File& file, const std::string& name) {
     s.code_girth = IntAttr(code, cp, "girth");
   }
 
+  if (has("channel")) {
+    const H5::Group ch = OpenGroup(g, gp, "channel");
+    const std::string chp = gp + "/channel";
+    s.has_channel = true;
+    s.channel = StrAttr(ch, chp, "channel");
+    s.fading = StrAttr(ch, chp, "fading");
+    s.combining = StrAttr(ch, chp, "combining");
+    s.branches = IntAttr(ch, chp, "branches");
+  }
+  s.has_ergodic = HasAttr(lim, "ergodic_shannon_ebno_db");
+  if (s.has_ergodic) {
+    s.ergodic_shannon_ebno_db = NumberAttr(lim, lp, "ergodic_shannon_ebno_db");
+    s.ergodic_constrained_ebno_db = NumberAttr(lim, lp, "ergodic_constrained_ebno_db");
+    s.ergodic_bicm_ebno_db = NumberAttr(lim, lp, "ergodic_bicm_ebno_db");
+    s.summary.gap_to_ergodic_db = NumberAttr(sum, sp, "gap_to_ergodic_db");
+  }
+  s.has_outage = HasAttr(sum, "gap_to_outage_db");
+  if (s.has_outage) s.summary.gap_to_outage_db = NumberAttr(sum, sp, "gap_to_outage_db");
+
   // Values, then the rules between them: a count read is never trusted.
   s.ebno_db = ReadSeries<double>(ebno, H5::PredType::NATIVE_DOUBLE);
   s.ber = ReadSeries<double>(ber, H5::PredType::NATIVE_DOUBLE);

@@ -23,7 +23,11 @@ Layout (format_version 1):
                     ber_high, fer, fer_low, fer_high, seconds (float64);
                     bits, bit_errors, frames, frame_errors (uint64);
                     stop_reason (variable-length strings)
-  /<scheme>/theory  1-D float64 datasets ebno_db, ber_uncoded, ser_uncoded
+  /<scheme>/theory  1-D float64 datasets ebno_db, ber_uncoded, ser_uncoded;
+                    fading schemes (/<scheme>/channel says so) add
+                    ber_uncoded_awgn, and ber_uncoded is the fading average
+  /<scheme>/channel optional: channel keys as attributes (channel, fading,
+                    branches, combining, ..., channel_state)
   /<scheme>/limits  attrs shannon_ebno_db, constrained_ebno_db (float64);
                     optional 1-D constrained_curve_rho, constrained_curve_ebno_db
                     LDPC: attrs threshold_ebno_db, binary_input_ebno_db,
@@ -456,7 +460,10 @@ def check_theory(c, g, modulation):
             i = int(np.flatnonzero(np.diff(v) > 1e-15 + 1e-12 * v[1:])[0])
             c.fail(f"{base}/{n}", f"increases between elements {i} and {i + 1}")
         c.ok(f"{base}/{n}", f"in [0, {top}], non-increasing")
-    if independent_uncoded(modulation, 0.0) is None:
+    fading = _fading_channel(g)
+    if fading is not None:
+        _check_fading_theory(c, th, d, modulation, fading)
+    elif independent_uncoded(modulation, 0.0) is None:
         c.note(base, f"no independent formula here for {modulation!r}; values not recomputed")
     else:
         for i, x in enumerate(d["ebno_db"]):
@@ -469,6 +476,53 @@ def check_theory(c, g, modulation):
                         what=f"Gray {modulation} by PAM decision-region sum")
         c.ok(base, f"ber_uncoded, ser_uncoded match Gray {modulation} decision-region sums (rel 1e-6)")
     return d
+
+
+def _fading_channel(g):
+    """(law, branches, combining) of a scheme whose /channel group describes
+    fading or diversity, else None (AWGN, one branch, or no group)."""
+    if "channel" not in g or not isinstance(g["channel"], h5py.Group):
+        return None
+    ch = g["channel"]
+    law = _decode_plain(ch.attrs.get("channel", "awgn"))
+    branches = int(ch.attrs.get("branches", 1))
+    if law == "awgn" and branches == 1:
+        return None
+    return law, branches, _decode_plain(ch.attrs.get("combining", "mrc"))
+
+
+def _decode_plain(v):
+    return v.decode("utf-8") if isinstance(v, (bytes, np.bytes_)) else str(v)
+
+
+def _check_fading_theory(c, th, d, modulation, fading):
+    """Fading scheme: ber_uncoded_awgn is the AWGN curve (checked as the AWGN
+    ber_uncoded is); for BPSK/QPSK over Rayleigh with L-branch MRC,
+    ber_uncoded is the closed form ((1-mu)/2)^L sum_k C(L-1+k, k)
+    ((1+mu)/2)^k, mu = sqrt(g/(1+g)) (Proakis & Salehi, Digital
+    Communications, 5th ed., ch. 13), relative 1e-6."""
+    base = th.name
+    awgn = c.dataset_float64(th, "ber_uncoded_awgn")
+    if len(awgn) != len(d["ebno_db"]):
+        c.fail(f"{base}/ber_uncoded_awgn", f"has {len(awgn)} points, expected {len(d['ebno_db'])}")
+    law, branches, combining = fading
+    if independent_uncoded(modulation, 0.0) is not None:
+        for i, x in enumerate(d["ebno_db"]):
+            ber, _ = independent_uncoded(modulation, float(x))
+            c.close(f"{base}/ber_uncoded_awgn[{i}] (Eb/N0 {x:g} dB)", float(awgn[i]), ber,
+                    rel=1e-6, abs_=1e-280, what=f"Gray {modulation} by PAM decision-region sum")
+        c.ok(base, f"ber_uncoded_awgn matches Gray {modulation} decision-region sums (rel 1e-6)")
+    if law == "rayleigh" and combining == "mrc" and modulation in ("bpsk", "qpsk"):
+        for i, x in enumerate(d["ebno_db"]):
+            gam = 10.0 ** (float(x) / 10.0)
+            mu = math.sqrt(gam / (1.0 + gam))
+            want = (0.5 * (1.0 - mu)) ** branches * sum(
+                math.comb(branches - 1 + k, k) * (0.5 * (1.0 + mu)) ** k for k in range(branches))
+            c.close(f"{base}/ber_uncoded[{i}] (Eb/N0 {x:g} dB)", float(d["ber_uncoded"][i]), want,
+                    rel=1e-6, abs_=1e-280, what="BPSK over Rayleigh, MRC closed form")
+        c.ok(base, f"ber_uncoded matches the Rayleigh {branches}-branch MRC closed form (rel 1e-6)")
+    else:
+        c.note(base, f"fading theory ({law}, {branches} x {combining}) not recomputed here")
 
 
 def crossing_from_grid(x, y, target):
