@@ -272,7 +272,7 @@ TEST(LdpcDecoderWords, UnknownWordErrorListsTheValidWords) {
   EXPECT_EQ(ParseLdpcSchedule("serial").status().message(),
             "LDPC schedule 'serial': must be one of flooding, layered");
   EXPECT_EQ(ParseLdpcArithmetic("int32").status().message(),
-            "LDPC arithmetic 'int32': must be one of auto, int8, int16, float");
+            "LDPC arithmetic 'int32': must be one of auto, int8, int16, float, float32");
 }
 
 TEST(LdpcDecoder, CreateRejectsInvalidOptionsNamingOptionValueAndRange) {

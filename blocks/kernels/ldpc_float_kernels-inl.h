@@ -1,0 +1,435 @@
+// Per-target body of the float LDPC kernel declared in ldpc_float_kernels.h
+// (normalised / offset min-sum and float32 sum-product, one frame per float
+// lane). Included once per instruction-set target by ldpc_float_kernels.cc
+// (through hwy/foreach_target.h) and the same way by the per-target test and
+// the benchmark, which call capgap::HWY_NAMESPACE::LdpcDecodeFloatLanesKernel
+// directly. The oracles (ldpc_reference.h for min-sum, ldpc_spa_reference.h
+// for sum-product) perform the same float operations in the same order per
+// lane; including files are compiled with -ffp-contract=off.
+//
+// Layout: rows of B = Lanes(ScalableTag<float>) floats, L[n], P[n], c[E], then
+// scratch rows for one check (t, e, F_a, F_b: 4 max_row_degree rows), all in
+// a 64-byte aligned workspace. A check's edges are consecutive rows of c and
+// its posteriors whole rows of P, so every access is an aligned vector load
+// or store. The check pass keeps its per-edge values in the scratch rows (L1)
+// rather than in registers: the pass is bound by vector arithmetic (ports
+// shared by every vector operation), not by loads and stores, which have
+// ports of their own; one code path serves every degree.
+//
+// Streaming: after every iteration the lanes whose frame stops hand out its
+// decisions (one strided column of P) and take the next frames at once
+// (L and P of the lane set, its messages cleared: scalar stores over n + E
+// rows, small next to an iteration's E vector check updates).
+
+// Per-target include guard (Highway's toggle idiom).
+#if defined(CAPGAP_BLOCKS_KERNELS_LDPC_FLOAT_KERNELS_INL_H_) == defined(HWY_TARGET_TOGGLE)
+#ifdef CAPGAP_BLOCKS_KERNELS_LDPC_FLOAT_KERNELS_INL_H_
+#undef CAPGAP_BLOCKS_KERNELS_LDPC_FLOAT_KERNELS_INL_H_
+#else
+#define CAPGAP_BLOCKS_KERNELS_LDPC_FLOAT_KERNELS_INL_H_
+#endif
+
+#include <cstddef>
+#include <cstdint>
+#include <cstring>
+
+#include "blocks/kernels/ldpc_float_kernels.h"
+#include "blocks/kernels/ldpc_reference.h"
+#include "blocks/kernels/ldpc_spa_reference.h"
+#include "hwy/highway.h"
+
+HWY_BEFORE_NAMESPACE();
+namespace capgap {
+namespace HWY_NAMESPACE {
+namespace hn = hwy::HWY_NAMESPACE;
+
+#if HWY_TARGET != HWY_SCALAR
+
+namespace ldpc_float_detail {
+
+// Pointers into the aligned workspace of the B lanes.
+struct Buffers {
+  float* l;  // n rows: channel values (bits for sum-product)
+  float* p;  // n rows: posteriors
+  float* c;  // E rows: check-to-variable messages
+  float* t;  // max_row_degree rows each: t, e, F_a, F_b of one check
+  float* e;
+  float* fa;
+  float* fb;
+};
+
+inline Buffers Carve(const LdpcGraph& g, std::size_t lanes, void* ws) {
+  auto base = reinterpret_cast<std::uintptr_t>(ws);
+  base = (base + 63u) & ~std::uintptr_t{63u};
+  const auto n = static_cast<std::size_t>(g.n);
+  const auto dd = static_cast<std::size_t>(g.max_row_degree) * lanes;
+  Buffers b;
+  b.l = reinterpret_cast<float*>(base);
+  b.p = b.l + n * lanes;
+  b.c = b.p + n * lanes;
+  b.t = b.c + static_cast<std::size_t>(g.edges) * lanes;
+  b.e = b.t + dd;
+  b.fa = b.e + dd;
+  b.fb = b.fa + dd;
+  return b;
+}
+
+// LdpcSpaExp2 of ldpc_spa_reference.h, lane by lane, the same operations.
+template <class D>
+HWY_INLINE hn::Vec<D> Exp2(D d, hn::Vec<D> y) {
+  const hn::RebindToUnsigned<D> du;
+  const auto magic = hn::Set(d, kLdpcSpaRoundMagic);
+  const auto r = hn::Add(y, magic);
+  const auto n = hn::Sub(r, magic);
+  const auto f = hn::Sub(y, n);
+  auto q = hn::Set(d, kLdpcSpaExp2C3);
+  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C2));
+  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C1));
+  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C0));
+  const auto p = hn::Add(hn::Mul(q, f), hn::Set(d, 1.0f));
+  const auto shift = hn::ShiftLeft<23>(hn::BitCast(du, r));
+  return hn::BitCast(d, hn::Add(hn::BitCast(du, p), shift));
+}
+
+// LdpcSpaLog2 of ldpc_spa_reference.h (r >= 1 finite), the same operations.
+template <class D>
+HWY_INLINE hn::Vec<D> Log2(D d, hn::Vec<D> r) {
+  const hn::RebindToUnsigned<D> du;
+  const hn::RebindToSigned<D> di;
+  const auto u = hn::BitCast(du, r);
+  const auto k = hn::ShiftRight<23>(hn::Sub(u, hn::Set(du, kLdpcSpaLog2Split)));
+  const auto m = hn::BitCast(d, hn::Sub(u, hn::ShiftLeft<23>(k)));
+  const auto x = hn::Sub(m, hn::Set(d, 1.0f));
+  auto q = hn::Set(d, kLdpcSpaLog2D5);
+  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D4));
+  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D3));
+  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D2));
+  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D1));
+  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D0));
+  return hn::Add(hn::ConvertTo(d, hn::BitCast(di, k)), hn::Mul(x, q));
+}
+
+// Constants of one call. Copied to a local in the pass (the stores go
+// through float pointers that may alias the context).
+template <class D>
+struct Context {
+  const LdpcFloatKernelArgs* a;
+  Buffers b;
+  hn::Vec<D> sign, cap, alpha, beta, zero, one, neg_clip, clip;
+};
+
+template <class D>
+HWY_INLINE Context<D> MakeContext(D d, const LdpcFloatKernelArgs& a, const Buffers& b) {
+  const hn::RebindToUnsigned<D> du;
+  Context<D> x;
+  x.a = &a;
+  x.b = b;
+  x.sign = hn::BitCast(d, hn::Set(du, kLdpcSpaSignBit));
+  x.cap = hn::Set(d, kLdpcFloatMinSumCap);
+  x.alpha = hn::Set(d, a.normalization);
+  x.beta = hn::Set(d, a.offset);
+  x.zero = hn::Zero(d);
+  x.one = hn::Set(d, 1.0f);
+  x.neg_clip = hn::Set(d, -kLdpcSpaClip);
+  x.clip = hn::Set(d, kLdpcSpaClip);
+  return x;
+}
+
+// Min-sum check update of a row (LdpcFloatRow of ldpc_reference.h):
+// min2 = max(min1, min(min2, |t|)), min1 = min(min1, |t|) from the cap; the
+// sign of every message from the XOR of the sign bits.
+template <bool kLayered, bool kOffset, class D>
+HWY_INLINE void MinSumRow(D d, const Context<D>& x, int e0, int deg) {
+  using V = hn::Vec<D>;
+  const std::size_t lanes = hn::Lanes(d);
+  const int* HWY_RESTRICT ev = x.a->graph.edge_variable + e0;
+  float* HWY_RESTRICT c = x.b.c + static_cast<std::size_t>(e0) * lanes;
+  float* HWY_RESTRICT t = x.b.t;
+  V min1 = x.cap, min2 = x.cap, s = x.zero;
+  for (int k = 0; k < deg; ++k) {
+    const std::size_t o = static_cast<std::size_t>(k) * lanes;
+    const V tk =
+        hn::Sub(hn::Load(d, x.b.p + static_cast<std::size_t>(ev[k]) * lanes), hn::Load(d, c + o));
+    hn::Store(tk, d, t + o);
+    const V mag = hn::Abs(tk);
+    min2 = hn::Max(min1, hn::Min(min2, mag));
+    min1 = hn::Min(min1, mag);
+    s = hn::Xor(s, tk);
+  }
+  V m1, m2;
+  if (kOffset) {
+    m1 = hn::Max(hn::Sub(min1, x.beta), x.zero);
+    m2 = hn::Max(hn::Sub(min2, x.beta), x.zero);
+  } else {
+    m1 = hn::Mul(x.alpha, min1);
+    m2 = hn::Mul(x.alpha, min2);
+  }
+  for (int k = 0; k < deg; ++k) {
+    const std::size_t o = static_cast<std::size_t>(k) * lanes;
+    const V tk = hn::Load(d, t + o);
+    const V mag = hn::IfThenElse(hn::Eq(hn::Abs(tk), min1), m2, m1);
+    const V cn = hn::Or(mag, hn::And(hn::Xor(tk, s), x.sign));
+    hn::Store(cn, d, c + o);
+    if (kLayered) hn::Store(hn::Add(tk, cn), d, x.b.p + static_cast<std::size_t>(ev[k]) * lanes);
+  }
+}
+
+// Float32 sum-product check update of a row (LdpcSpaRow of
+// ldpc_spa_reference.h).
+template <bool kLayered, class D>
+HWY_INLINE void SpaRow(D d, const Context<D>& x, int e0, int deg) {
+  using V = hn::Vec<D>;
+  const std::size_t lanes = hn::Lanes(d);
+  const int* HWY_RESTRICT ev = x.a->graph.edge_variable + e0;
+  float* HWY_RESTRICT c = x.b.c + static_cast<std::size_t>(e0) * lanes;
+  float* HWY_RESTRICT t = x.b.t;
+  float* HWY_RESTRICT e = x.b.e;
+  float* HWY_RESTRICT fa = x.b.fa;
+  float* HWY_RESTRICT fb = x.b.fb;
+  const auto row = [lanes](int k) { return static_cast<std::size_t>(k) * lanes; };
+  V s = x.zero;
+  for (int k = 0; k < deg; ++k) {
+    const V tk = hn::Sub(hn::Load(d, x.b.p + row(ev[k])), hn::Load(d, c + row(k)));
+    hn::Store(tk, d, t + row(k));
+    s = hn::Xor(s, tk);
+    hn::Store(Exp2(d, hn::Max(hn::Or(tk, x.sign), x.neg_clip)), d, e + row(k));
+  }
+  const auto emit = [&](int k, V big, V small) {
+    const V m = Log2(d, hn::Max(hn::Div(big, small), x.one));
+    const V tk = hn::Load(d, t + row(k));
+    const V cn = hn::Or(m, hn::And(hn::Xor(tk, s), x.sign));
+    hn::Store(cn, d, c + row(k));
+    if (kLayered) hn::Store(hn::Add(tk, cn), d, x.b.p + row(ev[k]));
+  };
+  if (deg == 1) {
+    const V tk = hn::Load(d, t);
+    const V cn = hn::Or(x.clip, hn::And(hn::Xor(tk, s), x.sign));
+    hn::Store(cn, d, c);
+    if (kLayered) hn::Store(hn::Add(tk, cn), d, x.b.p + row(ev[0]));
+    return;
+  }
+  V a = x.one, b = hn::Load(d, e);
+  hn::Store(a, d, fa + row(1));
+  hn::Store(b, d, fb + row(1));
+  for (int k = 1; k + 1 < deg; ++k) {
+    const V ek = hn::Load(d, e + row(k));
+    const V na = hn::Add(a, hn::Mul(b, ek));
+    const V nb = hn::Add(hn::Mul(a, ek), b);
+    a = na;
+    b = nb;
+    hn::Store(a, d, fa + row(k + 1));
+    hn::Store(b, d, fb + row(k + 1));
+  }
+  emit(deg - 1, a, b);
+  V ga = x.one, gb = hn::Load(d, e + row(deg - 1));
+  for (int k = deg - 2; k >= 1; --k) {
+    const V fak = hn::Load(d, fa + row(k));
+    const V fbk = hn::Load(d, fb + row(k));
+    emit(k, hn::Add(hn::Mul(fak, ga), hn::Mul(fbk, gb)),
+         hn::Add(hn::Mul(fak, gb), hn::Mul(fbk, ga)));
+    const V ek = hn::Load(d, e + row(k));
+    const V na = hn::Add(ga, hn::Mul(gb, ek));
+    const V nb = hn::Add(hn::Mul(ga, ek), gb);
+    ga = na;
+    gb = nb;
+  }
+  emit(0, ga, gb);
+}
+
+template <bool kLayered, class D>
+HWY_NOINLINE void CheckPass(D d, const Context<D>& shared) {
+  const Context<D> x = shared;
+  const LdpcGraph& g = x.a->graph;
+  const int* HWY_RESTRICT row_start = g.row_start;
+  const LdpcFloatRule rule = x.a->rule;
+  for (int r = 0; r < g.m; ++r) {
+    const int e0 = row_start[r];
+    const int deg = row_start[r + 1] - e0;
+    switch (rule) {
+      case LdpcFloatRule::kMinSumNormalized:
+        MinSumRow<kLayered, false>(d, x, e0, deg);
+        break;
+      case LdpcFloatRule::kMinSumOffset:
+        MinSumRow<kLayered, true>(d, x, e0, deg);
+        break;
+      case LdpcFloatRule::kSumProduct32:
+        SpaRow<kLayered>(d, x, e0, deg);
+        break;
+    }
+  }
+}
+
+// Flooding: P[v] = L[v] + messages of v, in column order.
+template <class D>
+HWY_NOINLINE void VariablePass(D d, const LdpcGraph& g, const Buffers& b) {
+  const std::size_t lanes = hn::Lanes(d);
+  for (int v = 0; v < g.n; ++v) {
+    const std::size_t row = static_cast<std::size_t>(v) * lanes;
+    auto acc = hn::Load(d, b.l + row);
+    for (int j = g.col_start[v]; j < g.col_start[v + 1]; ++j) {
+      acc = hn::Add(acc, hn::Load(d, b.c + static_cast<std::size_t>(g.col_edge[j]) * lanes));
+    }
+    hn::Store(acc, d, b.p + row);
+  }
+}
+
+// Lanes whose decisions (P < 0) violate some check.
+template <class D>
+HWY_INLINE hn::Mask<D> Unsatisfied(D d, const LdpcGraph& g, const Buffers& b) {
+  const hn::RebindToUnsigned<D> du;
+  const std::size_t lanes = hn::Lanes(d);
+  const auto zero = hn::Zero(d);
+  auto acc = hn::Zero(du);
+  for (int r = 0; r < g.m; ++r) {
+    auto x = hn::Zero(du);
+    for (int e = g.row_start[r]; e < g.row_start[r + 1]; ++e) {
+      const auto pv = hn::Load(d, b.p + static_cast<std::size_t>(g.edge_variable[e]) * lanes);
+      x = hn::Xor(x, hn::BitCast(du, hn::VecFromMask(d, hn::Lt(pv, zero))));
+    }
+    acc = hn::Or(acc, x);
+  }
+  return hn::RebindMask(d, hn::Ne(acc, hn::Zero(du)));
+}
+
+struct LaneState {
+  static constexpr std::size_t kIdle = ~std::size_t{0};
+  std::size_t frame[HWY_MAX_BYTES / 4];
+  int iterations[HWY_MAX_BYTES / 4];
+};
+
+// Lane l takes frame f: L and P set (scaled to bits for sum-product, as the
+// oracle does), messages cleared.
+inline void LoadLane(const LdpcFloatKernelArgs& a, const Buffers& b, std::size_t lanes,
+                     std::size_t l, const float* llr) {
+  const auto n = static_cast<std::size_t>(a.graph.n);
+  const bool bits = a.rule == LdpcFloatRule::kSumProduct32;
+  for (std::size_t v = 0; v < n; ++v) {
+    const float x = bits ? llr[v] * kLdpcSpaLog2e : llr[v];
+    b.l[v * lanes + l] = x;
+    b.p[v * lanes + l] = x;
+  }
+  const auto edges = static_cast<std::size_t>(a.graph.edges);
+  for (std::size_t e = 0; e < edges; ++e) b.c[e * lanes + l] = 0.0f;
+}
+
+// Lane l's frame is done: decisions out, result written, lane idle.
+inline void RetireLane(const LdpcFloatKernelArgs& a, const Buffers& b, std::size_t lanes,
+                       std::size_t l, bool converged, LaneState& st, Bit* decided,
+                       LdpcFrameResult* results) {
+  const auto n = static_cast<std::size_t>(a.graph.n);
+  const std::size_t f = st.frame[l];
+  results[f].iterations = st.iterations[l];
+  results[f].converged = converged;
+  Bit* HWY_RESTRICT out = decided + f * n;
+  const float* HWY_RESTRICT col = b.p + l;
+  for (std::size_t v = 0; v < n; ++v) out[v] = col[v * lanes] < 0.0f ? Bit{1} : Bit{0};
+  st.frame[l] = LaneState::kIdle;
+}
+
+// Decodes all `frames` frames as a stream through the lanes.
+template <class D>
+HWY_INLINE void DecodeStream(D d, const LdpcFloatKernelArgs& a, const float* llrs,
+                             std::size_t frames, Bit* decided, LdpcFrameResult* results,
+                             void* workspace) {
+  const std::size_t lanes = hn::Lanes(d);
+  const LdpcGraph& g = a.graph;
+  const auto n = static_cast<std::size_t>(g.n);
+  const Buffers b = Carve(g, lanes, workspace);
+  const Context<D> ctx = MakeContext(d, a, b);
+  // Defined contents everywhere (idle lanes hold the all-zero codeword with
+  // LLR 1), so no lane ever computes on uninitialised memory.
+  for (std::size_t i = 0; i < n * lanes; ++i) b.l[i] = b.p[i] = 1.0f;
+  std::memset(b.c, 0, static_cast<std::size_t>(g.edges) * lanes * sizeof(float));
+
+  LaneState st;
+  for (std::size_t l = 0; l < lanes; ++l) {
+    st.frame[l] = LaneState::kIdle;
+    st.iterations[l] = 0;
+  }
+  HWY_ALIGN std::uint8_t bits[(HWY_MAX_BYTES / 4 + 7) / 8] = {};
+  const auto bit = [&](std::size_t l) { return ((bits[l / 8] >> (l % 8)) & 1u) != 0; };
+  std::size_t next = 0, busy = 0;
+  // Fills idle lanes; with early stop, frames whose channel word is a
+  // codeword stop at iteration 0 and their lanes are filled again.
+  const auto fill = [&] {
+    while (next < frames && busy < lanes) {
+      bool loaded[HWY_MAX_BYTES / 4] = {};
+      for (std::size_t l = 0; l < lanes && next < frames; ++l) {
+        if (st.frame[l] != LaneState::kIdle) continue;
+        LoadLane(a, b, lanes, l, llrs + next * n);
+        st.frame[l] = next++;
+        st.iterations[l] = 0;
+        loaded[l] = true;
+        ++busy;
+      }
+      if (!a.early_stop) break;
+      hn::StoreMaskBits(d, Unsatisfied(d, g, b), bits);
+      for (std::size_t l = 0; l < lanes; ++l) {
+        if (loaded[l] && !bit(l)) {
+          RetireLane(a, b, lanes, l, true, st, decided, results);
+          --busy;
+        }
+      }
+    }
+  };
+  fill();
+  while (busy > 0) {
+    if (a.layered) {
+      CheckPass<true>(d, ctx);
+    } else {
+      CheckPass<false>(d, ctx);
+      VariablePass(d, g, b);
+    }
+    bool any_maxed = false;
+    for (std::size_t l = 0; l < lanes; ++l) {
+      if (st.frame[l] == LaneState::kIdle) continue;
+      ++st.iterations[l];
+      any_maxed = any_maxed || st.iterations[l] >= a.max_iterations;
+    }
+    if (a.early_stop || any_maxed) {
+      hn::StoreMaskBits(d, Unsatisfied(d, g, b), bits);
+      for (std::size_t l = 0; l < lanes; ++l) {
+        if (st.frame[l] == LaneState::kIdle) continue;
+        const bool satisfied = !bit(l);
+        const bool maxed = st.iterations[l] >= a.max_iterations;
+        if ((a.early_stop && satisfied) || maxed) {
+          RetireLane(a, b, lanes, l, satisfied, st, decided, results);
+          --busy;
+        }
+      }
+    }
+    fill();
+  }
+}
+
+}  // namespace ldpc_float_detail
+
+HWY_INLINE std::size_t LdpcFloatKernelLanes() { return hn::Lanes(hn::ScalableTag<float>()); }
+
+// See LdpcDecodeFloatLanes (ldpc_float_kernels.h): any number of frames,
+// workspace of LdpcFloatWorkspaceBytes(args, LdpcFloatKernelLanes()) bytes.
+// Returns false (doing nothing) if this target does not run the kernel.
+HWY_INLINE bool LdpcDecodeFloatLanesKernel(const LdpcFloatKernelArgs& a, const float* llrs,
+                                           std::size_t frames, Bit* decided,
+                                           LdpcFrameResult* results, void* workspace) {
+  ldpc_float_detail::DecodeStream(hn::ScalableTag<float>(), a, llrs, frames, decided, results,
+                                  workspace);
+  return true;
+}
+
+#else  // HWY_TARGET == HWY_SCALAR
+
+HWY_INLINE std::size_t LdpcFloatKernelLanes() { return 0; }
+HWY_INLINE bool LdpcDecodeFloatLanesKernel(const LdpcFloatKernelArgs&, const float*, std::size_t,
+                                           Bit*, LdpcFrameResult*, void*) {
+  return false;
+}
+
+#endif  // HWY_TARGET != HWY_SCALAR
+
+// NOLINTNEXTLINE(google-readability-namespace-comments)
+}  // namespace HWY_NAMESPACE
+}  // namespace capgap
+HWY_AFTER_NAMESPACE();
+
+#endif  // include guard
