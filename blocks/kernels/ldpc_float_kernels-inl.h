@@ -135,22 +135,48 @@ HWY_INLINE Context<D> MakeContext(D d, const LdpcFloatKernelArgs& a, const Buffe
   return x;
 }
 
+// Per-edge values of one check: kDeg > 0 holds them in registers (the row
+// has exactly kDeg edges and every loop over them unrolls); kDeg == 0 in the
+// scratch row `base` (any degree).
+template <int kDeg, class D>
+struct EdgeValues {
+  using V = hn::Vec<D>;
+  V v[kDeg];
+  EdgeValues(float*, std::size_t) {}
+  HWY_INLINE V Get(D, int k) const { return v[k]; }
+  HWY_INLINE void Put(D, int k, V x) { v[k] = x; }
+};
+template <class D>
+struct EdgeValues<0, D> {
+  using V = hn::Vec<D>;
+  float* HWY_RESTRICT base;
+  std::size_t lanes;
+  EdgeValues(float* b, std::size_t l) : base(b), lanes(l) {}
+  HWY_INLINE V Get(D d, int k) const {
+    return hn::Load(d, base + static_cast<std::size_t>(k) * lanes);
+  }
+  HWY_INLINE void Put(D d, int k, V x) {
+    hn::Store(x, d, base + static_cast<std::size_t>(k) * lanes);
+  }
+};
+
 // Min-sum check update of a row (LdpcFloatRow of ldpc_reference.h):
 // min2 = max(min1, min(min2, |t|)), min1 = min(min1, |t|) from the cap; the
 // sign of every message from the XOR of the sign bits.
-template <bool kLayered, bool kOffset, class D>
+template <int kDeg, bool kLayered, bool kOffset, class D>
 HWY_INLINE void MinSumRow(D d, const Context<D>& x, int e0, int deg) {
   using V = hn::Vec<D>;
   const std::size_t lanes = hn::Lanes(d);
+  const int count = kDeg > 0 ? kDeg : deg;
   const int* HWY_RESTRICT ev = x.a->graph.edge_variable + e0;
   float* HWY_RESTRICT c = x.b.c + static_cast<std::size_t>(e0) * lanes;
-  float* HWY_RESTRICT t = x.b.t;
+  EdgeValues<kDeg, D> t(x.b.t, lanes);
   V min1 = x.cap, min2 = x.cap, s = x.zero;
-  for (int k = 0; k < deg; ++k) {
+  for (int k = 0; k < count; ++k) {
     const std::size_t o = static_cast<std::size_t>(k) * lanes;
     const V tk =
         hn::Sub(hn::Load(d, x.b.p + static_cast<std::size_t>(ev[k]) * lanes), hn::Load(d, c + o));
-    hn::Store(tk, d, t + o);
+    t.Put(d, k, tk);
     const V mag = hn::Abs(tk);
     min2 = hn::Max(min1, hn::Min(min2, mag));
     min1 = hn::Min(min1, mag);
@@ -164,9 +190,9 @@ HWY_INLINE void MinSumRow(D d, const Context<D>& x, int e0, int deg) {
     m1 = hn::Mul(x.alpha, min1);
     m2 = hn::Mul(x.alpha, min2);
   }
-  for (int k = 0; k < deg; ++k) {
+  for (int k = 0; k < count; ++k) {
     const std::size_t o = static_cast<std::size_t>(k) * lanes;
-    const V tk = hn::Load(d, t + o);
+    const V tk = t.Get(d, k);
     const V mag = hn::IfThenElse(hn::Eq(hn::Abs(tk), min1), m2, m1);
     const V cn = hn::Or(mag, hn::And(hn::Xor(tk, s), x.sign));
     hn::Store(cn, d, c + o);
@@ -175,59 +201,58 @@ HWY_INLINE void MinSumRow(D d, const Context<D>& x, int e0, int deg) {
 }
 
 // Float32 sum-product check update of a row (LdpcSpaRow of
-// ldpc_spa_reference.h).
-template <bool kLayered, class D>
+// ldpc_spa_reference.h). The suffix pairs run backwards alongside the
+// outputs, so only t, e and the prefix pairs are kept per edge.
+template <int kDeg, bool kLayered, class D>
 HWY_INLINE void SpaRow(D d, const Context<D>& x, int e0, int deg) {
   using V = hn::Vec<D>;
   const std::size_t lanes = hn::Lanes(d);
+  const int count = kDeg > 0 ? kDeg : deg;
   const int* HWY_RESTRICT ev = x.a->graph.edge_variable + e0;
   float* HWY_RESTRICT c = x.b.c + static_cast<std::size_t>(e0) * lanes;
-  float* HWY_RESTRICT t = x.b.t;
-  float* HWY_RESTRICT e = x.b.e;
-  float* HWY_RESTRICT fa = x.b.fa;
-  float* HWY_RESTRICT fb = x.b.fb;
   const auto row = [lanes](int k) { return static_cast<std::size_t>(k) * lanes; };
+  EdgeValues<kDeg, D> t(x.b.t, lanes), e(x.b.e, lanes), fa(x.b.fa, lanes), fb(x.b.fb, lanes);
   V s = x.zero;
-  for (int k = 0; k < deg; ++k) {
+  for (int k = 0; k < count; ++k) {
     const V tk = hn::Sub(hn::Load(d, x.b.p + row(ev[k])), hn::Load(d, c + row(k)));
-    hn::Store(tk, d, t + row(k));
+    t.Put(d, k, tk);
     s = hn::Xor(s, tk);
-    hn::Store(Exp2(d, hn::Max(hn::Or(tk, x.sign), x.neg_clip)), d, e + row(k));
+    e.Put(d, k, Exp2(d, hn::Max(hn::Or(tk, x.sign), x.neg_clip)));
   }
   const auto emit = [&](int k, V big, V small) {
     const V m = Log2(d, hn::Max(hn::Div(big, small), x.one));
-    const V tk = hn::Load(d, t + row(k));
+    const V tk = t.Get(d, k);
     const V cn = hn::Or(m, hn::And(hn::Xor(tk, s), x.sign));
     hn::Store(cn, d, c + row(k));
     if (kLayered) hn::Store(hn::Add(tk, cn), d, x.b.p + row(ev[k]));
   };
-  if (deg == 1) {
-    const V tk = hn::Load(d, t);
+  if (count == 1) {
+    const V tk = t.Get(d, 0);
     const V cn = hn::Or(x.clip, hn::And(hn::Xor(tk, s), x.sign));
     hn::Store(cn, d, c);
     if (kLayered) hn::Store(hn::Add(tk, cn), d, x.b.p + row(ev[0]));
     return;
   }
-  V a = x.one, b = hn::Load(d, e);
-  hn::Store(a, d, fa + row(1));
-  hn::Store(b, d, fb + row(1));
-  for (int k = 1; k + 1 < deg; ++k) {
-    const V ek = hn::Load(d, e + row(k));
+  V a = x.one, b = e.Get(d, 0);
+  fa.Put(d, 1, a);
+  fb.Put(d, 1, b);
+  for (int k = 1; k + 1 < count; ++k) {
+    const V ek = e.Get(d, k);
     const V na = hn::Add(a, hn::Mul(b, ek));
     const V nb = hn::Add(hn::Mul(a, ek), b);
     a = na;
     b = nb;
-    hn::Store(a, d, fa + row(k + 1));
-    hn::Store(b, d, fb + row(k + 1));
+    fa.Put(d, k + 1, a);
+    fb.Put(d, k + 1, b);
   }
-  emit(deg - 1, a, b);
-  V ga = x.one, gb = hn::Load(d, e + row(deg - 1));
-  for (int k = deg - 2; k >= 1; --k) {
-    const V fak = hn::Load(d, fa + row(k));
-    const V fbk = hn::Load(d, fb + row(k));
+  emit(count - 1, a, b);
+  V ga = x.one, gb = e.Get(d, count - 1);
+  for (int k = count - 2; k >= 1; --k) {
+    const V fak = fa.Get(d, k);
+    const V fbk = fb.Get(d, k);
     emit(k, hn::Add(hn::Mul(fak, ga), hn::Mul(fbk, gb)),
          hn::Add(hn::Mul(fak, gb), hn::Mul(fbk, ga)));
-    const V ek = hn::Load(d, e + row(k));
+    const V ek = e.Get(d, k);
     const V na = hn::Add(ga, hn::Mul(gb, ek));
     const V nb = hn::Add(hn::Mul(ga, ek), gb);
     ga = na;
@@ -236,6 +261,23 @@ HWY_INLINE void SpaRow(D d, const Context<D>& x, int e0, int deg) {
   emit(0, ga, gb);
 }
 
+template <int kDeg, bool kLayered, class D>
+HWY_INLINE void UpdateRow(D d, const Context<D>& x, LdpcFloatRule rule, int e0, int deg) {
+  switch (rule) {
+    case LdpcFloatRule::kMinSumNormalized:
+      MinSumRow<kDeg, kLayered, false>(d, x, e0, deg);
+      break;
+    case LdpcFloatRule::kMinSumOffset:
+      MinSumRow<kDeg, kLayered, true>(d, x, e0, deg);
+      break;
+    case LdpcFloatRule::kSumProduct32:
+      SpaRow<kDeg, kLayered>(d, x, e0, deg);
+      break;
+  }
+}
+
+// Check update of every row; rows of degree 3..8 (the (3,6) codes, the
+// rate-1/2 QC codes) take the unrolled register version.
 template <bool kLayered, class D>
 HWY_NOINLINE void CheckPass(D d, const Context<D>& shared) {
   const Context<D> x = shared;
@@ -245,15 +287,27 @@ HWY_NOINLINE void CheckPass(D d, const Context<D>& shared) {
   for (int r = 0; r < g.m; ++r) {
     const int e0 = row_start[r];
     const int deg = row_start[r + 1] - e0;
-    switch (rule) {
-      case LdpcFloatRule::kMinSumNormalized:
-        MinSumRow<kLayered, false>(d, x, e0, deg);
+    switch (deg) {
+      case 3:
+        UpdateRow<3, kLayered>(d, x, rule, e0, deg);
         break;
-      case LdpcFloatRule::kMinSumOffset:
-        MinSumRow<kLayered, true>(d, x, e0, deg);
+      case 4:
+        UpdateRow<4, kLayered>(d, x, rule, e0, deg);
         break;
-      case LdpcFloatRule::kSumProduct32:
-        SpaRow<kLayered>(d, x, e0, deg);
+      case 5:
+        UpdateRow<5, kLayered>(d, x, rule, e0, deg);
+        break;
+      case 6:
+        UpdateRow<6, kLayered>(d, x, rule, e0, deg);
+        break;
+      case 7:
+        UpdateRow<7, kLayered>(d, x, rule, e0, deg);
+        break;
+      case 8:
+        UpdateRow<8, kLayered>(d, x, rule, e0, deg);
+        break;
+      default:
+        UpdateRow<0, kLayered>(d, x, rule, e0, deg);
         break;
     }
   }
