@@ -191,7 +191,7 @@ LdpcDecoder::Workspace LdpcDecoder::MakeWorkspace() const {
     const std::size_t lanes = LdpcFixedMaxLanes(fixed_args_.lane);
     ws.fixed_.resize(LdpcFixedWorkspaceBytes(fixed_args_, lanes));
   } else if (float_lanes_) {
-    ws.lanes_.resize(LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes()));
+    ws.lanes_.resize(LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes(float_args_.rule)));
   } else {
     ws.float_.resize(reference::LdpcFloatFrameWorkspaceFloats(g));
     ws.double_.resize(reference::LdpcFloatFrameWorkspaceDoubles(g));
@@ -200,7 +200,7 @@ LdpcDecoder::Workspace LdpcDecoder::MakeWorkspace() const {
 }
 
 int LdpcDecoder::batch_frames() const {
-  if (float_lanes_) return static_cast<int>(LdpcFloatLanes());
+  if (float_lanes_) return static_cast<int>(LdpcFloatLanes(float_args_.rule));
   return fixed_ ? static_cast<int>(LdpcFixedLanes(fixed_args_.lane)) : 1;
 }
 
@@ -208,8 +208,8 @@ std::string LdpcDecoder::kernel_target() const {
   if (float_lanes_) {
     const std::string type =
         float_args_.rule == LdpcFloatRule::kSumProduct32 ? "float32" : "float";
-    const std::size_t lanes = LdpcFloatLanes();
-    const std::string target = LdpcFloatKernelTarget();
+    const std::size_t lanes = LdpcFloatLanes(float_args_.rule);
+    const std::string target = LdpcFloatKernelTarget(float_args_.rule);
     if (lanes <= 1 || target == "SCALAR") return "scalar " + type;
     return target + " " + type + " x" + std::to_string(lanes) + " lanes";
   }
@@ -236,7 +236,8 @@ void LdpcDecoder::Decode(std::span<const float> llrs, std::span<Bit> decided,
     return;
   }
   if (float_lanes_) {
-    CAPGAP_DCHECK(ws.lanes_.size() == LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes()));
+    CAPGAP_DCHECK(ws.lanes_.size() ==
+                  LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes(float_args_.rule)));
     LdpcDecodeFloatLanes(float_args_, llrs.data(), frames, decided.data(), results.data(),
                          ws.lanes_.data());
     return;

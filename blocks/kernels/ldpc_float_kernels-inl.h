@@ -5,7 +5,9 @@
 // the benchmark, which call capgap::HWY_NAMESPACE::LdpcDecodeFloatLanesKernel
 // directly. The oracles (ldpc_reference.h for min-sum, ldpc_spa_reference.h
 // for sum-product) perform the same float operations in the same order per
-// lane; including files are compiled with -ffp-contract=off.
+// lane, fused multiply-adds where the oracle writes std::fma (sum-product
+// only, on targets with a native one); including files are compiled with
+// -ffp-contract=off.
 //
 // Layout: rows of B = Lanes(ScalableTag<float>) floats, L[n], P[n], c[E], then
 // scratch rows for one check (t, e, F_a, F_b: 4 max_row_degree rows), all in
@@ -84,10 +86,10 @@ HWY_INLINE hn::Vec<D> Exp2(D d, hn::Vec<D> y) {
   const auto n = hn::Sub(r, magic);
   const auto f = hn::Sub(y, n);
   auto q = hn::Set(d, kLdpcSpaExp2C3);
-  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C2));
-  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C1));
-  q = hn::Add(hn::Mul(q, f), hn::Set(d, kLdpcSpaExp2C0));
-  const auto p = hn::Add(hn::Mul(q, f), hn::Set(d, 1.0f));
+  q = hn::MulAdd(q, f, hn::Set(d, kLdpcSpaExp2C2));
+  q = hn::MulAdd(q, f, hn::Set(d, kLdpcSpaExp2C1));
+  q = hn::MulAdd(q, f, hn::Set(d, kLdpcSpaExp2C0));
+  const auto p = hn::MulAdd(q, f, hn::Set(d, 1.0f));
   const auto shift = hn::ShiftLeft<23>(hn::BitCast(du, r));
   return hn::BitCast(d, hn::Add(hn::BitCast(du, p), shift));
 }
@@ -102,12 +104,12 @@ HWY_INLINE hn::Vec<D> Log2(D d, hn::Vec<D> r) {
   const auto m = hn::BitCast(d, hn::Sub(u, hn::ShiftLeft<23>(k)));
   const auto x = hn::Sub(m, hn::Set(d, 1.0f));
   auto q = hn::Set(d, kLdpcSpaLog2D5);
-  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D4));
-  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D3));
-  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D2));
-  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D1));
-  q = hn::Add(hn::Mul(q, x), hn::Set(d, kLdpcSpaLog2D0));
-  return hn::Add(hn::ConvertTo(d, hn::BitCast(di, k)), hn::Mul(x, q));
+  q = hn::MulAdd(q, x, hn::Set(d, kLdpcSpaLog2D4));
+  q = hn::MulAdd(q, x, hn::Set(d, kLdpcSpaLog2D3));
+  q = hn::MulAdd(q, x, hn::Set(d, kLdpcSpaLog2D2));
+  q = hn::MulAdd(q, x, hn::Set(d, kLdpcSpaLog2D1));
+  q = hn::MulAdd(q, x, hn::Set(d, kLdpcSpaLog2D0));
+  return hn::MulAdd(x, q, hn::ConvertTo(d, hn::BitCast(di, k)));
 }
 
 // Constants of one call. Copied to a local in the pass (the stores go
@@ -239,8 +241,8 @@ HWY_INLINE void SpaRow(D d, const Context<D>& x, int e0, int deg) {
   fb.Put(d, 1, b);
   for (int k = 1; k + 1 < count; ++k) {
     const V ek = e.Get(d, k);
-    const V na = hn::Add(a, hn::Mul(b, ek));
-    const V nb = hn::Add(hn::Mul(a, ek), b);
+    const V na = hn::MulAdd(b, ek, a);
+    const V nb = hn::MulAdd(a, ek, b);
     a = na;
     b = nb;
     fa.Put(d, k + 1, a);
@@ -251,11 +253,10 @@ HWY_INLINE void SpaRow(D d, const Context<D>& x, int e0, int deg) {
   for (int k = count - 2; k >= 1; --k) {
     const V fak = fa.Get(d, k);
     const V fbk = fb.Get(d, k);
-    emit(k, hn::Add(hn::Mul(fak, ga), hn::Mul(fbk, gb)),
-         hn::Add(hn::Mul(fak, gb), hn::Mul(fbk, ga)));
+    emit(k, hn::MulAdd(fak, ga, hn::Mul(fbk, gb)), hn::MulAdd(fak, gb, hn::Mul(fbk, ga)));
     const V ek = e.Get(d, k);
-    const V na = hn::Add(ga, hn::Mul(gb, ek));
-    const V nb = hn::Add(hn::Mul(ga, ek), gb);
+    const V na = hn::MulAdd(gb, ek, ga);
+    const V nb = hn::MulAdd(ga, ek, gb);
     ga = na;
     gb = nb;
   }
@@ -499,14 +500,22 @@ HWY_INLINE void DecodeStream(D d, const LdpcFloatKernelArgs& a, const float* llr
 
 }  // namespace ldpc_float_detail
 
-HWY_INLINE std::size_t LdpcFloatKernelLanes() { return hn::Lanes(hn::ScalableTag<float>()); }
+// Lanes of the kernel for `rule` on this target; 0 when the oracle runs
+// instead (float32 sum-product needs a native fused multiply-add, see
+// ldpc_spa_reference.h).
+HWY_INLINE std::size_t LdpcFloatKernelLanes(LdpcFloatRule rule) {
+  if (rule == LdpcFloatRule::kSumProduct32 && !HWY_NATIVE_FMA) return 0;
+  return hn::Lanes(hn::ScalableTag<float>());
+}
 
 // See LdpcDecodeFloatLanes (ldpc_float_kernels.h): any number of frames,
-// workspace of LdpcFloatWorkspaceBytes(args, LdpcFloatKernelLanes()) bytes.
-// Returns false (doing nothing) if this target does not run the kernel.
+// workspace of LdpcFloatWorkspaceBytes(args, LdpcFloatKernelLanes(rule))
+// bytes. Returns false (doing nothing) if this target does not run the
+// kernel for the rule.
 HWY_INLINE bool LdpcDecodeFloatLanesKernel(const LdpcFloatKernelArgs& a, const float* llrs,
                                            std::size_t frames, Bit* decided,
                                            LdpcFrameResult* results, void* workspace) {
+  if (LdpcFloatKernelLanes(a.rule) == 0) return false;
   ldpc_float_detail::DecodeStream(hn::ScalableTag<float>(), a, llrs, frames, decided, results,
                                   workspace);
   return true;
@@ -514,7 +523,7 @@ HWY_INLINE bool LdpcDecodeFloatLanesKernel(const LdpcFloatKernelArgs& a, const f
 
 #else  // HWY_TARGET == HWY_SCALAR
 
-HWY_INLINE std::size_t LdpcFloatKernelLanes() { return 0; }
+HWY_INLINE std::size_t LdpcFloatKernelLanes(LdpcFloatRule) { return 0; }
 HWY_INLINE bool LdpcDecodeFloatLanesKernel(const LdpcFloatKernelArgs&, const float*, std::size_t,
                                            Bit*, LdpcFrameResult*, void*) {
   return false;

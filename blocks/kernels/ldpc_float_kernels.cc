@@ -35,7 +35,7 @@ bool LdpcFloatDecodeEntry(const LdpcFloatKernelArgs& args, const float* llrs, st
                           Bit* decided, LdpcFrameResult* results, void* workspace) {
   return LdpcDecodeFloatLanesKernel(args, llrs, frames, decided, results, workspace);
 }
-std::size_t LdpcFloatLanesEntry() { return LdpcFloatKernelLanes(); }
+std::size_t LdpcFloatLanesEntry(LdpcFloatRule rule) { return LdpcFloatKernelLanes(rule); }
 
 }  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -48,19 +48,25 @@ namespace capgap {
 struct LdpcFloatTable {
   bool (*decode)(const LdpcFloatKernelArgs&, const float*, std::size_t, Bit*, LdpcFrameResult*,
                  void*);
-  std::size_t lanes;  // 0: the target does not run the kernel
+  std::size_t lanes;      // min-sum; 0: the target does not run the kernel
+  std::size_t spa_lanes;  // float32 sum-product (0 without a native FMA)
+  std::size_t Lanes(LdpcFloatRule rule) const {
+    return rule == LdpcFloatRule::kSumProduct32 ? spa_lanes : lanes;
+  }
   static LdpcFloatTable Resolve();
 };
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(LdpcFloatDecodeEntry);
 HWY_EXPORT(LdpcFloatLanesEntry);
 LdpcFloatTable LdpcFloatTable::Resolve() {
-  return {&HWY_DYNAMIC_DISPATCH(LdpcFloatDecodeEntry), HWY_DYNAMIC_DISPATCH(LdpcFloatLanesEntry)()};
+  return {&HWY_DYNAMIC_DISPATCH(LdpcFloatDecodeEntry),
+          HWY_DYNAMIC_DISPATCH(LdpcFloatLanesEntry)(LdpcFloatRule::kMinSumNormalized),
+          HWY_DYNAMIC_DISPATCH(LdpcFloatLanesEntry)(LdpcFloatRule::kSumProduct32)};
 }
 static const auto& Chosen() { return kernel_dispatch::ChosenKernels<LdpcFloatTable>(); }
 
 namespace {
-bool UseSimd() { return !ScalarKernelsForced() && Chosen().lanes > 0; }
+bool UseSimd(LdpcFloatRule rule) { return !ScalarKernelsForced() && Chosen().Lanes(rule) > 0; }
 }  // namespace
 #endif  // CAPGAP_FORCE_SCALAR
 
@@ -89,17 +95,19 @@ std::size_t OracleBytes(const LdpcGraph& g) {
 
 }  // namespace
 
-std::size_t LdpcFloatMaxLanes() {
+std::size_t LdpcFloatMaxLanes(LdpcFloatRule rule) {
 #ifndef CAPGAP_FORCE_SCALAR
-  if (Chosen().lanes > 0) return Chosen().lanes;
+  if (Chosen().Lanes(rule) > 0) return Chosen().Lanes(rule);
 #endif
+  (void)rule;
   return 1;
 }
 
-std::size_t LdpcFloatLanes() {
+std::size_t LdpcFloatLanes(LdpcFloatRule rule) {
 #ifndef CAPGAP_FORCE_SCALAR
-  if (UseSimd()) return Chosen().lanes;
+  if (UseSimd(rule)) return Chosen().Lanes(rule);
 #endif
+  (void)rule;
   return 1;
 }
 
@@ -117,7 +125,9 @@ void LdpcDecodeFloatLanes(const LdpcFloatKernelArgs& args, const float* llrs, st
   CAPGAP_DCHECK(args.rule != LdpcFloatRule::kSumProduct32 ||
                 args.graph.max_row_degree <= kLdpcSpaMaxRowDegree);
 #ifndef CAPGAP_FORCE_SCALAR
-  if (UseSimd() && Chosen().decode(args, llrs, frames, decided, results, workspace)) return;
+  if (UseSimd(args.rule) && Chosen().decode(args, llrs, frames, decided, results, workspace)) {
+    return;
+  }
 #endif
   // The oracles, frame by frame, in the (aligned) start of the workspace.
   const LdpcGraph& g = args.graph;
@@ -144,9 +154,9 @@ void LdpcDecodeFloatLanes(const LdpcFloatKernelArgs& args, const float* llrs, st
   }
 }
 
-const char* LdpcFloatKernelTarget() {
+const char* LdpcFloatKernelTarget(LdpcFloatRule rule) {
   return kernel_dispatch::KernelTargetName<LdpcFloatTable>(
-      [](const LdpcFloatTable& t) { return t.lanes > 0; });
+      [rule](const LdpcFloatTable& t) { return t.Lanes(rule) > 0; });
 }
 
 }  // namespace capgap

@@ -6,7 +6,7 @@
 //
 // Oracles, matched bit for bit by every target (decisions, iteration counts,
 // convergence flags; compiled with -ffp-contract=off, so no multiply and add
-// are fused anywhere):
+// are fused but those the sum-product oracle writes as std::fma):
 //  * min-sum (both rules): reference::LdpcDecodeFloatFrame of
 //    ldpc_reference.h, the float min-sum decoder the project had before this
 //    kernel, operation for operation (t = P - c, the two smallest |t| from a
@@ -61,12 +61,13 @@ struct LdpcFloatKernelArgs {
 // 2^(degree - 1); ldpc_spa_reference.h).
 constexpr int kLdpcSpaMaxRowDegree = 128;
 
-// Frames the dispatched kernel decodes at once; 1 when the scalar path runs
-// (forced, or no SIMD target).
-std::size_t LdpcFloatLanes();
-// The dispatched target's lanes whether or not the scalar path is forced (1
-// without a SIMD target). Size workspaces with it.
-std::size_t LdpcFloatMaxLanes();
+// Frames the dispatched kernel decodes at once for `rule`; 1 when the scalar
+// path runs (forced, no SIMD target, or for kSumProduct32 a target without a
+// native fused multiply-add: SSE4, SSSE3, EMU128; ldpc_spa_reference.h).
+std::size_t LdpcFloatLanes(LdpcFloatRule rule);
+// The dispatched target's lanes for `rule` whether or not the scalar path is
+// forced (1 when it has none). Size workspaces with it.
+std::size_t LdpcFloatMaxLanes(LdpcFloatRule rule);
 
 // Bytes of workspace LdpcDecodeFloatLanes needs when the kernel has `lanes`
 // lanes, on any path (includes 64 bytes of alignment slack).
@@ -74,14 +75,16 @@ std::size_t LdpcFloatWorkspaceBytes(const LdpcFloatKernelArgs& args, std::size_t
 
 // Decodes `frames` >= 1 frames. llrs: frames * n channel LLRs, frame-major.
 // decided: frames * n bits; results: one per frame. workspace:
-// LdpcFloatWorkspaceBytes(args, LdpcFloatMaxLanes()) bytes, any alignment.
+// LdpcFloatWorkspaceBytes(args, LdpcFloatMaxLanes(args.rule)) bytes, any
+// alignment.
 // REQUIRES: kSumProduct32 only with max_row_degree <= kLdpcSpaMaxRowDegree.
 // No allocation.
 void LdpcDecodeFloatLanes(const LdpcFloatKernelArgs& args, const float* llrs, std::size_t frames,
                           Bit* decided, LdpcFrameResult* results, void* workspace);
 
-// Instruction set LdpcDecodeFloatLanes runs ("AVX3", ..., "SCALAR").
-const char* LdpcFloatKernelTarget();
+// Instruction set LdpcDecodeFloatLanes runs for `rule` ("AVX3", ...,
+// "SCALAR").
+const char* LdpcFloatKernelTarget(LdpcFloatRule rule);
 
 }  // namespace capgap
 

@@ -760,9 +760,10 @@ TEST(LdpcDecoder, FloatMinSumRunsTheLaneKernelWithTheScalarDecodersResults) {
       SCOPED_TRACE(Name({alg, sched, LdpcArithmetic::kFloat}));
       EXPECT_TRUE(dec.float_lanes());
       EXPECT_FALSE(dec.fixed_point());
-      EXPECT_EQ(dec.batch_frames(), static_cast<int>(LdpcFloatLanes()));
+      EXPECT_EQ(dec.batch_frames(), static_cast<int>(LdpcFloatLanes(dec.float_args().rule)));
       if (dec.batch_frames() > 1) {
-        EXPECT_EQ(dec.kernel_target(), std::string(LdpcFloatKernelTarget()) + " float x" +
+        EXPECT_EQ(dec.kernel_target(), std::string(LdpcFloatKernelTarget(dec.float_args().rule)) +
+                                           " float x" +
                                            std::to_string(dec.batch_frames()) + " lanes");
       } else {
         EXPECT_EQ(dec.kernel_target(), "scalar float");
@@ -824,7 +825,7 @@ TEST(LdpcDecoder, Float32WordsAndLimits) {
   const LdpcDecoder sp = LdpcDecoder::Create(code, o).value();
   EXPECT_TRUE(sp.float_lanes());
   EXPECT_EQ(sp.float_args().rule, LdpcFloatRule::kSumProduct32);
-  EXPECT_EQ(sp.batch_frames(), static_cast<int>(LdpcFloatLanes()));
+  EXPECT_EQ(sp.batch_frames(), static_cast<int>(LdpcFloatLanes(LdpcFloatRule::kSumProduct32)));
   EXPECT_NE(sp.kernel_target().find("float32"), std::string::npos) << sp.kernel_target();
   for (int degree : {128, 129}) {
     std::vector<int> row(static_cast<std::size_t>(degree));

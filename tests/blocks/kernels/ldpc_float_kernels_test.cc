@@ -10,7 +10,8 @@
 // mixed Eb/N0, pure noise, words with extreme values (+-1e30, +-3e38,
 // signed zeros), all-erased words (every LLR +0 or -0) and saturated
 // codewords. Also per target: the vector exp2 and log2 against the scalar
-// twins on awkward lengths with misaligned starts. Compiled with
+// twins on awkward lengths with misaligned starts (targets with a native
+// fused multiply-add, the ones that run sum-product). Compiled with
 // -ffp-contract=off, like the kernel.
 #include <algorithm>
 #include <bit>
@@ -37,12 +38,13 @@ bool DecodeUnderTest(const LdpcFloatKernelArgs& args, const float* llrs, std::si
                      Bit* decided, LdpcFrameResult* results, void* ws) {
   return LdpcDecodeFloatLanesKernel(args, llrs, frames, decided, results, ws);
 }
-std::size_t LanesUnderTest() { return LdpcFloatKernelLanes(); }
+std::size_t LanesUnderTest(LdpcFloatRule rule) { return LdpcFloatKernelLanes(rule); }
 std::int64_t TargetUnderTest() { return HWY_TARGET; }
 // which = 0: exp2, 1: log2 of x[0..len) into out (whole vectors, then the
-// tail through a padded vector). False on HWY_SCALAR.
+// tail through a padded vector). False on HWY_SCALAR and on targets without
+// a native fused multiply-add (they leave sum-product to the oracle).
 bool MathUnderTest(int which, const float* x, std::size_t len, float* out) {
-#if HWY_TARGET == HWY_SCALAR
+#if HWY_TARGET == HWY_SCALAR || !HWY_NATIVE_FMA
   (void)which, (void)x, (void)len, (void)out;
   return false;
 #else
@@ -88,7 +90,7 @@ HWY_EXPORT(MathUnderTest);
 
 // The library picks its target once, on first use: make that happen before
 // any test below mocks the CPU's target list.
-const char* const kLibraryTarget = LdpcFloatKernelTarget();
+const char* const kLibraryTarget = LdpcFloatKernelTarget(LdpcFloatRule::kSumProduct32);
 
 using testing_codes::RegularRows;
 
@@ -252,7 +254,7 @@ TEST_P(LdpcFloatKernelPerTarget, DispatchReachesTheTargetUnderTest) {
 }
 
 TEST_P(LdpcFloatKernelPerTarget, DecodeMatchesReferenceBitForBit) {
-  const std::size_t lanes = HWY_DYNAMIC_DISPATCH(LanesUnderTest)();
+  const std::size_t lanes = HWY_DYNAMIC_DISPATCH(LanesUnderTest)(LdpcFloatRule::kMinSumNormalized);
   if (lanes == 0) GTEST_SKIP() << "target leaves the kernel to the oracle";
   ASSERT_GE(lanes, 2u);
   const std::size_t pool = 3 * lanes + 5;  // the big odd count
@@ -262,6 +264,15 @@ TEST_P(LdpcFloatKernelPerTarget, DecodeMatchesReferenceBitForBit) {
     const std::vector<float> llr = MakeFrames(code->length(), pool, 99u + n);
     for (LdpcFloatRule rule : {LdpcFloatRule::kMinSumNormalized, LdpcFloatRule::kMinSumOffset,
                                LdpcFloatRule::kSumProduct32}) {
+      const std::size_t rule_lanes = HWY_DYNAMIC_DISPATCH(LanesUnderTest)(rule);
+      if (rule_lanes == 0) {
+        // No native FMA: the oracle runs instead, and the kernel refuses.
+        ASSERT_EQ(rule, LdpcFloatRule::kSumProduct32);
+        Outcome got;
+        EXPECT_FALSE(KernelOutcome(ArgsFor(*code, rule, 3), llr, 1, lanes, got));
+        continue;
+      }
+      ASSERT_EQ(rule_lanes, lanes);
       for (int variant = 0; variant < 4; ++variant) {
         const LdpcFloatKernelArgs a = ArgsFor(*code, rule, variant);
         const Outcome want = ReferenceOutcome(a, llr, pool);
@@ -400,19 +411,19 @@ TEST(LdpcSpaReference, RowMatchesTheTanhRule) {
 TEST(LdpcFloatKernel, PublicEntryMatchesReferenceDispatchedAndForcedScalar) {
   const LdpcCode& code = TestCodes().irregular;
   const auto n = static_cast<std::size_t>(code.length());
-  const std::size_t lanes = LdpcFloatMaxLanes();
-  EXPECT_GE(lanes, 1u);
-  const std::size_t count = 2 * lanes + 1;
-  const std::vector<float> llr = MakeFrames(code.length(), count, 4u);
   for (LdpcFloatRule rule : {LdpcFloatRule::kMinSumNormalized, LdpcFloatRule::kSumProduct32}) {
+    const std::size_t lanes = LdpcFloatMaxLanes(rule);
+    EXPECT_GE(lanes, 1u);
+    const std::size_t count = 2 * lanes + 1;
+    const std::vector<float> llr = MakeFrames(code.length(), count, 4u);
     const LdpcFloatKernelArgs a = ArgsFor(code, rule, 3);
     const Outcome want = ReferenceOutcome(a, llr, count);
     std::vector<std::uint8_t> ws(LdpcFloatWorkspaceBytes(a, lanes) + 3);
     for (bool force : {false, true}) {
       const bool prev = ForceScalarKernels(force);
-      EXPECT_EQ(LdpcFloatLanes(), force ? 1u : lanes);
+      EXPECT_EQ(LdpcFloatLanes(rule), force ? 1u : lanes);
       if (force) {
-        EXPECT_STREQ(LdpcFloatKernelTarget(), "SCALAR");
+        EXPECT_STREQ(LdpcFloatKernelTarget(rule), "SCALAR");
       }
       std::vector<Bit> decided(count * n, 7);
       std::vector<LdpcFrameResult> results(count, LdpcFrameResult{-1, true});
