@@ -61,8 +61,10 @@
 //  * float32, sum-product: the float kernel's own float32 rule
 //    (blocks/kernels/ldpc_spa_reference.h: probability-domain pairs,
 //    polynomial exp2/log2, messages to 43 bits = 29.8 LLR), frames across
-//    the float lanes, bit-exact with its scalar oracle on every target and
-//    some 30x faster than the double path; its decisions differ from the
+//    the float lanes (on targets with a native fused multiply-add; the
+//    oracle elsewhere), bit-exact with its scalar oracle on every target and
+//    about 58x faster than the double path (tests/bench/ldpc_bench.cc,
+//    docs/performance_notes.md); its decisions differ from the
 //    double path's in rare frames (a different rounding of the same
 //    algorithm), so it is a value of its own. Float32 with min-sum is the
 //    same decoder as float. Refused for codes with a check of degree above
