@@ -9,7 +9,9 @@
 // rows of degree 1 to 9. Frames: the all-zero codeword through BPSK/AWGN at
 // mixed Eb/N0, pure noise, words with extreme values (+-1e30, +-3e38,
 // signed zeros), all-erased words (every LLR +0 or -0) and saturated
-// codewords. Also per target: the vector exp2 and log2 against the scalar
+// codewords. Per target too: every message and posterior of a check pass
+// bit for bit against the oracles' row updates (rows of degree 1..12 and
+// 20); the vector exp2 and log2 against the scalar
 // twins on awkward lengths with misaligned starts (targets with a native
 // fused multiply-add, the ones that run sum-product). Compiled with
 // -ffp-contract=off, like the kernel.
@@ -64,6 +66,34 @@ bool MathUnderTest(int which, const float* x, std::size_t len, float* out) {
   return true;
 #endif
 }
+// One check pass (every row of a.graph, a.rule, a.layered) on given
+// lane-interleaved posteriors and messages (n and E rows of `lanes` floats),
+// written back in place. False if the target does not run the rule.
+bool CheckPassUnderTest(const LdpcFloatKernelArgs& a, float* p_rows, float* c_rows) {
+#if HWY_TARGET == HWY_SCALAR
+  (void)a, (void)p_rows, (void)c_rows;
+  return false;
+#else
+  if (LdpcFloatKernelLanes(a.rule) == 0) return false;
+  const hn::ScalableTag<float> d;
+  const std::size_t lanes = hn::Lanes(d);
+  std::vector<std::uint8_t> ws(LdpcFloatWorkspaceBytes(a, lanes));
+  const ldpc_float_detail::Buffers b = ldpc_float_detail::Carve(a.graph, lanes, ws.data());
+  const auto n = static_cast<std::size_t>(a.graph.n);
+  const auto edges = static_cast<std::size_t>(a.graph.edges);
+  std::copy(p_rows, p_rows + n * lanes, b.p);
+  std::copy(c_rows, c_rows + edges * lanes, b.c);
+  const auto ctx = ldpc_float_detail::MakeContext(d, a, b);
+  if (a.layered) {
+    ldpc_float_detail::CheckPass<true>(d, ctx);
+  } else {
+    ldpc_float_detail::CheckPass<false>(d, ctx);
+  }
+  std::copy(b.p, b.p + n * lanes, p_rows);
+  std::copy(b.c, b.c + edges * lanes, c_rows);
+  return true;
+#endif
+}
 // NOLINTNEXTLINE(google-readability-namespace-comments)
 }  // namespace HWY_NAMESPACE
 }  // namespace capgap
@@ -87,6 +117,7 @@ HWY_EXPORT(DecodeUnderTest);
 HWY_EXPORT(LanesUnderTest);
 HWY_EXPORT(TargetUnderTest);
 HWY_EXPORT(MathUnderTest);
+HWY_EXPORT(CheckPassUnderTest);
 
 // The library picks its target once, on first use: make that happen before
 // any test below mocks the CPU's target list.
@@ -301,6 +332,88 @@ TEST_P(LdpcFloatKernelPerTarget, DecodeMatchesReferenceBitForBit) {
   // The comparison must have seen frames stop late and frames fail.
   EXPECT_GT(frames_converged_late, 40);
   EXPECT_GT(frames_failed, 40);
+}
+
+// Every message and posterior of one check pass, bit for bit, per lane
+// against the oracles' row updates (ldpc_spa_reference.h LdpcSpaRow,
+// ldpc_reference.h LdpcFloatRow): rows of every degree 1..12 (the unrolled
+// 3..8 and the generic path) and 20, posteriors and messages drawn per lane
+// (magnitudes from 1e-3 to 60 bits, some beyond the clip, signed zeros, ties
+// of |t| for min-sum). Decisions alone can miss a single rounding (one
+// reordered product changed no decision on AVX2 in
+// DecodeMatchesReferenceBitForBit); this compares the floats.
+TEST_P(LdpcFloatKernelPerTarget, CheckPassMatchesReferenceRowsBitForBit) {
+  const std::size_t lanes = HWY_DYNAMIC_DISPATCH(LanesUnderTest)(LdpcFloatRule::kMinSumNormalized);
+  if (lanes == 0) GTEST_SKIP() << "target leaves the kernel to the oracle";
+  // Rows: degrees 1..12 and 20 over 60 variables, variables spread.
+  std::vector<std::vector<int>> rows;
+  int next = 0;
+  for (int deg : {1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 20, 6, 3}) {
+    std::vector<int> row;
+    for (int k = 0; k < deg; ++k) row.push_back((next + 7 * k) % 60);
+    std::sort(row.begin(), row.end());
+    row.erase(std::unique(row.begin(), row.end()), row.end());
+    rows.push_back(row);
+    next += 11;
+  }
+  const LdpcCode code = LdpcCode::FromRows(60, rows).value();
+  const auto n = static_cast<std::size_t>(code.length());
+  const auto edges = static_cast<std::size_t>(code.edges());
+  std::mt19937_64 rng(21u);
+  std::vector<float> p(n * lanes), c(edges * lanes);
+  const auto draw = [&](bool ties) {
+    const int pick = static_cast<int>(rng() % 16);
+    if (pick == 0) return 0.0f;
+    if (pick == 1) return -0.0f;
+    if (ties && pick < 5) return (rng() & 1) ? 1.5f : -1.5f;
+    const float mag = std::exp2(static_cast<float>(rng() % 16000) / 1000.0f - 10.0f);
+    return (rng() & 1) ? mag : -mag;  // 1e-3 .. 64
+  };
+  for (LdpcFloatRule rule : {LdpcFloatRule::kMinSumNormalized, LdpcFloatRule::kMinSumOffset,
+                             LdpcFloatRule::kSumProduct32}) {
+    for (bool layered : {false, true}) {
+      SCOPED_TRACE(testing::Message() << "rule=" << static_cast<int>(rule) << " layered=" << layered);
+      LdpcFloatKernelArgs a = ArgsFor(code, rule, layered ? 1 : 0);
+      const bool ties = rule != LdpcFloatRule::kSumProduct32;
+      for (float& x : p) x = draw(ties);
+      for (float& x : c) x = draw(ties) * 0.5f;
+      std::vector<float> gp = p, gc = c;
+      if (!HWY_DYNAMIC_DISPATCH(CheckPassUnderTest)(a, gp.data(), gc.data())) {
+        ASSERT_EQ(rule, LdpcFloatRule::kSumProduct32);
+        continue;
+      }
+      reference::LdpcFloatArgs ms;
+      ms.graph = a.graph;
+      ms.rule = rule == LdpcFloatRule::kMinSumOffset ? LdpcCheckRule::kMinSumOffset
+                                                     : LdpcCheckRule::kMinSumNormalized;
+      ms.layered = layered;
+      ms.normalization = a.normalization;
+      ms.offset = a.offset;
+      std::vector<float> scratch(4 * static_cast<std::size_t>(a.graph.max_row_degree));
+      std::vector<double> dscratch(3 * static_cast<std::size_t>(a.graph.max_row_degree));
+      for (std::size_t l = 0; l < lanes; ++l) {
+        std::vector<float> lp(n), lc(edges);
+        for (std::size_t v = 0; v < n; ++v) lp[v] = p[v * lanes + l];
+        for (std::size_t e = 0; e < edges; ++e) lc[e] = c[e * lanes + l];
+        for (int r = 0; r < a.graph.m; ++r) {
+          if (rule == LdpcFloatRule::kSumProduct32) {
+            reference::LdpcSpaRow(a, r, lp.data(), lc.data(), scratch.data());
+          } else {
+            reference::LdpcFloatRow(ms, r, lp.data(), lc.data(), scratch.data(), dscratch.data(),
+                                    dscratch.data(), dscratch.data());
+          }
+        }
+        for (std::size_t e = 0; e < edges; ++e) {
+          ASSERT_EQ(std::bit_cast<std::uint32_t>(gc[e * lanes + l]), std::bit_cast<std::uint32_t>(lc[e]))
+              << "lane " << l << " edge " << e << ": " << gc[e * lanes + l] << " vs " << lc[e];
+        }
+        for (std::size_t v = 0; v < n; ++v) {
+          ASSERT_EQ(std::bit_cast<std::uint32_t>(gp[v * lanes + l]), std::bit_cast<std::uint32_t>(lp[v]))
+              << "lane " << l << " variable " << v;
+        }
+      }
+    }
+  }
 }
 
 // Inputs of exp2: the whole range [-43, 0] on a grid, every half-integer
