@@ -13,10 +13,11 @@
 // scratch rows for one check (t, e, F_a, F_b: 4 max_row_degree rows), all in
 // a 64-byte aligned workspace. A check's edges are consecutive rows of c and
 // its posteriors whole rows of P, so every access is an aligned vector load
-// or store. The check pass keeps its per-edge values in the scratch rows (L1)
-// rather than in registers: the pass is bound by vector arithmetic (ports
-// shared by every vector operation), not by loads and stores, which have
-// ports of their own; one code path serves every degree.
+// or store. Rows of degree 3..8 keep their per-edge values (t, and for
+// sum-product e and the prefix pairs) in registers, fully unrolled; other
+// degrees keep them in the scratch rows (L1). The unrolling gained about
+// 10 %: the pass is bound by vector arithmetic, not by loads and stores
+// (docs/performance_notes.md, "LDPC float lane kernel").
 //
 // Streaming: after every iteration the lanes whose frames stop hand out
 // their decisions and take the next frames at once, all of them in one pass
