@@ -81,8 +81,9 @@ Result<LdpcArithmetic> ParseLdpcArithmetic(std::string_view word) {
   if (word == "int8") return LdpcArithmetic::kInt8;
   if (word == "int16") return LdpcArithmetic::kInt16;
   if (word == "float") return LdpcArithmetic::kFloat;
+  if (word == "float32") return LdpcArithmetic::kFloat32;
   return Status::Error("LDPC arithmetic '" + std::string(word) +
-                       "': must be one of auto, int8, int16, float");
+                       "': must be one of auto, int8, int16, float, float32");
 }
 
 std::string ToString(LdpcArithmetic arithmetic) {
@@ -95,6 +96,8 @@ std::string ToString(LdpcArithmetic arithmetic) {
       return "int16";
     case LdpcArithmetic::kFloat:
       return "float";
+    case LdpcArithmetic::kFloat32:
+      return "float32";
   }
   return "?";
 }
@@ -124,7 +127,10 @@ Result<LdpcDecoder> LdpcDecoder::Create(std::shared_ptr<const LdpcCode> code,
   LdpcDecoder dec;
   dec.code_ = std::move(code);
   dec.options_ = o;
-  dec.fixed_ = min_sum && o.arithmetic != LdpcArithmetic::kFloat;
+  const bool float_arith =
+      o.arithmetic == LdpcArithmetic::kFloat || o.arithmetic == LdpcArithmetic::kFloat32;
+  dec.fixed_ = min_sum && !float_arith;
+  dec.float_lanes_ = (min_sum && float_arith) || o.arithmetic == LdpcArithmetic::kFloat32;
   LdpcFixedArgs& a = dec.fixed_args_;
   a.graph = LdpcGraphOf(*dec.code_);
   a.layered = o.schedule == LdpcSchedule::kLayered;
@@ -143,6 +149,21 @@ Result<LdpcDecoder> LdpcDecoder::Create(std::shared_ptr<const LdpcCode> code,
   if (!int8) a.message_clip = std::min(a.message_clip, kInt16MessageClipMax);
   a.offset_q = static_cast<int>(
       std::min<long>(a.message_clip, std::lround(static_cast<double>(o.offset) * a.llr_scale)));
+  LdpcFloatKernelArgs& fa = dec.float_args_;
+  fa.graph = a.graph;
+  fa.rule = !min_sum ? LdpcFloatRule::kSumProduct32
+            : a.offset ? LdpcFloatRule::kMinSumOffset
+                       : LdpcFloatRule::kMinSumNormalized;
+  fa.layered = a.layered;
+  fa.max_iterations = o.max_iterations;
+  fa.early_stop = o.early_stop;
+  fa.normalization = o.normalization;
+  fa.offset = o.offset;
+  if (dec.float_lanes_ && !min_sum && a.graph.max_row_degree > kLdpcSpaMaxRowDegree) {
+    return Status::Error("LDPC decoder: arithmetic = float32: the code has a check of degree " +
+                         std::to_string(a.graph.max_row_degree) + " (sum_product in float32 allows " +
+                         std::to_string(kLdpcSpaMaxRowDegree) + "; use float)");
+  }
   if (dec.fixed_) {
     if (int8 && a.message_clip < kInt8MinMessageClip) {
       return Status::Error("LDPC decoder: arithmetic = int8: the code's largest variable degree " +
@@ -169,6 +190,8 @@ LdpcDecoder::Workspace LdpcDecoder::MakeWorkspace() const {
   if (fixed_) {
     const std::size_t lanes = LdpcFixedMaxLanes(fixed_args_.lane);
     ws.fixed_.resize(LdpcFixedWorkspaceBytes(fixed_args_, lanes));
+  } else if (float_lanes_) {
+    ws.lanes_.resize(LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes(float_args_.rule)));
   } else {
     ws.float_.resize(reference::LdpcFloatFrameWorkspaceFloats(g));
     ws.double_.resize(reference::LdpcFloatFrameWorkspaceDoubles(g));
@@ -177,10 +200,19 @@ LdpcDecoder::Workspace LdpcDecoder::MakeWorkspace() const {
 }
 
 int LdpcDecoder::batch_frames() const {
+  if (float_lanes_) return static_cast<int>(LdpcFloatLanes(float_args_.rule));
   return fixed_ ? static_cast<int>(LdpcFixedLanes(fixed_args_.lane)) : 1;
 }
 
 std::string LdpcDecoder::kernel_target() const {
+  if (float_lanes_) {
+    const std::string type =
+        float_args_.rule == LdpcFloatRule::kSumProduct32 ? "float32" : "float";
+    const std::size_t lanes = LdpcFloatLanes(float_args_.rule);
+    const std::string target = LdpcFloatKernelTarget(float_args_.rule);
+    if (lanes <= 1 || target == "SCALAR") return "scalar " + type;
+    return target + " " + type + " x" + std::to_string(lanes) + " lanes";
+  }
   if (!fixed_) return "scalar float";
   const std::string type = fixed_args_.lane == LdpcLane::kInt8 ? "int8" : "int16";
   const std::size_t lanes = LdpcFixedLanes(fixed_args_.lane);
@@ -201,6 +233,13 @@ void LdpcDecoder::Decode(std::span<const float> llrs, std::span<Bit> decided,
                   LdpcFixedWorkspaceBytes(fixed_args_, LdpcFixedMaxLanes(fixed_args_.lane)));
     LdpcDecodeFixed(fixed_args_, llrs.data(), frames, decided.data(), results.data(),
                     ws.fixed_.data());
+    return;
+  }
+  if (float_lanes_) {
+    CAPGAP_DCHECK(ws.lanes_.size() ==
+                  LdpcFloatWorkspaceBytes(float_args_, LdpcFloatMaxLanes(float_args_.rule)));
+    LdpcDecodeFloatLanes(float_args_, llrs.data(), frames, decided.data(), results.data(),
+                         ws.lanes_.data());
     return;
   }
   CAPGAP_DCHECK(ws.float_.size() == reference::LdpcFloatFrameWorkspaceFloats(fixed_args_.graph));

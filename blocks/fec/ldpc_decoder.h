@@ -50,9 +50,25 @@
 //    a trapping set that float escapes. For error-floor studies (FER below
 //    ~1e-4) choose int16 or float. The measurements behind both:
 //    docs/performance_notes.md, "LDPC decoder arithmetic".
-//  * float: the scalar one-frame float references of ldpc_reference.h; the
-//    only arithmetic of sum-product (tanh rule in double with clipping to
-//    +-30, see there).
+//  * float, min-sum: the float kernel of blocks/kernels/ldpc_float_kernels.h,
+//    one frame per float lane of the best target, bit-exact with the float
+//    min-sum reference of ldpc_reference.h (the scalar decoder this option
+//    ran before the kernel existed, so its counts are unchanged).
+//  * float, sum-product (and kAuto for sum-product): the scalar one-frame
+//    reference of ldpc_reference.h, tanh rule in double with clipping to
+//    +-30 (see there), one frame at a time. Kept as it is so that existing
+//    configs keep their counts.
+//  * float32, sum-product: the float kernel's own float32 rule
+//    (blocks/kernels/ldpc_spa_reference.h: probability-domain pairs,
+//    polynomial exp2/log2, messages to 43 bits = 29.8 LLR), frames across
+//    the float lanes (on targets with a native fused multiply-add; the
+//    oracle elsewhere), bit-exact with its scalar oracle on every target and
+//    about 58x faster than the double path (tests/bench/ldpc_bench.cc,
+//    docs/performance_notes.md); its decisions differ from the
+//    double path's in rare frames (a different rounding of the same
+//    algorithm), so it is a value of its own. Float32 with min-sum is the
+//    same decoder as float. Refused for codes with a check of degree above
+//    128 (kLdpcSpaMaxRowDegree).
 //
 // Immutable after Create(); one instance may be shared by all threads, each
 // with its own Workspace. Decode allocates nothing and makes no virtual call.
@@ -70,6 +86,7 @@
 #include "blocks/core/status.h"
 #include "blocks/core/types.h"
 #include "blocks/fec/ldpc_code.h"
+#include "blocks/kernels/ldpc_float_kernels.h"
 #include "blocks/kernels/ldpc_kernels.h"
 
 namespace capgap {
@@ -85,9 +102,10 @@ Result<LdpcSchedule> ParseLdpcSchedule(std::string_view word);
 std::string ToString(LdpcSchedule schedule);
 
 // kAuto: fixed point for min-sum (int8 or int16, see above), float for
-// sum-product. kInt8 and kInt16 are refused for sum-product.
-enum class LdpcArithmetic { kAuto, kInt8, kInt16, kFloat };
-// "auto", "int8", "int16", "float".
+// sum-product. kInt8 and kInt16 are refused for sum-product. kFloat32: see
+// above (for min-sum the same decoder as kFloat).
+enum class LdpcArithmetic { kAuto, kInt8, kInt16, kFloat, kFloat32 };
+// "auto", "int8", "int16", "float", "float32".
 Result<LdpcArithmetic> ParseLdpcArithmetic(std::string_view word);
 std::string ToString(LdpcArithmetic arithmetic);
 
@@ -119,7 +137,8 @@ class LdpcDecoder {
    private:
     friend class LdpcDecoder;
     std::vector<std::uint8_t> fixed_;  // kernel workspace (fixed-point path)
-    std::vector<float> float_;         // one frame (float path)
+    std::vector<std::uint8_t> lanes_;  // kernel workspace (float lane path)
+    std::vector<float> float_;         // one frame (scalar double sum-product)
     std::vector<double> double_;
   };
 
@@ -141,12 +160,19 @@ class LdpcDecoder {
   // The fixed-point kernel's arguments (lane type, clips; meaningful when
   // fixed_point()).
   const LdpcFixedArgs& fixed_args() const { return fixed_args_; }
-  // Frames decoded at once (SIMD lanes of the fixed-point path, else 1).
+  // True when the float lane kernel runs (min-sum in float or float32,
+  // sum-product in float32).
+  bool float_lanes() const { return float_lanes_; }
+  // The float lane kernel's arguments (meaningful when float_lanes()).
+  const LdpcFloatKernelArgs& float_args() const { return float_args_; }
+  // Frames decoded at once (SIMD lanes of the fixed-point or float lane
+  // path, else 1).
   // Decode streams any number of frames through the lanes, so this is a
   // hint: pass at least a few times as many frames per call to keep the
   // lanes busy. Changes if ForceScalarKernels is toggled.
   int batch_frames() const;
-  // E.g. "AVX3 int8 x64 lanes", "AVX2 int16 x16 lanes", "scalar int8",
+  // E.g. "AVX3 int8 x64 lanes", "AVX2 int16 x16 lanes", "AVX3 float x16
+  // lanes", "AVX3 float32 x16 lanes" (sum-product float32), "scalar int8",
   // "scalar float".
   std::string kernel_target() const;
 
@@ -163,7 +189,9 @@ class LdpcDecoder {
   std::shared_ptr<const LdpcCode> code_;
   LdpcDecoderOptions options_;
   bool fixed_ = true;
+  bool float_lanes_ = false;
   LdpcFixedArgs fixed_args_;
+  LdpcFloatKernelArgs float_args_;
 };
 
 // The kernel's view of a code (pointers into `code`, which must outlive it;

@@ -74,7 +74,7 @@ struct LdpcSchemeConfig {
   std::string decoder = "min_sum_normalized";  // sum_product, min_sum_normalized, min_sum_offset
   std::string schedule = "layered";            // flooding, layered
   int max_iterations = 50;
-  std::string arithmetic = "auto";             // auto, int8, int16, float
+  std::string arithmetic = "auto";             // auto, int8, int16, float, float32
   double normalization = 0.75;
   double offset = 0.5;
   // Refuse codes whose estimated memory (H, encoder, decoder x threads) is larger.

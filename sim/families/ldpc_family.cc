@@ -31,7 +31,7 @@ constexpr std::string_view kLdpcDecoderWords[] = {"sum_product", "min_sum_normal
 constexpr std::string_view kNormalizedWord[] = {"min_sum_normalized"};
 constexpr std::string_view kOffsetWord[] = {"min_sum_offset"};
 constexpr std::string_view kScheduleWords[] = {"flooding", "layered"};
-constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float"};
+constexpr std::string_view kArithmeticWords[] = {"auto", "int8", "int16", "float", "float32"};
 
 constexpr KeySpec kLdpcKeys[] = {
     {"construction", "peg", OneOf(kConstructionWords),
@@ -63,7 +63,8 @@ constexpr KeySpec kLdpcKeys[] = {
     {"max_iterations", "50", IntegerIn(1, 1000),
      "iteration budget (stops early on a zero syndrome)"},
     {"arithmetic", "auto", OneOf(kArithmeticWords),
-     "decoder arithmetic (auto: fixed point for min-sum, float for sum-product)"},
+     "decoder arithmetic (auto: fixed point for min-sum, float for sum-product; float32: "
+     "sum-product in float32 across SIMD lanes)"},
     {"memory_limit_mb", "4096", IntegerIn(1, 1u << 24),
      "refuse a code whose estimated memory (H, encoder, decoder x threads) is larger, in MiB"},
     {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",

@@ -1,13 +1,19 @@
 // LDPC decoder throughput: decoded information bits per second on one core
 // for the PEG (2016, 1008) regular (3,6) code (blocks/fec/ldpc_construction.h,
 // seed 1), random codewords from the systematic encoder, BPSK over AWGN,
-// normalised min-sum (alpha = 0.75).
+// normalised min-sum (alpha = 0.75) unless named otherwise.
 //  * Fixed work: layered, 10 iterations, early stop off, Eb/N0 = 1.5 dB (in
 //    the waterfall): the dispatched SIMD int8 kernel, the same kernel on
 //    every other compiled target the CPU runs (Highway targets mocked in this
 //    program, the way the per-target tests do it), the int16 kernel, the
 //    scalar int8 oracle (ForceScalarKernels) and the float reference; plus
 //    flooding int8.
+//  * Float lane kernel (blocks/kernels/ldpc_float_kernels.h), same fixed
+//    work: float min-sum (normalised, offset) SIMD against the scalar float
+//    min-sum decoder it reproduces (the reference, forced scalar);
+//    sum-product float32 SIMD (layered, flooding) against its scalar oracle
+//    and against the double-precision scalar sum-product (arithmetic =
+//    float), the decoder sum-product ran before.
 //  * With early stop (max 50 iterations), int8 layered at 1.0, 1.5 and
 //    2.0 dB, 1024 frames per call (streamed through the lanes), with the
 //    mean iteration count and the frame error rate.
@@ -127,9 +133,10 @@ const Frames& GetFrames(double ebno_db, std::size_t count) {
 }
 
 LdpcDecoder MakeDecoder(LdpcSchedule schedule, LdpcArithmetic arithmetic, int iterations,
-                        bool early_stop) {
+                        bool early_stop,
+                        LdpcAlgorithm algorithm = LdpcAlgorithm::kMinSumNormalized) {
   LdpcDecoderOptions o;
-  o.algorithm = LdpcAlgorithm::kMinSumNormalized;
+  o.algorithm = algorithm;
   o.schedule = schedule;
   o.arithmetic = arithmetic;
   o.max_iterations = iterations;
@@ -167,9 +174,10 @@ void ReportIterations(benchmark::State& state,
 // Through LdpcDecoder (the production path).
 void RunDecoder(benchmark::State& state, LdpcSchedule schedule, LdpcArithmetic arithmetic,
                 bool force_scalar, double ebno_db, int iterations, bool early_stop,
-                std::size_t frames) {
+                std::size_t frames,
+                LdpcAlgorithm algorithm = LdpcAlgorithm::kMinSumNormalized) {
   const Frames& f = GetFrames(ebno_db, frames);
-  const LdpcDecoder dec = MakeDecoder(schedule, arithmetic, iterations, early_stop);
+  const LdpcDecoder dec = MakeDecoder(schedule, arithmetic, iterations, early_stop, algorithm);
   LdpcDecoder::Workspace ws = dec.MakeWorkspace();
   std::vector<Bit> decided(f.llrs.size());
   std::vector<LdpcDecoder::FrameResult> results(frames);
@@ -204,15 +212,58 @@ void BM_Int8LayeredScalar(benchmark::State& s) {
   RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, true, kFixedEbno, kFixedIterations,
              false, 16);
 }
+// The float min-sum reference (the scalar decoder arithmetic = float ran
+// before the lane kernel; forced scalar it still runs).
 void BM_FloatLayeredScalar(benchmark::State& s) {
-  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbno, kFixedIterations,
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, true, kFixedEbno, kFixedIterations,
              false, 16);
+}
+void BM_FloatLayeredSimd(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbno, kFixedIterations,
+             false, 256);
+}
+void BM_FloatOffsetLayeredSimd(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbno, kFixedIterations,
+             false, 256, LdpcAlgorithm::kMinSumOffset);
+}
+void BM_FloatOffsetLayeredScalar(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, true, kFixedEbno, kFixedIterations,
+             false, 16, LdpcAlgorithm::kMinSumOffset);
+}
+void BM_FloatFloodingSimd(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kFlooding, LdpcArithmetic::kFloat, false, kFixedEbno,
+             kFixedIterations, false, 256);
+}
+void BM_SpLayeredFloat32Simd(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat32, false, kFixedEbno,
+             kFixedIterations, false, 256, LdpcAlgorithm::kSumProduct);
+}
+void BM_SpFloodingFloat32Simd(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kFlooding, LdpcArithmetic::kFloat32, false, kFixedEbno,
+             kFixedIterations, false, 256, LdpcAlgorithm::kSumProduct);
+}
+void BM_SpLayeredFloat32Scalar(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat32, true, kFixedEbno,
+             kFixedIterations, false, 16, LdpcAlgorithm::kSumProduct);
+}
+// Sum-product as it ran before the lane kernel (tanh rule in double).
+void BM_SpLayeredDoubleScalar(benchmark::State& s) {
+  RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kFloat, false, kFixedEbno,
+             kFixedIterations, false, 8, LdpcAlgorithm::kSumProduct);
 }
 BENCHMARK(BM_Int8LayeredSimd)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_Int16LayeredSimd)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_Int8FloodingSimd)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_Int8LayeredScalar)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_FloatLayeredScalar)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_FloatLayeredSimd)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_FloatOffsetLayeredSimd)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_FloatOffsetLayeredScalar)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_FloatFloodingSimd)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_SpLayeredFloat32Simd)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_SpFloodingFloat32Simd)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_SpLayeredFloat32Scalar)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_SpLayeredDoubleScalar)->Unit(benchmark::kMillisecond);
 
 void BM_Int8LayeredEarlyStop(benchmark::State& s) {
   RunDecoder(s, LdpcSchedule::kLayered, LdpcArithmetic::kInt8, false,
@@ -286,6 +337,11 @@ class SummaryReporter : public benchmark::ConsoleReporter {
     ratio("BM_Int8LayeredSimd", "BM_FloatLayeredScalar");
     ratio("BM_Int8LayeredScalar", "BM_FloatLayeredScalar");
     ratio("BM_Int8LayeredSimd", "BM_Int16LayeredSimd");
+    ratio("BM_FloatLayeredSimd", "BM_FloatLayeredScalar");
+    ratio("BM_FloatOffsetLayeredSimd", "BM_FloatOffsetLayeredScalar");
+    ratio("BM_SpLayeredFloat32Simd", "BM_SpLayeredFloat32Scalar");
+    ratio("BM_SpLayeredFloat32Simd", "BM_SpLayeredDoubleScalar");
+    ratio("BM_Int8LayeredSimd", "BM_SpLayeredFloat32Simd");
     for (const auto& [name, rate] : rates_) {
       if (name.rfind("BM_Int8LayeredOnTarget", 0) == 0) ratio(name.c_str(), "BM_Int8LayeredScalar");
     }

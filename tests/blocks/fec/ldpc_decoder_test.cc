@@ -35,6 +35,7 @@
 #include "blocks/core/rng_stream.h"
 #include "blocks/fec/ldpc_code.h"
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/ldpc_float_kernels.h"
 #include "blocks/kernels/ldpc_reference.h"
 #include "tests/blocks/fec/ldpc_test_codes.h"
 
@@ -210,8 +211,14 @@ std::vector<Config> AllConfigs() {
   for (auto alg : {LdpcAlgorithm::kSumProduct, LdpcAlgorithm::kMinSumNormalized,
                    LdpcAlgorithm::kMinSumOffset}) {
     for (auto sched : {LdpcSchedule::kFlooding, LdpcSchedule::kLayered}) {
-      for (auto arith : {LdpcArithmetic::kInt8, LdpcArithmetic::kInt16, LdpcArithmetic::kFloat}) {
-        if (alg == LdpcAlgorithm::kSumProduct && arith != LdpcArithmetic::kFloat) continue;
+      for (auto arith : {LdpcArithmetic::kInt8, LdpcArithmetic::kInt16, LdpcArithmetic::kFloat,
+                         LdpcArithmetic::kFloat32}) {
+        if (alg == LdpcAlgorithm::kSumProduct && arith != LdpcArithmetic::kFloat &&
+            arith != LdpcArithmetic::kFloat32) {
+          continue;
+        }
+        // Min-sum in float32 is the float decoder (ldpc_decoder.h).
+        if (alg != LdpcAlgorithm::kSumProduct && arith == LdpcArithmetic::kFloat32) continue;
         all.push_back({alg, sched, arith});
       }
     }
@@ -272,7 +279,7 @@ TEST(LdpcDecoderWords, UnknownWordErrorListsTheValidWords) {
   EXPECT_EQ(ParseLdpcSchedule("serial").status().message(),
             "LDPC schedule 'serial': must be one of flooding, layered");
   EXPECT_EQ(ParseLdpcArithmetic("int32").status().message(),
-            "LDPC arithmetic 'int32': must be one of auto, int8, int16, float");
+            "LDPC arithmetic 'int32': must be one of auto, int8, int16, float, float32");
 }
 
 TEST(LdpcDecoder, CreateRejectsInvalidOptionsNamingOptionValueAndRange) {
@@ -485,7 +492,10 @@ TEST(LdpcDecoder, FrameResultDoesNotDependOnBatchCompanions) {
   const auto code = SmallCode();
   const auto n = static_cast<std::size_t>(code->length());
   for (const Config& c : AllConfigs()) {
-    if (c.arithmetic == LdpcArithmetic::kFloat) continue;  // frame by frame anyway
+    // The double sum-product path decodes frame by frame anyway.
+    if (c.algorithm == LdpcAlgorithm::kSumProduct && c.arithmetic == LdpcArithmetic::kFloat) {
+      continue;
+    }
     SCOPED_TRACE(Name(c));
     const LdpcDecoder dec = MakeDecoder(code, c, 30);
     const auto count = static_cast<std::size_t>(2 * dec.batch_frames() + 3);
@@ -732,6 +742,228 @@ TEST(LdpcDecoder, DecodeDoesNotAllocate) {
     const long before = g_allocations.load();
     dec.Decode(frames.llrs, decided, results, ws);
     EXPECT_EQ(g_allocations.load(), before) << Name(c);
+  }
+}
+
+// Float min-sum (arithmetic = float) runs the float lane kernel and decides
+// every frame as the scalar float min-sum decoder it replaced
+// (reference::LdpcDecodeFloatFrame, the decoder of arithmetic = float before
+// the kernel existed): same decisions, iteration counts and convergence, so
+// configs that chose float keep their counts. 3B + 5 frames at 1.5 dB (some
+// stop early, some fail), both rules and schedules, with early stop.
+TEST(LdpcDecoder, FloatMinSumRunsTheLaneKernelWithTheScalarDecodersResults) {
+  const auto code = SmallCode();
+  const auto n = static_cast<std::size_t>(code->length());
+  for (auto alg : {LdpcAlgorithm::kMinSumNormalized, LdpcAlgorithm::kMinSumOffset}) {
+    for (auto sched : {LdpcSchedule::kFlooding, LdpcSchedule::kLayered}) {
+      const LdpcDecoder dec = MakeDecoder(code, {alg, sched, LdpcArithmetic::kFloat}, 30);
+      SCOPED_TRACE(Name({alg, sched, LdpcArithmetic::kFloat}));
+      EXPECT_TRUE(dec.float_lanes());
+      EXPECT_FALSE(dec.fixed_point());
+      EXPECT_EQ(dec.batch_frames(), static_cast<int>(LdpcFloatLanes(dec.float_args().rule)));
+      if (dec.batch_frames() > 1) {
+        EXPECT_EQ(dec.kernel_target(), std::string(LdpcFloatKernelTarget(dec.float_args().rule)) +
+                                           " float x" +
+                                           std::to_string(dec.batch_frames()) + " lanes");
+      } else {
+        EXPECT_EQ(dec.kernel_target(), "scalar float");
+      }
+      const auto count = static_cast<std::size_t>(3 * dec.batch_frames() + 5);
+      const Frames frames = NoisyFrames(*code, count, 1.5, 9u);
+      const Decoded d = DecodeAll(dec, frames.llrs);
+      reference::LdpcFloatArgs a;
+      a.graph = LdpcGraphOf(*code);
+      a.rule = alg == LdpcAlgorithm::kMinSumOffset ? LdpcCheckRule::kMinSumOffset
+                                                   : LdpcCheckRule::kMinSumNormalized;
+      a.layered = sched == LdpcSchedule::kLayered;
+      a.max_iterations = 30;
+      a.early_stop = true;
+      a.normalization = 0.75f;
+      a.offset = 0.5f;
+      std::vector<float> fws(reference::LdpcFloatFrameWorkspaceFloats(a.graph));
+      std::vector<double> dws(reference::LdpcFloatFrameWorkspaceDoubles(a.graph));
+      int failed = 0;
+      for (std::size_t f = 0; f < count; ++f) {
+        std::vector<Bit> want(n);
+        int it = -1;
+        bool conv = false;
+        reference::LdpcDecodeFloatFrame(a, frames.llrs.data() + f * n, want.data(), nullptr, &it,
+                                        &conv, fws.data(), dws.data());
+        failed += conv ? 0 : 1;
+        EXPECT_EQ(d.results[f].iterations, it) << "frame " << f;
+        EXPECT_EQ(d.results[f].converged, conv) << "frame " << f;
+        EXPECT_TRUE(std::equal(want.begin(), want.end(),
+                               d.decided.begin() + static_cast<std::ptrdiff_t>(f * n)))
+            << "frame " << f;
+      }
+      EXPECT_GT(failed, 0) << "the point must be in the waterfall";
+    }
+  }
+}
+
+// Float32 with min-sum is the float decoder; float32 sum-product is refused
+// for a check of degree above 128 (ldpc_spa_reference.h: the products of a
+// row stay below 2^(degree - 1)) and runs the lane kernel otherwise.
+TEST(LdpcDecoder, Float32WordsAndLimits) {
+  const auto code = SmallCode();
+  const Frames frames = NoisyFrames(*code, 20, 1.5, 10u);
+  const Decoded f = DecodeAll(
+      MakeDecoder(code, {LdpcAlgorithm::kMinSumNormalized, LdpcSchedule::kLayered,
+                         LdpcArithmetic::kFloat}),
+      frames.llrs);
+  const Decoded f32 = DecodeAll(
+      MakeDecoder(code, {LdpcAlgorithm::kMinSumNormalized, LdpcSchedule::kLayered,
+                         LdpcArithmetic::kFloat32}),
+      frames.llrs);
+  EXPECT_EQ(f.decided, f32.decided);
+  for (std::size_t i = 0; i < f.results.size(); ++i) {
+    EXPECT_EQ(f.results[i].iterations, f32.results[i].iterations);
+  }
+  LdpcDecoderOptions o;
+  o.algorithm = LdpcAlgorithm::kSumProduct;
+  o.arithmetic = LdpcArithmetic::kFloat32;
+  const LdpcDecoder sp = LdpcDecoder::Create(code, o).value();
+  EXPECT_TRUE(sp.float_lanes());
+  EXPECT_EQ(sp.float_args().rule, LdpcFloatRule::kSumProduct32);
+  EXPECT_EQ(sp.batch_frames(), static_cast<int>(LdpcFloatLanes(LdpcFloatRule::kSumProduct32)));
+  EXPECT_NE(sp.kernel_target().find("float32"), std::string::npos) << sp.kernel_target();
+  for (int degree : {128, 129}) {
+    std::vector<int> row(static_cast<std::size_t>(degree));
+    for (int v = 0; v < degree; ++v) row[static_cast<std::size_t>(v)] = v;
+    const auto wide = std::make_shared<const LdpcCode>(LdpcCode::FromRows(degree, {row}).value());
+    const Result<LdpcDecoder> r = LdpcDecoder::Create(wide, o);
+    if (degree == 128) {
+      EXPECT_TRUE(r.ok()) << r.status().message();
+    } else {
+      EXPECT_EQ(r.status().message(),
+                "LDPC decoder: arithmetic = float32: the code has a check of degree 129 "
+                "(sum_product in float32 allows 128; use float)");
+    }
+  }
+}
+
+// Float32 sum-product (frames across SIMD lanes, ldpc_spa_reference.h)
+// against the double-precision scalar sum-product (arithmetic = float), the
+// same 1500 noisy frames of the (3,6) code of length 1008 at 1.25, 1.5 and
+// 1.75 dB, layered, 30 iterations with early stop. Check: the float32 bit
+// error rate lies inside the 99.9 % Wilson interval of the double path's
+// (binomial over the 1.512e6 decoded bits; common practice), likewise the
+// frame error rate over the 1500 frames. Bit errors cluster in frames, so the
+// binomial interval is narrower than the true sampling spread: the check is
+// stricter than the statistics require; it holds because the frames are
+// shared and the two decoders differ only by float rounding (the printed
+// count of frames whose decisions differ is small).
+TEST(LdpcDecoder, Float32SumProductErrorRatesWithinDoublePathInterval) {
+  const auto code = MediumCode();
+  const auto n = static_cast<std::size_t>(code->length());
+  constexpr std::size_t kFrames = 1500;
+  const auto wilson = [](double errors, double trials, double z, double* lo, double* hi) {
+    const double p = errors / trials;
+    const double den = 1 + z * z / trials;
+    const double mid = (p + z * z / (2 * trials)) / den;
+    const double half = z * std::sqrt(p * (1 - p) / trials + z * z / (4 * trials * trials)) / den;
+    *lo = mid - half;
+    *hi = mid + half;
+  };
+  constexpr double kZ = 3.2905;  // two-sided 99.9 % normal quantile
+  int unit = 30;
+  for (double ebno : {1.25, 1.5, 1.75}) {
+    const Frames frames = NoisyFrames(*code, kFrames, ebno, static_cast<std::uint32_t>(unit++));
+    double bit_errors[2] = {0, 0}, frame_errors[2] = {0, 0};
+    std::vector<Bit> decided[2];
+    int i = 0;
+    for (auto arith : {LdpcArithmetic::kFloat, LdpcArithmetic::kFloat32}) {
+      const Decoded d = DecodeAll(
+          MakeDecoder(code, {LdpcAlgorithm::kSumProduct, LdpcSchedule::kLayered, arith}, 30),
+          frames.llrs);
+      for (std::size_t f = 0; f < kFrames; ++f) {
+        int wrong = 0;
+        for (std::size_t v = 0; v < n; ++v) {
+          wrong += d.decided[f * n + v] != frames.codewords[f * n + v] ? 1 : 0;
+        }
+        bit_errors[i] += wrong;
+        frame_errors[i] += wrong > 0 ? 1 : 0;
+      }
+      decided[i] = d.decided;
+      ++i;
+    }
+    int frames_differing = 0;
+    for (std::size_t f = 0; f < kFrames; ++f) {
+      frames_differing += std::equal(decided[0].begin() + static_cast<std::ptrdiff_t>(f * n),
+                                     decided[0].begin() + static_cast<std::ptrdiff_t>((f + 1) * n),
+                                     decided[1].begin() + static_cast<std::ptrdiff_t>(f * n))
+                              ? 0
+                              : 1;
+    }
+    const double bits = static_cast<double>(kFrames * n);
+    double blo, bhi, flo, fhi;
+    wilson(bit_errors[0], bits, kZ, &blo, &bhi);
+    wilson(frame_errors[0], kFrames, kZ, &flo, &fhi);
+    std::printf(
+        "[ measured ] %.2f dB: double BER %.3e [%.3e, %.3e] FER %.4f [%.4f, %.4f]; float32 BER "
+        "%.3e FER %.4f; frames decided differently %d of %zu\n",
+        ebno, bit_errors[0] / bits, blo, bhi, frame_errors[0] / kFrames, flo, fhi,
+        bit_errors[1] / bits, frame_errors[1] / kFrames, frames_differing, kFrames);
+    ASSERT_GE(frame_errors[0], 10) << "the point must be in the waterfall";
+    EXPECT_GE(bit_errors[1] / bits, blo);
+    EXPECT_LE(bit_errors[1] / bits, bhi);
+    EXPECT_GE(frame_errors[1] / kFrames, flo);
+    EXPECT_LE(frame_errors[1] / kFrames, fhi);
+  }
+}
+
+// Float32 sum-product on the cycle-free code of
+// SumProductEqualsBitwiseMapOnCycleFreeCode: its decisions are the exact
+// bitwise MAP decisions (Pearl's theorem, as there) wherever the exact
+// a-posteriori LLR is not within 1e-3 of zero (the polynomial exp2/log2 err
+// by <= 1e-5 per message, ldpc_spa_reference.h).
+TEST(LdpcDecoder, SumProductFloat32DecidesAsBitwiseMapOnCycleFreeCode) {
+  const std::vector<std::vector<int>> rows = {{0, 1, 2}, {2, 3, 4}, {4, 5, 6}, {1, 7, 8}, {6, 9}};
+  const auto code = std::make_shared<const LdpcCode>(LdpcCode::FromRows(10, rows).value());
+  std::vector<unsigned> codewords;
+  for (unsigned w = 0; w < 1024; ++w) {
+    bool ok = true;
+    for (const auto& row : rows) {
+      unsigned parity = 0;
+      for (int v : row) parity ^= (w >> v) & 1u;
+      ok = ok && parity == 0;
+    }
+    if (ok) codewords.push_back(w);
+  }
+  ASSERT_EQ(codewords.size(), 32u);
+  std::mt19937_64 rng(7u);
+  std::uniform_real_distribution<float> uni(-4.0f, 4.0f);
+  for (auto sched : {LdpcSchedule::kFlooding, LdpcSchedule::kLayered}) {
+    const LdpcDecoder dec = MakeDecoder(
+        code, {LdpcAlgorithm::kSumProduct, sched, LdpcArithmetic::kFloat32}, 12, false);
+    LdpcDecoder::Workspace ws = dec.MakeWorkspace();
+    int decisions_checked = 0;
+    for (int frame = 0; frame < 300; ++frame) {
+      float llr[10];
+      for (float& x : llr) x = uni(rng);
+      Bit got[10];
+      FrameResult res;
+      dec.Decode(llr, got, std::span<FrameResult>(&res, 1), ws);
+      for (int v = 0; v < 10; ++v) {
+        double best[2] = {-1e300, -1e300}, sum[2] = {0, 0};
+        std::vector<double> terms[2];
+        for (unsigned w : codewords) {
+          double ll = 0;
+          for (int u = 0; u < 10; ++u) ll += ((w >> u) & 1u) ? -llr[u] / 2.0 : llr[u] / 2.0;
+          terms[(w >> v) & 1u].push_back(ll);
+        }
+        for (int b = 0; b < 2; ++b) {
+          for (double t : terms[b]) best[b] = std::max(best[b], t);
+          for (double t : terms[b]) sum[b] += std::exp(t - best[b]);
+        }
+        const double exact = (best[0] + std::log(sum[0])) - (best[1] + std::log(sum[1]));
+        if (std::fabs(exact) > 1e-3) {
+          ++decisions_checked;
+          EXPECT_EQ(got[v], exact < 0 ? 1 : 0) << "frame " << frame << " bit " << v;
+        }
+      }
+    }
+    EXPECT_GT(decisions_checked, 2900);
   }
 }
 
