@@ -4,6 +4,7 @@
 #include <string>
 #include <vector>
 
+#include "sim/families/apsk16_constellation.h"
 #include "sim/families/awgn_family.h"
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
@@ -27,6 +28,7 @@ const ChannelFamily* const kChannelFamilies[] = {
 
 const ConstellationFamily* const kConstellationFamilies[] = {
     &kPskQamConstellation,
+    &k16ApskConstellation,
 };
 
 }  // namespace
