@@ -6,6 +6,7 @@
 #include "sim/families/awgn_family.h"
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
+#include "sim/families/fading_family.h"
 #include "sim/families/ldpc_family.h"
 #include "sim/families/uncoded_family.h"
 
@@ -21,6 +22,9 @@ const CodeFamily* const kCodeFamilies[] = {
 
 const ChannelFamily* const kChannelFamilies[] = {
     &kAwgnFamily,
+    &kRayleighFamily,
+    &kRicianFamily,
+    &kNakagamiFamily,
 };
 
 }  // namespace
