@@ -8,6 +8,7 @@
 #include "sim/families/awgn_family.h"
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
+#include "sim/families/fading_family.h"
 #include "sim/families/ldpc_family.h"
 #include "sim/families/psk_qam_constellation.h"
 #include "sim/families/uncoded_family.h"
@@ -24,6 +25,9 @@ const CodeFamily* const kCodeFamilies[] = {
 
 const ChannelFamily* const kChannelFamilies[] = {
     &kAwgnFamily,
+    &kRayleighFamily,
+    &kRicianFamily,
+    &kNakagamiFamily,
 };
 
 const ConstellationFamily* const kConstellationFamilies[] = {

@@ -15,6 +15,7 @@
 #include "blocks/mapping/modulation.h"
 #include "sim/config/config.h"
 #include "sim/config/text.h"
+#include "sim/families/channel_keys.h"
 
 namespace capgap {
 namespace {
@@ -122,6 +123,7 @@ std::span<const KeyTable> SchemeKeyTables() {
         {"carrier impairments", kImpairmentKeys},
         {"channel code", code_choice},
     };
+    for (const KeyTable& table : ChannelKeyTables()) t.push_back(table);
     for (const CodeFamily* f : CodeFamilies()) {
       if (f->keys) t.push_back(*f->keys);
     }
