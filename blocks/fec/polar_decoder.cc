@@ -93,7 +93,7 @@ void Release(std::vector<int>& ref, std::vector<int>& stack, std::vector<int>& c
 
 // Path p's array at level s, made private first if it is shared (contents
 // copied when `keep`).
-float* WriteLlr(Ws& w, int p, int s) {
+[[gnu::always_inline]] inline float* WriteLlr(Ws& w, int p, int s) {
   int& idx = LlrIdx(w, p, s);
   int& ref = w.llr_ref_[Sz(s * w.list_ + idx)];
   if (ref > 1) {
@@ -103,7 +103,7 @@ float* WriteLlr(Ws& w, int p, int s) {
   }
   return LlrArray(w, s, idx);
 }
-Bit* WriteBeta(Ws& w, int p, int s, bool keep) {
+[[gnu::always_inline]] inline Bit* WriteBeta(Ws& w, int p, int s, bool keep) {
   int& idx = BetaIdx(w, p, s);
   int& ref = w.beta_ref_[Sz(s * w.list_ + idx)];
   if (ref > 1) {
@@ -211,7 +211,9 @@ void PolarSclDecoder::Leaf(int leaf, Workspace& w) const {
   } else {
     for (int i = 0; i < c; ++i) w.order_[Sz(i)] = i;
     const auto first = w.order_.begin();
-    std::partial_sort(first, first + list_, first + c, [&](int a, int b) {
+    // The L smallest under the strict total order (metric, candidate
+    // index) form a unique set; nth_element finds it in linear time.
+    std::nth_element(first, first + (list_ - 1), first + c, [&](int a, int b) {
       const float ma = w.cand_metric_[Sz(a)], mb = w.cand_metric_[Sz(b)];
       return ma < mb || (ma == mb && a < b);
     });

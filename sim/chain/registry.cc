@@ -7,6 +7,7 @@
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
 #include "sim/families/ldpc_family.h"
+#include "sim/families/polar_family.h"
 #include "sim/families/uncoded_family.h"
 
 namespace capgap {
@@ -17,6 +18,7 @@ const CodeFamily* const kCodeFamilies[] = {
     &kConvFamily,
     &kLdpcFamily,
     &kBlockFamily,
+    &kPolarFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {
