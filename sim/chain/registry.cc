@@ -11,6 +11,7 @@
 #include "sim/families/fading_family.h"
 #include "sim/families/ldpc_family.h"
 #include "sim/families/psk_qam_constellation.h"
+#include "sim/families/polar_family.h"
 #include "sim/families/uncoded_family.h"
 
 namespace capgap {
@@ -21,6 +22,7 @@ const CodeFamily* const kCodeFamilies[] = {
     &kConvFamily,
     &kLdpcFamily,
     &kBlockFamily,
+    &kPolarFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {
