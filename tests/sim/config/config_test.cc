@@ -138,7 +138,7 @@ TEST(Config, MissingRequiredKeysAreNamed) {
             "test.ini: no [scheme.NAME] section; at least one scheme is required");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nframe_bits = 8\n"),
             "test.ini: missing required key 'scheme.a.modulation' (bpsk, qpsk, 8psk, 16qam, "
-            "64qam, 256qam, <M>psk, <M>qam)");
+            "64qam, 256qam, <M>psk, <M>qam, 16apsk)");
 }
 
 TEST(Config, CodeKeysApplyOnlyToTheirCode) {
@@ -153,7 +153,7 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
   ASSERT_TRUE(r.ok()) << r.status().message();
   EXPECT_EQ(r.value().schemes[0].conv.generators, "5,7");
   EXPECT_EQ(r.value().schemes[0].conv.constraint_length, 3);
-  EXPECT_EQ(r.value().schemes[0].conv.decoder, "viterbi_soft");  // default
+  EXPECT_EQ(r.value().schemes[0].conv.decoder, ConvDecoderKind::kViterbiSoft);  // default
   // Uncoded schemes carry no code keys in the resolved text.
   int q16_code_keys = 0, qpsk_code_keys = 0;
   for (const auto& [key, value] : r.value().resolved) {
