@@ -131,6 +131,29 @@ void Demapper::Demap(std::span<const cf32> received, const ChannelStateView& sta
   }
   CAPGAP_DCHECK(llrs.size() == static_cast<std::size_t>(bits_per_symbol_) * received.size());
   const auto m = static_cast<std::size_t>(bits_per_symbol_);
+  if (state.gain.empty()) {
+    // Gain 1 with per-symbol N0 (an equalised combiner output, e.g.
+    // blocks/channel/fading_channel.h): the fast kernels apply. Max-log
+    // LLRs are linear in 1 / N0, so one call at N0 = 1 and a per-symbol
+    // scale give them; hard outputs do not depend on N0; log-MAP is not
+    // linear and takes one kernel call per symbol.
+    const float* y = reinterpret_cast<const float*>(received.data());
+    const std::size_t n = received.size();
+    if (method_ == DemapMethod::kLogMap && !state.n0.empty()) {
+      for (std::size_t s = 0; s < n; ++s) {
+        DemapSoft(kernel_args(), true, y + 2 * s, 1, state.n0[s], llrs.data() + m * s);
+      }
+      return;
+    }
+    Demap(received, 1.0f, llrs);
+    if (method_ == DemapMethod::kHard) return;
+    float* l = llrs.data();
+    for (std::size_t s = 0; s < n; ++s) {
+      const float inv = 1.0f / (state.n0.empty() ? state.n0_uniform : state.n0[s]);
+      for (std::size_t k = 0; k < m; ++k) l[m * s + k] *= inv;
+    }
+    return;
+  }
   for (std::size_t s = 0; s < received.size(); ++s) {
     const cf32 h = state.gain.empty() ? cf32(1.0f, 0.0f) : state.gain[s];
     const float n0 = state.n0.empty() ? state.n0_uniform : state.n0[s];

@@ -28,7 +28,10 @@
 // With a per-symbol channel state (y = h x + n, noise variance N0 per symbol,
 // coherent detection with known h, common practice) the metric is
 // |y - h x|^2 / N0, evaluated by brute force over the M points
-// (generic_demapper.h): exact but slow, meant for fading channels.
+// (generic_demapper.h): exact but slow. A state with gain 1 and per-symbol
+// N0 (an equalised combiner output, fading_channel.h) keeps the fast
+// kernels: max-log LLRs at N0 = 1 scaled by 1 / N0 per symbol (max-log is
+// linear in 1 / N0), log-MAP one kernel call per symbol.
 // Hard decisions are the label of the nearest point (per-axis slicer for QAM,
 // signs for BPSK/QPSK, the angular sector for M-PSK); ties, which have
 // probability zero under noise, are broken arbitrarily.

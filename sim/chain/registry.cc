@@ -8,8 +8,10 @@
 #include "sim/families/awgn_family.h"
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
+#include "sim/families/fading_family.h"
 #include "sim/families/ldpc_family.h"
 #include "sim/families/psk_qam_constellation.h"
+#include "sim/families/polar_family.h"
 #include "sim/families/uncoded_family.h"
 
 namespace capgap {
@@ -20,10 +22,14 @@ const CodeFamily* const kCodeFamilies[] = {
     &kConvFamily,
     &kLdpcFamily,
     &kBlockFamily,
+    &kPolarFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {
     &kAwgnFamily,
+    &kRayleighFamily,
+    &kRicianFamily,
+    &kNakagamiFamily,
 };
 
 const ConstellationFamily* const kConstellationFamilies[] = {

@@ -64,12 +64,13 @@ struct CodeFamily {
                   const std::atomic<bool>* stop);
 };
 
-// A channel model. `additive_only` as Channel::additive_only() of every
-// instance it makes.
+// A channel model, named by the scheme's `channel` key. make builds the
+// channel of one sweep point; the spec was validated when the config was
+// read (sim/families/channel_keys.cc), so make does not fail. Whether the
+// channel is additive only is asked of the instance (Channel::additive_only).
 struct ChannelFamily {
   const char* name;
-  bool additive_only;
-  std::unique_ptr<const Channel> (*make)(const NoiseSpec& spec);
+  std::unique_ptr<const Channel> (*make)(const NoiseSpec& noise, const ChannelSpec& channel);
 };
 
 // A constellation family, named by the scheme's `modulation` key (and by
