@@ -131,7 +131,7 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
   ASSERT_TRUE(r.ok()) << r.status().message();
   EXPECT_EQ(r.value().schemes[0].conv.generators, "5,7");
   EXPECT_EQ(r.value().schemes[0].conv.constraint_length, 3);
-  EXPECT_EQ(r.value().schemes[0].conv.decoder, "viterbi_soft");  // default
+  EXPECT_EQ(r.value().schemes[0].conv.decoder, ConvDecoderKind::kViterbiSoft);  // default
   // Uncoded schemes carry no code keys in the resolved text.
   int q16_code_keys = 0, qpsk_code_keys = 0;
   for (const auto& [key, value] : r.value().resolved) {
