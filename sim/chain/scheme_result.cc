@@ -180,18 +180,27 @@ CodeReport DescribeChannel(const ChannelSpec& channel) {
   return report;
 }
 
+TargetCrossing CrossTarget(std::span<const PointResult> points, ErrorRate rate, double target) {
+  std::vector<double> x, y, low, high;
+  for (const auto& p : points) {
+    if (p.stop_reason == StopReason::kInterrupted) continue;
+    const bool ber = rate == ErrorRate::kBer;
+    const Interval& ci = ber ? p.ber_ci : p.fer_ci;
+    x.push_back(p.ebno_db);
+    y.push_back(ber ? p.ber() : p.fer());
+    low.push_back(ci.low);
+    high.push_back(ci.high);
+  }
+  // The lower bound crosses first (optimistic Eb/N0), the upper bound last.
+  return {CrossingDb(x, y, target), CrossingDb(x, low, target), CrossingDb(x, high, target)};
+}
+
 double OutageGapDb(const SchemeResult& r, double target_fer) {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const ChannelSpec& ch = r.scheme.channel;
   if (ch.time != FadingTime::kBlock || !FadingTheoryApplies(ch)) return nan;
   if (!(target_fer > 0.0) || !(target_fer < 1.0)) return nan;
-  std::vector<double> x, fer;
-  for (const auto& p : r.points) {
-    if (p.stop_reason == StopReason::kInterrupted) continue;
-    x.push_back(p.ebno_db);
-    fer.push_back(p.fer());
-  }
-  const double simulated = CrossingDb(x, fer, target_fer);
+  const double simulated = CrossTarget(r.points, ErrorRate::kFer, target_fer).ebno_db;
   const double rho = r.info_bits_per_symbol;
   const double outage = analysis::OutageEbnoDbAtProbability(
       ch, analysis::GaussianOutageThresholdEsnoDb(rho), rho, target_fer);
@@ -219,6 +228,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     }
   }
   r.target_ber = sweep.target_ber;
+  r.target_fer = sweep.target_fer;
   r.points = std::move(points);
 
   // Theory on a 0.05 dB grid spanning the configured sweep, one dB either side.
@@ -273,19 +283,15 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
         "only at infinite SNR; it becomes finite once a code lowers rho";
   }
 
-  std::vector<double> x, ber, ber_low, ber_high;
-  for (const auto& p : r.points) {
-    if (p.stop_reason == StopReason::kInterrupted) continue;
-    x.push_back(p.ebno_db);
-    ber.push_back(p.ber());
-    ber_low.push_back(p.ber_ci.low);
-    ber_high.push_back(p.ber_ci.high);
-  }
   Summary& s = r.summary;
-  s.ebno_at_target_db = CrossingDb(x, ber, sweep.target_ber);
-  // The lower BER bound crosses first (optimistic Eb/N0), the upper bound last.
-  s.ebno_at_target_low_db = CrossingDb(x, ber_low, sweep.target_ber);
-  s.ebno_at_target_high_db = CrossingDb(x, ber_high, sweep.target_ber);
+  const TargetCrossing at_ber = CrossTarget(r.points, ErrorRate::kBer, sweep.target_ber);
+  s.ebno_at_target_db = at_ber.ebno_db;
+  s.ebno_at_target_low_db = at_ber.low_db;
+  s.ebno_at_target_high_db = at_ber.high_db;
+  const TargetCrossing at_fer = CrossTarget(r.points, ErrorRate::kFer, sweep.target_fer);
+  s.ebno_at_target_fer_db = at_fer.ebno_db;
+  s.ebno_at_target_fer_low_db = at_fer.low_db;
+  s.ebno_at_target_fer_high_db = at_fer.high_db;
   s.uncoded_ebno_at_target_db = fading
                                     ? analysis::FadingEbnoDbAtBer(mod, channel, sweep.target_ber)
                                     : analysis::UncodedEbnoDbAtBer(mod, sweep.target_ber);

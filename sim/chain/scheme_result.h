@@ -7,6 +7,7 @@
 
 #include <atomic>
 #include <limits>
+#include <span>
 #include <string>
 #include <string_view>
 #include <variant>
@@ -118,6 +119,10 @@ struct Summary {
   double ebno_at_target_db;
   double ebno_at_target_low_db;   // from the lower CI bound (optimistic)
   double ebno_at_target_high_db;  // from the upper CI bound (pessimistic)
+  // The same at target_fer from the FER and its Clopper-Pearson bounds.
+  double ebno_at_target_fer_db = std::numeric_limits<double>::quiet_NaN();
+  double ebno_at_target_fer_low_db = std::numeric_limits<double>::quiet_NaN();
+  double ebno_at_target_fer_high_db = std::numeric_limits<double>::quiet_NaN();
   double uncoded_ebno_at_target_db;
   double coding_gain_db;
   double gap_to_shannon_db;
@@ -174,14 +179,27 @@ struct SchemeResult {
   // The decoder is iterative: the points carry iteration statistics.
   bool iterative = false;
   double target_ber = 1e-5;
-  // FER of the summary's outage gap; NaN (no gap computed) until the sweep
-  // carries a target FER.
-  double target_fer = std::numeric_limits<double>::quiet_NaN();
+  // FER of the summary (Eb/N0 at target FER, outage gap, finite-length
+  // limits): the scheme's sweep.target_fer.
+  double target_fer = 1e-4;
   std::vector<PointResult> points;
   TheoryCurve theory;
   Limits limits;
   Summary summary;
 };
+
+// Where a simulated curve crosses a target error rate: the Eb/N0 of the
+// rate itself and of its Clopper-Pearson bounds (low_db from the lower bound,
+// optimistic; high_db from the upper, pessimistic), interpolated in log
+// rate (CrossingDb), over the points not interrupted; NaN where a curve does
+// not cross.
+enum class ErrorRate { kBer, kFer };
+struct TargetCrossing {
+  double ebno_db;
+  double low_db;
+  double high_db;
+};
+TargetCrossing CrossTarget(std::span<const PointResult> points, ErrorRate rate, double target);
 
 // Gap to the block-fading outage limit at a target FER: the Eb/N0 where the
 // simulated FER (points not interrupted) crosses target_fer minus the Eb/N0

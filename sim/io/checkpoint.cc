@@ -417,6 +417,7 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
   // their Eb/N0, the rest of the free keys may change; an unlisted key is
   // refused so that a future key that changes the streams is not let through.
   static const std::set<std::string> kFree = {"sweep.ber_floor", "sweep.target_ber",
+                                              "sweep.target_fer",
                                               "sweep.threads", "sweep.checkpoint_seconds"};
   const auto old_sweep = SectionEntries(old, "sweep.");
   const auto new_sweep = SectionEntries(cfg, "sweep.");
@@ -424,12 +425,35 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
     return Status::Error(head + "sweep.seed changed from " + std::to_string(old.sweep.seed) +
                          " to " + std::to_string(cfg.sweep.seed) + fixed);
   }
-  if (cfg.sweep.target_errors < old.sweep.target_errors) {
+  // Error targets: 0 is "none", i.e. infinite.
+  const auto target_word = [](std::uint64_t t) {
+    return t == 0 ? std::string("(none)") : std::to_string(t);
+  };
+  const auto lowered = [](std::uint64_t was, std::uint64_t now) {
+    return now != 0 && (was == 0 || now < was);
+  };
+  if (lowered(old.sweep.target_errors, cfg.sweep.target_errors)) {
     return Status::Error(head + "sweep.target_errors decreased from " +
-                         std::to_string(old.sweep.target_errors) + " to " +
-                         std::to_string(cfg.sweep.target_errors) +
+                         target_word(old.sweep.target_errors) + " to " +
+                         target_word(cfg.sweep.target_errors) +
                          "; a resume may only raise it (finished points may hold more errors than "
                          "the new target)");
+  }
+  for (const SchemeRecord& s : ckpt.schemes) {
+    for (std::size_t i = 0; i < cfg.schemes.size(); ++i) {
+      if (cfg.schemes[i].name != s.name) continue;
+      std::size_t j = 0;
+      while (j < old.schemes.size() && old.schemes[j].name != s.name) ++j;
+      if (j == old.schemes.size()) continue;  // refused below (scheme keys)
+      const std::uint64_t was = old.SweepFor(j).stop_frame_errors;
+      const std::uint64_t now = cfg.SweepFor(i).stop_frame_errors;
+      if (lowered(was, now)) {
+        return Status::Error(head + "stop_frame_errors of scheme " + s.name + " decreased from " +
+                             target_word(was) + " to " + target_word(now) +
+                             "; a resume may only raise it (finished points may hold more frame "
+                             "errors than the new target)");
+      }
+    }
   }
   if (cfg.sweep.max_bits < old.sweep.max_bits) {
     return Status::Error(head + "sweep.max_bits decreased from " + std::to_string(old.sweep.max_bits) +
@@ -457,6 +481,7 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
   }
   for (const auto& [key, value] : new_sweep) {
     if (key == "sweep.seed" || key == "sweep.target_errors" || key == "sweep.max_bits" ||
+        key == "sweep.stop_frame_errors" ||
         key == "sweep.ebno_db" || kFree.count(key)) {
       continue;
     }
@@ -483,8 +508,13 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
     // The scheme's own Eb/N0 list is checked point by point above (it may
     // grow, as sweep.ebno_db may).
     const std::string points_key = prefix + "ebno_db";
+    // Checked above (stop_frame_errors may grow) or free (target_fer).
+    const auto free_key = [&](const std::string& key) {
+      return key == points_key || key == prefix + "stop_frame_errors" ||
+             key == prefix + "target_fer";
+    };
     for (const auto& [key, value] : cfg.resolved) {
-      if (key.rfind(prefix, 0) != 0 || key == points_key) continue;
+      if (key.rfind(prefix, 0) != 0 || free_key(key)) continue;
       auto it = a.find(key);
       if (it != a.end() && it->second != value) {
         return Status::Error(head + key + " changed from " + Quoted(it->second) + " to " +
@@ -492,12 +522,12 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
       }
     }
     for (const auto& [key, value] : cfg.resolved) {
-      if (key.rfind(prefix, 0) == 0 && key != points_key && !a.count(key)) {
+      if (key.rfind(prefix, 0) == 0 && !free_key(key) && !a.count(key)) {
         return Status::Error(head + key + " changed from (absent) to " + Quoted(value) + fixed);
       }
     }
     for (const auto& [key, value] : old.resolved) {
-      if (key.rfind(prefix, 0) == 0 && key != points_key && !b.count(key)) {
+      if (key.rfind(prefix, 0) == 0 && !free_key(key) && !b.count(key)) {
         return Status::Error(head + key + " changed from " + Quoted(value) + " to (absent)" + fixed);
       }
     }

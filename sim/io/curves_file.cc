@@ -302,10 +302,11 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
       NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
       if (r.limits.ergodic_present) NumAttr(sum, "gap_to_ergodic_db", F64, s.gap_to_ergodic_db);
-      if (r.limits.outage_present) {
-        NumAttr(sum, "gap_to_outage_db", F64, s.gap_to_outage_db);
-        NumAttr(sum, "target_fer", F64, r.target_fer);
-      }
+      NumAttr(sum, "target_fer", F64, r.target_fer);
+      NumAttr(sum, "ebno_at_target_fer_db", F64, s.ebno_at_target_fer_db);
+      NumAttr(sum, "ebno_at_target_fer_low_db", F64, s.ebno_at_target_fer_low_db);
+      NumAttr(sum, "ebno_at_target_fer_high_db", F64, s.ebno_at_target_fer_high_db);
+      if (r.limits.outage_present) NumAttr(sum, "gap_to_outage_db", F64, s.gap_to_outage_db);
       if (r.limits.threshold_present) {
         NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
         NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);

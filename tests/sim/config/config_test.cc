@@ -87,9 +87,9 @@ TEST(Config, ResolvedTextRoundTrips) {
 
 TEST(Config, BadValuesNameFileKeyValueAndRule) {
   EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=-3"}),
-            "test.ini: sweep.target_errors = '-3': must be an integer > 0");
+            "test.ini: sweep.target_errors = '-3': must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=abc"}),
-            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer > 0");
+            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:0:4"}),
             "test.ini: sweep.ebno_db = '0:0:4': STEP must be > 0");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:1"}),
@@ -113,7 +113,7 @@ TEST(Config, UnknownModulationListsValidWords) {
 TEST(Config, UnknownKeysAndSectionsAreRejected) {
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nroll_off = 0.3\n"),
             "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
-            "ebno_db, frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
+            "ebno_db, stop_frame_errors, target_fer, frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
             "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
             "constraint_length, puncture, termination, decoder, traceback, construction, length, "
             "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
@@ -125,7 +125,8 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
             "--set scheme.bpsk.frame_bits: no scheme 'bpsk' in test.ini; schemes: qpsk, q16");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.targets=100"}),
             "test.ini: unknown key '--set sweep.targets'; [sweep] keys: ebno_db, target_errors, "
-            "max_bits, ber_floor, target_ber, seed, threads, checkpoint_seconds");
+            "stop_frame_errors, max_bits, ber_floor, target_ber, target_fer, seed, threads, "
+            "checkpoint_seconds");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.seed"}),
             "--set 'sweep.seed': expected KEY=VALUE, e.g. sweep.target_errors=500");
 }

@@ -164,7 +164,7 @@ TEST(SchemeKeys, SeedKeepsEvery64BitIntegerExactly) {
 TEST(SchemeKeys, IntegersAreDecimalDigitsAndNumbersDecimalNotation) {
   EXPECT_EQ(ErrorOf(kBase, {"sweep.target_errors=1e3"}),
             "cfg.ini: sweep.target_errors = '1e3': not an integer (decimal digits only, no point "
-            "or exponent); must be an integer > 0");
+            "or exponent); must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kBase, {"sweep.ebno_db=0x10"}),
             "cfg.ini: sweep.ebno_db = '0x10': not a decimal number (no hexadecimal); expected "
             "START:STEP:STOP or a comma list");
