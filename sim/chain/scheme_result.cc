@@ -162,6 +162,39 @@ void AnalyseFadingLimits(const Chain& chain, SchemeResult& r) {
   }
 }
 
+// Finite-length limits of a coded scheme on the AWGN channel at its own
+// block: coded bits and information bits per frame on its constellation, on
+// a 0.1 dB grid over the sweep +-1 dB, and at target_fer.
+void AnalyseFiniteLengthLimits(const Chain& chain, const SweepConfig& sweep, SchemeResult& r,
+                               const std::atomic<bool>* stop) {
+  analysis::FiniteLengthLimits& fl = r.limits.finite_length;
+  if (chain.code().identity()) {
+    fl.absent_reason = "uncoded: a frame is not a code block, so there is no (n, k) to bound";
+    return;
+  }
+  if (FadingTheoryApplies(chain.scheme().channel)) {
+    fl.absent_reason =
+        "fading channel: the finite-length limits here are for the AWGN channel (see the outage "
+        "limits)";
+    return;
+  }
+  analysis::FiniteLengthBlock block;
+  block.coded_bits = static_cast<int>(chain.code().coded_bits());
+  block.info_bits = static_cast<int>(chain.code().info_bits());
+  const auto pts = chain.mapper().points();
+  block.points.assign(pts.begin(), pts.end());
+  std::vector<double> grid;
+  const double lo = std::floor((sweep.ebno_db.front() - 1.0) * 10.0) / 10.0;
+  const double hi = sweep.ebno_db.back() + 1.0;
+  for (int i = 0; lo + 0.1 * i <= hi + 1e-9; ++i) {
+    grid.push_back(std::round((lo + 0.1 * i) * 1e6) / 1e6);
+  }
+  analysis::FiniteLengthOptions options;
+  options.seed = sweep.seed;
+  options.stop = stop;
+  fl = analysis::AnalyseFiniteLength(block, grid, sweep.target_fer, options);
+}
+
 }  // namespace
 
 CodeReport DescribeChannel(const ChannelSpec& channel) {
@@ -277,6 +310,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     }
   }
   if (fading) AnalyseFadingLimits(chain, r);
+  AnalyseFiniteLengthLimits(chain, sweep, r, stop);
   if (std::isinf(r.limits.constrained_ebno_db)) {
     r.limits.notes =
         "constrained limit is infinite: an uncoded constellation carries its m bits per symbol "
@@ -304,6 +338,10 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     s.gap_to_ergodic_db = s.ebno_at_target_db - r.limits.ergodic_shannon_ebno_db;
   }
   s.gap_to_outage_db = OutageGapDb(r, r.target_fer);
+  if (r.limits.finite_length.present) {
+    s.gap_to_finite_length_db =
+        s.ebno_at_target_fer_db - r.limits.finite_length.normal_approximation_ebno_db;
+  }
   if (r.limits.threshold_present) {
     const Modulation& m = chain.scheme().modulation;
     if (m.family == ModulationFamily::kPsk && m.order <= 4) {

@@ -13,6 +13,7 @@
 #include <variant>
 #include <vector>
 
+#include "analysis/finite_length.h"
 #include "sim/chain/chain.h"
 #include "sim/config/config.h"
 #include "sim/engine/engine.h"
@@ -113,6 +114,11 @@ struct Limits {
       outage_probability_constrained;
   double outage_threshold_gaussian_esno_db = std::numeric_limits<double>::quiet_NaN();
   double outage_threshold_constrained_esno_db = std::numeric_limits<double>::quiet_NaN();
+  // Finite-length limits at the scheme's own block (n, k) on the AWGN
+  // channel, on a 0.1 dB grid and at target_fer (analysis/finite_length.h);
+  // finite_length.present is false for uncoded and fading schemes, with the
+  // reason in finite_length.absent_reason.
+  analysis::FiniteLengthLimits finite_length;
 };
 
 struct Summary {
@@ -136,6 +142,9 @@ struct Summary {
   // Eb/N0 where the Gaussian-input outage probability equals target_fer
   // (OutageGapDb); NaN while no target FER is set.
   double gap_to_outage_db = std::numeric_limits<double>::quiet_NaN();
+  // ebno_at_target_fer_db minus the normal approximation's Eb/N0 at
+  // target_fer for the scheme's (n, k); NaN without a finite-length limit.
+  double gap_to_finite_length_db = std::numeric_limits<double>::quiet_NaN();
 };
 
 // Power spectral density of the transmitted signal of a shaped scheme
