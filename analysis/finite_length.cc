@@ -321,6 +321,65 @@ double EqualPowerConverseFer(int n, double k, double snr) {
   return std::pow(10.0, 0.5 * (br.lo + br.hi));
 }
 
+RcuEstimate BinaryInputConverseFer(int n, double k, double snr, int samples,
+                                   std::uint64_t seed) {
+  // Meta-converse with Q_Y the output of i.i.d. uniform input: the log-
+  // likelihood ratio of x (any codeword, by symmetry) against Q is the sum S
+  // of the letters i(x_j; y_j) (bits). The Neyman-Pearson test accepting
+  // S >= t has type-I error eps(t) = P[S < t] and beta(t) = Q[S >= t] =
+  // E_P[2^-S 1{S >= t}]; the smallest FER with k bits is eps(t*) where
+  // -log2 beta(t*) = k. One sample set, tilted to centre S on k (where t*
+  // lies up to lower-order terms), gives both as weighted sums.
+  double theta = 0;
+  if (TiltedLetter(snr, 1.0, 0.0).mean_density() * n > k) {
+    theta = TiltedLetter(snr, 1.0, 1.0).mean_density() * n >= k
+                ? 1.0
+                : Bisect(0.0, 1.0, 1e-4, [&](double t) {
+                    return TiltedLetter(snr, 1.0, t).mean_density() * n > k;
+                  }).lo;
+  }
+  const TiltedLetter letter(snr, 1.0, theta);
+  std::mt19937_64 rng(seed);
+  const auto uniform = [&] {
+    return (static_cast<double>(rng() >> 11) + 0.5) * (1.0 / 9007199254740992.0);
+  };
+  struct Block {
+    double info, log_weight;
+  };
+  std::vector<Block> blocks(static_cast<std::size_t>(samples));
+  for (Block& b : blocks) {
+    b.info = 0;
+    b.log_weight = 0;
+    for (int j = 0; j < n; ++j) {
+      const double u1 = uniform();
+      letter.Draw(u1, uniform(), &b.info, &b.log_weight);
+    }
+  }
+  std::sort(blocks.begin(), blocks.end(),
+            [](const Block& a, const Block& b) { return a.info < b.info; });
+  // ln beta at t = blocks[i].info: log-sum-exp of ln w - S ln 2 over j >= i.
+  const double ln_n = std::log(static_cast<double>(samples));
+  std::vector<double> ln_beta(blocks.size() + 1, -std::numeric_limits<double>::infinity());
+  for (std::size_t i = blocks.size(); i-- > 0;) {
+    const double v = blocks[i].log_weight - blocks[i].info * std::log(2.0);
+    const double a = ln_beta[i + 1];
+    ln_beta[i] = a > v ? a + std::log1p(std::exp(v - a)) : v + std::log1p(std::exp(a - v));
+  }
+  // First threshold whose beta is at most 2^-k; eps = P-mass below it.
+  double eps = 0, eps2 = 0;
+  for (std::size_t i = 0; i < blocks.size(); ++i) {
+    if (-(ln_beta[i] - ln_n) * kLog2e >= k) {
+      const double mean = eps / samples;
+      const double var = std::max(0.0, eps2 / samples - mean * mean) / samples;
+      return {std::min(1.0, mean), mean > 0 ? std::sqrt(var) / mean : 0.0};
+    }
+    const double w = std::exp(blocks[i].log_weight);
+    eps += w;
+    eps2 += w * w;
+  }
+  return {1.0, 0.0};
+}
+
 FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
                                        std::span<const double> ebno_db, double target_fer,
                                        const FiniteLengthOptions& options) {
@@ -361,8 +420,35 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
   const auto rcu = [&](double x, int samples) {
     return BinaryInputRcus(real_uses, k, p_per_ebno * DbToLinear(x), rcu_s, samples, options.seed);
   };
+  const auto binary_converse = [&](double x, int samples) {
+    return BinaryInputConverseFer(real_uses, k, p_per_ebno * DbToLinear(x), samples,
+                                  options.seed + 1);
+  };
   const auto converse_fer = [&](double x) {
+    if (binary) return binary_converse(x, options.rcu_samples_curve).fer;
     return EqualPowerConverseFer(converse_uses, k, p_per_ebno * DbToLinear(x));
+  };
+  // Eb/N0 where a Monte Carlo FER estimate fer(x, samples) falls through the
+  // target: 0.1 dB steps up from `start` until it is below, log-linear
+  // interpolation, then one correction with more samples along the slope.
+  const auto cross_by_steps = [&](auto&& fer, double start, double* rse) {
+    double x0 = start;
+    double f0 = fer(x0, options.rcu_samples_curve).fer;
+    for (int step = 0; step < 40 && f0 > target_fer && !stopped(); ++step) {
+      const double x1 = x0 + 0.1;
+      const double f1 = fer(x1, options.rcu_samples_curve).fer;
+      if (f1 <= target_fer && f1 > 0) {
+        const double slope = (std::log10(f1) - std::log10(f0)) / (x1 - x0);  // < 0
+        double x = x0 + (std::log10(target_fer) - std::log10(f0)) / slope;
+        const RcuEstimate e = fer(x, options.rcu_samples_target);
+        if (e.fer > 0) x += (std::log10(target_fer) - std::log10(e.fer)) / slope;
+        *rse = e.relative_std_error;
+        return x;
+      }
+      x0 = x1;
+      f0 = f1;
+    }
+    return kNan;
   };
   // Eb/N0 where a FER that falls with Eb/N0 reaches the target (0.001 dB).
   const auto at_target = [&](auto&& fer) {
@@ -386,6 +472,13 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
       const Bracket br = Bisect(conv_lo, conv_hi, 1e-3, [&](double x) { return !admits(x); });
       r.converse_ebno_db = 0.5 * (br.lo + br.hi);
     }
+    r.converse_equal_power_ebno_db = r.converse_ebno_db;
+    if (binary && std::isfinite(r.converse_ebno_db) && !stopped()) {
+      // The binary-input meta-converse is tighter: start from the
+      // equal-power one (it lies below) and step up.
+      r.converse_ebno_db = cross_by_steps(binary_converse, r.converse_equal_power_ebno_db - 0.1,
+                                          &r.converse_relative_std_error);
+    }
     if (binary && std::isfinite(r.normal_approximation_ebno_db) && !stopped()) {
       // RCU lies above the NA (by a few tenths of a dB at these lengths):
       // step up from the NA in 0.1 dB until the bound falls below the
@@ -403,23 +496,8 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
         }
       }
       r.rcu_s = rcu_s;
-      double x0 = r.normal_approximation_ebno_db - 0.2;
-      double f0 = rcu(x0, options.rcu_samples_curve).fer;
-      for (int step = 0; step < 40 && f0 > target_fer && !stopped(); ++step) {
-        const double x1 = x0 + 0.1;
-        const double f1 = rcu(x1, options.rcu_samples_curve).fer;
-        if (f1 <= target_fer && f1 > 0) {
-          const double slope = (std::log10(f1) - std::log10(f0)) / (x1 - x0);  // < 0
-          double x = x0 + (std::log10(target_fer) - std::log10(f0)) / slope;
-          const RcuEstimate e = rcu(x, options.rcu_samples_target);
-          if (e.fer > 0) x += (std::log10(target_fer) - std::log10(e.fer)) / slope;
-          r.rcu_ebno_db = x;
-          r.rcu_relative_std_error = e.relative_std_error;
-          break;
-        }
-        x0 = x1;
-        f0 = f1;
-      }
+      r.rcu_ebno_db = cross_by_steps(rcu, r.normal_approximation_ebno_db - 0.2,
+                                     &r.rcu_relative_std_error);
     }
   }
   for (const double x : ebno_db) {
@@ -457,8 +535,16 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
                     "rcu_relative_std_error), " +
                     std::to_string(options.rcu_samples_curve) + " per curve point"
               : std::string("not evaluated for non-binary input (NaN)")) +
-      "; converse: meta-converse for equal-power codes on the real AWGN channel (same paper; "
-      "Gaussian auxiliary output, non-central chi-square Neyman-Pearson test), " +
+      "; converse: " +
+      (binary ? "meta-converse for binary input (same paper; auxiliary output = the output of "
+                "i.i.d. uniform input, Neyman-Pearson test on the information density, both "
+                "error probabilities from one importance-sampled set of " +
+                    std::to_string(options.rcu_samples_target) +
+                    " blocks, relative standard error in converse_relative_std_error); "
+                    "converse_equal_power_ebno_db: "
+              : std::string()) +
+      "meta-converse for equal-power codes on the real AWGN channel (same paper; "
+      "Gaussian auxiliary output, non-central chi-square Neyman-Pearson test, exact), " +
       std::to_string(converse_uses) + " real uses" +
       (converse_uses > real_uses ? " (average-power code extended by one dimension)" : "") +
       (bounds ? "" : "; RCU and converse skipped above " +

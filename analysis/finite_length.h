@@ -25,7 +25,11 @@
 //   with theta such that the sum of the information densities centres on
 //   log2(M - 1), and weighted by the likelihood ratio (BinaryInputRcus; its
 //   relative standard error is returned).
-// - Converse: PPV's meta-converse for equal-power codes on the real AWGN
+// - Converse: for binary input, PPV's meta-converse with the output of
+//   uniform i.i.d. input as auxiliary distribution, both error
+//   probabilities of its Neyman-Pearson test estimated from one importance-
+//   sampled set (BinaryInputConverseFer). Beside it, and for other inputs,
+//   PPV's meta-converse for equal-power codes on the real AWGN
 //   channel (Thm. 41 form; auxiliary output N(0, (1 + P) I)), log2 M <=
 //   -log2 beta_{1-eps}: the Neyman-Pearson test reduces to a non-central
 //   chi-square statistic (EqualPowerConverseLog2M). Every BPSK/QPSK and
@@ -97,6 +101,14 @@ double EqualPowerConverseLog2M(int n, double snr, double eps);
 // (bisection on log eps; 1 when even eps -> 1 does not admit k bits).
 double EqualPowerConverseFer(int n, double k, double snr);
 
+// PPV meta-converse for the binary-input AWGN channel with auxiliary output
+// the output of i.i.d. uniform input (by symmetry the bound holds for every
+// code): the smallest FER of k bits in n uses at SNR `snr`, by importance
+// sampling (exponential tilt centring the information density on k); fer is
+// the estimate, relative_std_error its error.
+RcuEstimate BinaryInputConverseFer(int n, double k, double snr, int samples,
+                                   std::uint64_t seed);
+
 // What the finite-length analysis of a scheme uses: its block on the channel
 // and which models apply.
 struct FiniteLengthBlock {
@@ -116,7 +128,9 @@ struct FiniteLengthLimits {
   double rcu_ebno_db = 0;       // NaN where the model has no RCU evaluation
   double rcu_relative_std_error = 0;
   double rcu_s = 0;  // the RCUs parameter used
-  double converse_ebno_db = 0;
+  double converse_ebno_db = 0;  // binary input: the binary meta-converse
+  double converse_relative_std_error = 0;
+  double converse_equal_power_ebno_db = 0;  // the equal-power (Gaussian auxiliary) one
   std::string method;
   std::vector<double> ebno_db;
   std::vector<double> fer_normal_approximation;

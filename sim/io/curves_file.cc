@@ -304,6 +304,8 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
         NumAttr(f, "rcu_ebno_db", F64, fl.rcu_ebno_db);
         NumAttr(f, "rcu_relative_std_error", F64, fl.rcu_relative_std_error);
         NumAttr(f, "converse_ebno_db", F64, fl.converse_ebno_db);
+        NumAttr(f, "converse_relative_std_error", F64, fl.converse_relative_std_error);
+        NumAttr(f, "converse_equal_power_ebno_db", F64, fl.converse_equal_power_ebno_db);
         StrAttr(f, "method", fl.method);
         Dataset(f, "ebno_db", F64, fl.ebno_db);
         Dataset(f, "fer_normal_approximation", F64, fl.fer_normal_approximation);
