@@ -217,12 +217,22 @@ class TiltedLetter {
           log_mass[static_cast<std::size_t>(c)] - mx - std::log(total * width_);
     }
     mean_ = mean / total;
+    // Guide table: guide_[g] is the first cell whose CDF reaches g / kCells,
+    // so a draw scans about one cell instead of a binary search.
+    guide_.resize(kCells + 1);
+    std::size_t c = 0;
+    for (int g = 0; g <= kCells; ++g) {
+      const double u = static_cast<double>(g) / kCells;
+      while (c + 1 < static_cast<std::size_t>(kCells) && cdf_[c] < u) ++c;
+      guide_[static_cast<std::size_t>(g)] = static_cast<std::uint32_t>(c);
+    }
   }
   double mean_density() const { return mean_; }  // E_q[i], bit
   // One output from two uniforms in (0, 1); adds i(y) and ln p(y)/q(y).
   void Draw(double u_cell, double u_within, double* info, double* log_weight) const {
-    const auto it = std::lower_bound(cdf_.begin(), cdf_.end(), u_cell);
-    const std::size_t c = std::min<std::size_t>(static_cast<std::size_t>(it - cdf_.begin()), kCells - 1);
+    // The first cell with cdf >= u_cell (as a binary search would give).
+    std::size_t c = guide_[static_cast<std::size_t>(u_cell * kCells)];
+    while (c + 1 < static_cast<std::size_t>(kCells) && cdf_[c] < u_cell) ++c;
     const double y = lo_ + (static_cast<double>(c) + u_within) * width_;
     *info += BinaryDensity(y, s_snr_);
     *log_weight += LogP(y) - log_density_[c];
@@ -235,6 +245,7 @@ class TiltedLetter {
   }
   double snr_, s_snr_, sigma_, lo_ = 0, width_ = 0, mean_ = 0;
   std::vector<double> cdf_, log_density_;
+  std::vector<std::uint32_t> guide_;
 };
 
 }  // namespace
@@ -462,7 +473,7 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
   r.normal_approximation_gaussian_ebno_db = at_target(gaussian_fer);
   r.rcu_ebno_db = kNan;
   r.converse_ebno_db = kNan;
-  if (bounds && !stopped()) {
+  if (bounds && options.at_target && !stopped()) {
     // Converse at the target: the Eb/N0 where the bound admits exactly k bits.
     const double conv_lo = -6.0, conv_hi = 30.0;
     const auto admits = [&](double x) {
@@ -479,7 +490,7 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
       r.converse_ebno_db = cross_by_steps(binary_converse, r.converse_equal_power_ebno_db - 0.1,
                                           &r.converse_relative_std_error);
     }
-    if (binary && std::isfinite(r.normal_approximation_ebno_db) && !stopped()) {
+    if (binary && options.rcu && std::isfinite(r.normal_approximation_ebno_db) && !stopped()) {
       // RCU lies above the NA (by a few tenths of a dB at these lengths):
       // step up from the NA in 0.1 dB until the bound falls below the
       // target, interpolate log FER linearly, then correct once with more
@@ -506,10 +517,12 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
     const double na = na_fer(x);
     r.fer_normal_approximation.push_back(na);
     r.fer_normal_approximation_gaussian.push_back(gaussian_fer(x));
-    // Bounds only where the FER is of interest (the NA above 1e-12).
-    const bool worth = bounds && na > 1e-12;
+    // Bounds only where the FER is of interest for a figure (the NA within
+    // [1e-9, 0.999]; outside, NaN).
+    const bool worth = bounds && na > 1e-9 && na < 0.999;
     r.fer_converse.push_back(worth ? converse_fer(x) : kNan);
-    r.fer_rcu.push_back(worth && binary ? rcu(x, options.rcu_samples_curve).fer : kNan);
+    r.fer_rcu.push_back(worth && binary && options.rcu ? rcu(x, options.rcu_samples_curve).fer
+                                                       : kNan);
   }
   r.present = true;
   std::string model =

@@ -140,12 +140,16 @@ struct FiniteLengthLimits {
 };
 
 struct FiniteLengthOptions {
-  int rcu_samples_curve = 1000;   // blocks per grid point
-  int rcu_samples_target = 8000;  // blocks at the target
+  // Blocks per Monte Carlo estimate (RCU and binary-input converse): per
+  // curve point and search step, and at the target.
+  int rcu_samples_curve = 500;
+  int rcu_samples_target = 6000;
   std::uint64_t seed = 1;
   // Blocks longer than this (real uses) skip RCU and converse (NaN): the NA
   // is within a few hundredths of a dB of both there.
   int max_bound_length = 20000;
+  bool rcu = true;        // false: skip the RCU bound (NaN)
+  bool at_target = true;  // false: skip the bounds' Eb/N0 at target_fer (curves only)
   const std::atomic<bool>* stop = nullptr;  // gives up (present = false) once true
 };
 

@@ -66,18 +66,22 @@ TEST(LdpcFiniteLength, NoShippedCodeBeatsTheConverseOrTheNormalApproximation) {
     block.info_bits = static_cast<int>(c.code().info_bits());
     block.points.assign(c.mapper().points().begin(), c.mapper().points().end());
     analysis::FiniteLengthOptions o;
-    o.rcu_samples_curve = 200;  // the RCU is not used here
-    o.rcu_samples_target = 200;
+    o.rcu = false;  // not used here
     const analysis::FiniteLengthLimits lim = analysis::AnalyseFiniteLength(block, {}, target, o);
     ASSERT_TRUE(lim.present) << lim.absent_reason;
     ASSERT_TRUE(std::isfinite(lim.converse_ebno_db));
     const double x = lim.converse_ebno_db;
-    // The bounds at x, evaluated afresh on a one-point grid.
+    // The bounds at x, evaluated afresh on a one-point grid (converse to
+    // about 3 % for binary input).
+    o.at_target = false;
+    o.rcu_samples_curve = 8000;
     const analysis::FiniteLengthLimits at_x =
         analysis::AnalyseFiniteLength(block, std::vector<double>{x}, target, o);
     const double converse_fer = at_x.fer_converse[0];
     const double na_fer = at_x.fer_normal_approximation[0];
-    EXPECT_NEAR(converse_fer, target, 0.05 * target);  // x is where the converse allows 1e-3
+    // x is where the converse allows 1e-3 (Monte Carlo for binary input:
+    // a few per cent).
+    EXPECT_NEAR(converse_fer, target, 0.15 * target);
 
     SweepConfig sweep;
     sweep.ebno_db = {x};
