@@ -126,11 +126,10 @@ Status CheckRecordedCounts(const Checkpoint& ckpt, const std::vector<Chain>& cha
 
 // Whether `cfg` may continue the run recorded in `ckpt` (read from
 // `ckpt_path`, named in messages). Refused, naming the key and both values:
-// any change of a scheme's definition (every [scheme.NAME] key but
-// stop_frame_errors and target_fer), a scheme of the checkpoint missing from
-// the config, sweep.seed, the Eb/N0 of a recorded point, a decrease of
-// target_errors, of a scheme's stop_frame_errors (sweep or scheme key) or of
-// max_bits, and any other [sweep] key not listed as free. An unset error
+// any change of a key its key table marks fixed (OnResume, key_table.h), a
+// scheme of the checkpoint missing from the config, sweep.seed, the Eb/N0 of
+// a recorded point, a decrease of target_errors, of a scheme's
+// stop_frame_errors (sweep or scheme key) or of max_bits. An unset error
 // target counts as infinite: setting one where there was none is a
 // decrease, removing one a raise. Free (extension) keys: target_errors,
 // stop_frame_errors and max_bits upwards (a raised target continues the
