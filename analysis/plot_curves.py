@@ -16,8 +16,13 @@ draws, per scheme in one colour:
     distribution (density evolution; dashed, long-short);
   * the target BER (thin horizontal line) and a double-headed arrow from the
     Shannon limit to the Eb/N0 reached at the target, labelled with the gap.
---fer adds a FER panel (same markers, intervals and limits; no theory or
-target there) under the BER panel; --fer-only draws FER alone.
+--fer adds a FER panel (same markers, intervals and limits) under the BER
+panel; --fer-only draws FER alone, --ber-only BER alone. The FER panel is
+the default when a scheme carries finite-length limits (coded schemes on
+AWGN): there it draws, per scheme, the normal approximation, the RCU
+achievability bound and the meta-converse for the code's own (n, k), the
+target FER and an arrow from the normal approximation to the simulated
+Eb/N0 at the target, labelled with the gap.
 Next to OUT.png it writes OUT-plane.png, the power-bandwidth comparison
 chart (analysis/plot_plane.py), and, when the file holds signal views,
 OUT-signal.png: measured spectrum against the ideal pulse spectrum, eye and
@@ -29,7 +34,7 @@ python3-numpy.
 
 Usage:
   /usr/bin/python3 analysis/plot_curves.py FILE.h5 -o OUT.png [--no-svg]
-      [--title TEXT] [--schemes a,b] [--fer | --fer-only] [--dpi N]
+      [--title TEXT] [--schemes a,b] [--fer | --fer-only | --ber-only] [--dpi N]
       [--no-plane] [--no-signal]
 OUT.svg is written next to OUT.png unless --no-svg. Exit status 1 with a
 message naming the file when it is not a readable capgap-curves file.
@@ -166,6 +171,27 @@ class Scheme:
             self.outage_constrained = np.asarray(lim["outage_probability_constrained"][()],
                                                  dtype=np.float64)
         self.gap_ergodic = float(summ.attrs.get("gap_to_ergodic_db", nan))
+        # Frame error rates: the summary at target_fer and the finite-length
+        # limits of the scheme's own (n, k) (coded AWGN schemes only).
+        self.target_fer = float(summ.attrs.get("target_fer", nan))
+        self.at_target_fer = float(summ.attrs.get("ebno_at_target_fer_db", nan))
+        self.gap_finite_length = float(summ.attrs.get("gap_to_finite_length_db", nan))
+        self.fl_ebno = self.fl_na = self.fl_rcu = self.fl_converse = None
+        self.fl_na_at_target = nan
+        self.fl_n = self.fl_k = 0
+        if "finite_length" in lim and isinstance(lim["finite_length"], h5py.Group):
+            fl = lim["finite_length"]
+            for n in ("ebno_db", "fer_normal_approximation", "fer_rcu", "fer_converse"):
+                if n not in fl:
+                    raise FileFormatError(f"{where}/limits/finite_length: missing dataset '{n}'")
+            self.fl_ebno = np.asarray(fl["ebno_db"][()], dtype=np.float64)
+            self.fl_na = np.asarray(fl["fer_normal_approximation"][()], dtype=np.float64)
+            self.fl_rcu = np.asarray(fl["fer_rcu"][()], dtype=np.float64)
+            self.fl_converse = np.asarray(fl["fer_converse"][()], dtype=np.float64)
+            self.fl_na_at_target = _attr(fl, "normal_approximation_ebno_db",
+                                         f"{where}/limits/finite_length")
+            self.fl_n = int(fl.attrs.get("n", 0))
+            self.fl_k = int(fl.attrs.get("k", 0))
         self.curve_rho = self.curve_ebno = None
         if "constrained_curve_rho" in lim and "constrained_curve_ebno_db" in lim:
             self.curve_rho = np.asarray(lim["constrained_curve_rho"][()], dtype=np.float64)
@@ -265,6 +291,8 @@ def _y_limits(schemes, rate):
         highs += list(high[high > 0])
         if rate == "ber":
             lows.append(s.target_ber)
+        elif s.fl_ebno is not None and math.isfinite(s.target_fer):
+            lows.append(s.target_fer)
     smallest = min(lows) if lows else 1e-6
     y_min = max(BER_FLOOR, _decade_floor(smallest) / 10.0)
     top = max(highs) if highs else 0.5
@@ -281,7 +309,8 @@ def _x_limits(schemes):
     xs = []
     for s in schemes:
         xs += list(s.ebno_db)
-        xs += [v for v in (s.shannon, s.constrained, s.at_target, s.threshold, s.ergodic)
+        xs += [v for v in (s.shannon, s.constrained, s.at_target, s.threshold, s.ergodic,
+                           s.fl_na_at_target)
                if math.isfinite(v)]
     lo, hi = min(xs), max(xs)
     return math.floor(lo - 1.0), math.ceil(hi + 1.0)
@@ -350,6 +379,50 @@ def _draw_outage(ax, s, colour):
                     alpha=0.8, zorder=2)
 
 
+FL_NA_STYLE = "-"
+FL_RCU_STYLE = (0, (3, 1.5))
+FL_CONVERSE_STYLE = (0, (1, 1.2))
+
+
+def _draw_finite_length(ax, s, colour):
+    """FER panel: the finite-length limits of the scheme's (n, k): normal
+    approximation (thin solid), RCU achievability bound (short dashes) and
+    meta-converse (dots); no code of that length and rate lies left of the
+    converse."""
+    if s.fl_ebno is None:
+        return
+    for y, style in ((s.fl_na, FL_NA_STYLE), (s.fl_rcu, FL_RCU_STYLE),
+                     (s.fl_converse, FL_CONVERSE_STYLE)):
+        ok = np.isfinite(y) & (y > 0) & (y < 1)
+        if np.any(ok):
+            ax.plot(s.fl_ebno[ok], y[ok], color=colour, linestyle=style, linewidth=1.0,
+                    alpha=0.85, zorder=2)
+
+
+def _draw_fer_gap(ax, s, colour, y):
+    """Arrow from the finite-length normal approximation at target_fer to the
+    Eb/N0 the simulated FER reaches there, labelled with the gap."""
+    if not (math.isfinite(s.at_target_fer) and math.isfinite(s.fl_na_at_target)):
+        return
+    gap = s.gap_finite_length if math.isfinite(s.gap_finite_length) \
+        else s.at_target_fer - s.fl_na_at_target
+    if y < s.target_fer:
+        ax.plot([s.at_target_fer, s.at_target_fer], [y, s.target_fer], color=colour,
+                linewidth=0.8, linestyle=(0, (1, 1.5)), zorder=5)
+    ax.plot([s.at_target_fer], [s.target_fer], marker="o", markersize=4.5, color=colour,
+            markerfacecolor="white", markeredgewidth=1.2, zorder=6)
+    ax.annotate("", xy=(s.at_target_fer, y), xytext=(s.fl_na_at_target, y),
+                arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
+                                shrinkA=0, shrinkB=0, mutation_scale=9),
+                zorder=5)
+    mid = 0.5 * (s.fl_na_at_target + s.at_target_fer)
+    ax.annotate(f"gap to n = {s.fl_n} limit {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
+                textcoords="offset points", ha="center", va="bottom",
+                fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
+                bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
+                          alpha=0.8))
+
+
 def _draw_gap(ax, s, colour, y):
     """Arrow from the Shannon limit (fading schemes: the ergodic limit) to
     the Eb/N0 reached at target_ber.
@@ -392,7 +465,8 @@ AWGN_REFERENCE_STYLE = (0, (1, 1.5))
 
 
 def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
-                 any_threshold=False, any_ergodic=False, any_outage=False, any_awgn_ref=False):
+                 any_threshold=False, any_ergodic=False, any_outage=False, any_awgn_ref=False,
+                 any_finite_length=False):
     h = [Line2D([], [], color=GREY, marker="o", markersize=5, linewidth=1.4,
                 label="simulated, 95 % Clopper\u2013Pearson interval")]
     if any_zero:
@@ -420,11 +494,19 @@ def _key_handles(rate, any_zero, any_constrained, with_theory, any_bound=False,
                         label="outage probability, Gaussian input (block fading)"))
         h.append(Line2D([], [], color=GREY, linestyle=(0, (4, 2)), linewidth=1.0,
                         label="outage probability, constellation (block fading)"))
+    if any_finite_length:
+        h.append(Line2D([], [], color=GREY, linestyle=FL_NA_STYLE, linewidth=1.0,
+                        label="FER limit at the code's (n, k): normal approximation"))
+        h.append(Line2D([], [], color=GREY, linestyle=FL_RCU_STYLE, linewidth=1.0,
+                        label="  RCU achievability bound"))
+        h.append(Line2D([], [], color=GREY, linestyle=FL_CONVERSE_STYLE, linewidth=1.0,
+                        label="  meta-converse (no code lies left of it)"))
     if rate == "ber" and any_bound:
         h.append(Line2D([], [], color=GREY, linestyle=(0, (6, 1.5, 1, 1.5, 1, 1.5)),
                         linewidth=1.2, label="union bound (coded, soft decisions)"))
     if rate == "ber":
-        h.append(Line2D([], [], color="#222222", linewidth=0.9, label="target BER"))
+        h.append(Line2D([], [], color="#222222", linewidth=0.9,
+                        label="target BER / FER" if any_finite_length else "target BER"))
     return h
 
 
@@ -450,6 +532,7 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
                         linestyle=AWGN_REFERENCE_STYLE, linewidth=1.0, alpha=0.6, zorder=2)
         if rate == "fer":
             _draw_outage(ax, s, colour)
+            _draw_finite_length(ax, s, colour)
         bound = s.bound_ber if rate == "ber" else s.bound_fer
         if s.theory_ebno is not None and bound is not None:
             # Union bound of a coded scheme (its uncoded curve is not drawn:
@@ -485,6 +568,27 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
             if y < y_lim[0]:
                 continue
             _draw_gap(ax, s, PALETTE[i % len(PALETTE)], y)
+    if rate == "fer":
+        targets = sorted({s.target_fer for s in schemes if math.isfinite(s.target_fer)
+                          and s.fl_ebno is not None})
+        for t in targets:
+            ax.axhline(t, color="#222222", linewidth=0.9, zorder=2.5)
+            ax.annotate(f"target FER {t:.0e}".replace("e-0", "e-"), xy=(0.0, t),
+                        xycoords=("axes fraction", "data"), xytext=(4, 2.5),
+                        textcoords="offset points", ha="left", va="bottom",
+                        fontsize=8.5, color="#222222",
+                        bbox=dict(boxstyle="square,pad=0.1", facecolor="white",
+                                  edgecolor="none", alpha=0.8))
+        step = 0.045 * math.log10(y_lim[1] / y_lim[0])
+        per_target = {}
+        for i, s in enumerate(schemes):
+            if s.fl_ebno is None or not math.isfinite(s.target_fer):
+                continue
+            k = per_target.get(s.target_fer, 0)
+            per_target[s.target_fer] = k + 1
+            y = s.target_fer * 10.0 ** (-step * k)
+            if y >= y_lim[0]:
+                _draw_fer_gap(ax, s, PALETTE[i % len(PALETTE)], y)
     # One legend outside the axes on the right (constrained layout reserves
     # room for an axes legend): schemes first, then the line-style key. Inside
     # the axes it would cover the gap annotations or the curves.
@@ -518,7 +622,8 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
         any_threshold=any(math.isfinite(s.threshold) for s in schemes),
         any_ergodic=any(math.isfinite(s.ergodic) for s in schemes),
         any_outage="fer" in rates and any(s.outage_ebno is not None for s in schemes),
-        any_awgn_ref=any(s.theory_ber_awgn is not None and not s.coded for s in schemes))
+        any_awgn_ref=any(s.theory_ber_awgn is not None and not s.coded for s in schemes),
+        any_finite_length="fer" in rates and any(s.fl_ebno is not None for s in schemes))
     for k, (ax, rate) in enumerate(zip(axes, rates)):
         last = k == len(rates) - 1
         draw_panel(ax, schemes, rate, x_lim, scheme_legend=(k == 0),
@@ -546,7 +651,9 @@ def parse_args(argv):
     ap.add_argument("--schemes", help="comma-separated scheme names to plot, in this order")
     fer = ap.add_mutually_exclusive_group()
     fer.add_argument("--fer", action="store_true",
-                     help="add a FER panel under the BER panel (figure 9 x 10.5 in)")
+                     help="add a FER panel under the BER panel (figure 9 x 10.5 in); the "
+                          "default when a plotted scheme carries finite-length limits")
+    fer.add_argument("--ber-only", action="store_true", help="plot BER alone")
     fer.add_argument("--fer-only", action="store_true", help="plot FER instead of BER")
     ap.add_argument("--dpi", type=int, default=150, help="PNG resolution (default 150)")
     ap.add_argument("--no-plane", action="store_true",
@@ -570,7 +677,11 @@ def main(argv):
     except FileFormatError as e:
         print(f"{prog}: error: {args.file}: {e}", file=sys.stderr)
         return 1
-    fer_mode = "only" if args.fer_only else "also" if args.fer else "none"
+    # Coded schemes with finite-length limits are judged by their FER: the
+    # FER panel is then on by default.
+    default = "also" if any(s.fl_ebno is not None for s in schemes) else "none"
+    fer_mode = "only" if args.fer_only else "also" if args.fer \
+        else "none" if args.ber_only else default
     fig = make_figure(args.file, schemes, meta, args.title, fer_mode, args.dpi)
     png.parent.mkdir(parents=True, exist_ok=True)
     fig.savefig(png, dpi=args.dpi, metadata={"Software": "capgap analysis/plot_curves.py"})

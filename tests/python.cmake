@@ -70,6 +70,22 @@ add_test(NAME python_h5_layout_of_real_run
           --plotter ${CMAKE_SOURCE_DIR}/analysis/plot_curves.py
   WORKING_DIRECTORY ${_capgap_py_work})
 
+# (c2) A short LDPC code (configs/qpsk_ldpc_peg_n128_r1-2.ini, cut down to
+#      three points stopping on frame errors): the finite-length limits group
+#      is checked (the NA recomputed with numpy) and drawn in the FER panel.
+add_test(NAME python_finite_length_run
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/run_and_check.py
+          --capgap ${CMAKE_BINARY_DIR}/capgap
+          --config ${CMAKE_SOURCE_DIR}/configs/qpsk_ldpc_peg_n128_r1-2.ini
+          --out ${CMAKE_BINARY_DIR}/tests/finite_length_n128.h5
+          --checker ${_capgap_py_dir}/check_h5_layout.py
+          --plotter ${CMAKE_SOURCE_DIR}/analysis/plot_curves.py
+          --set sweep.ebno_db=2:1:4 --set sweep.stop_frame_errors=30
+          --set sweep.max_bits=2000000
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_finite_length_run
+  PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 600)
+
 # (d) A fading scheme's file (written by tests/sim/io/fading_curves_test.cc):
 #     layout check with the fading theory, and the plots with the ergodic and
 #     outage limits.

@@ -139,6 +139,39 @@ void AnalyseFadingLimits(const Chain& chain, SchemeResult& r) {
   }
 }
 
+// Finite-length limits of a coded scheme on the AWGN channel at its own
+// block: coded bits and information bits per frame on its constellation, on
+// a 0.1 dB grid over the sweep +-1 dB, and at target_fer.
+void AnalyseFiniteLengthLimits(const Chain& chain, const SweepConfig& sweep, SchemeResult& r,
+                               const std::atomic<bool>* stop) {
+  analysis::FiniteLengthLimits& fl = r.limits.finite_length;
+  if (chain.code().identity()) {
+    fl.absent_reason = "uncoded: a frame is not a code block, so there is no (n, k) to bound";
+    return;
+  }
+  if (FadingTheoryApplies(chain.scheme().channel)) {
+    fl.absent_reason =
+        "fading channel: the finite-length limits here are for the AWGN channel (see the outage "
+        "limits)";
+    return;
+  }
+  analysis::FiniteLengthBlock block;
+  block.coded_bits = static_cast<int>(chain.code().coded_bits());
+  block.info_bits = static_cast<int>(chain.code().info_bits());
+  const auto pts = chain.mapper().points();
+  block.points.assign(pts.begin(), pts.end());
+  std::vector<double> grid;
+  const double lo = std::floor((sweep.ebno_db.front() - 1.0) * 10.0) / 10.0;
+  const double hi = sweep.ebno_db.back() + 1.0;
+  for (int i = 0; lo + 0.1 * i <= hi + 1e-9; ++i) {
+    grid.push_back(std::round((lo + 0.1 * i) * 1e6) / 1e6);
+  }
+  analysis::FiniteLengthOptions options;
+  options.seed = sweep.seed;
+  options.stop = stop;
+  fl = analysis::AnalyseFiniteLength(block, grid, sweep.target_fer, options);
+}
+
 }  // namespace
 
 CodeReport DescribeChannel(const ChannelSpec& channel) {
@@ -157,18 +190,27 @@ CodeReport DescribeChannel(const ChannelSpec& channel) {
   return report;
 }
 
+TargetCrossing CrossTarget(std::span<const PointResult> points, ErrorRate rate, double target) {
+  std::vector<double> x, y, low, high;
+  for (const auto& p : points) {
+    if (p.stop_reason == StopReason::kInterrupted) continue;
+    const bool ber = rate == ErrorRate::kBer;
+    const Interval& ci = ber ? p.ber_ci : p.fer_ci;
+    x.push_back(p.ebno_db);
+    y.push_back(ber ? p.ber() : p.fer());
+    low.push_back(ci.low);
+    high.push_back(ci.high);
+  }
+  // The lower bound crosses first (optimistic Eb/N0), the upper bound last.
+  return {CrossingDb(x, y, target), CrossingDb(x, low, target), CrossingDb(x, high, target)};
+}
+
 double OutageGapDb(const SchemeResult& r, double target_fer) {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const ChannelSpec& ch = r.scheme.channel;
   if (ch.time != FadingTime::kBlock || !FadingTheoryApplies(ch)) return nan;
   if (!(target_fer > 0.0) || !(target_fer < 1.0)) return nan;
-  std::vector<double> x, fer;
-  for (const auto& p : r.points) {
-    if (p.stop_reason == StopReason::kInterrupted) continue;
-    x.push_back(p.ebno_db);
-    fer.push_back(p.fer());
-  }
-  const double simulated = CrossingDb(x, fer, target_fer);
+  const double simulated = CrossTarget(r.points, ErrorRate::kFer, target_fer).ebno_db;
   const double rho = r.info_bits_per_symbol;
   const double outage = analysis::OutageEbnoDbAtProbability(
       ch, analysis::GaussianOutageThresholdEsnoDb(rho), rho, target_fer);
@@ -196,6 +238,7 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     }
   }
   r.target_ber = sweep.target_ber;
+  r.target_fer = sweep.target_fer;
   r.points = std::move(points);
 
   // Theory on a 0.05 dB grid spanning the configured sweep, one dB either side.
@@ -251,25 +294,22 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     }
   }
   if (fading) AnalyseFadingLimits(chain, r);
+  AnalyseFiniteLengthLimits(chain, sweep, r, stop);
   if (std::isinf(r.limits.constrained_ebno_db)) {
     r.limits.notes =
         "constrained limit is infinite: an uncoded constellation carries its m bits per symbol "
         "only at infinite SNR; it becomes finite once a code lowers rho";
   }
 
-  std::vector<double> x, ber, ber_low, ber_high;
-  for (const auto& p : r.points) {
-    if (p.stop_reason == StopReason::kInterrupted) continue;
-    x.push_back(p.ebno_db);
-    ber.push_back(p.ber());
-    ber_low.push_back(p.ber_ci.low);
-    ber_high.push_back(p.ber_ci.high);
-  }
   Summary& s = r.summary;
-  s.ebno_at_target_db = CrossingDb(x, ber, sweep.target_ber);
-  // The lower BER bound crosses first (optimistic Eb/N0), the upper bound last.
-  s.ebno_at_target_low_db = CrossingDb(x, ber_low, sweep.target_ber);
-  s.ebno_at_target_high_db = CrossingDb(x, ber_high, sweep.target_ber);
+  const TargetCrossing at_ber = CrossTarget(r.points, ErrorRate::kBer, sweep.target_ber);
+  s.ebno_at_target_db = at_ber.ebno_db;
+  s.ebno_at_target_low_db = at_ber.low_db;
+  s.ebno_at_target_high_db = at_ber.high_db;
+  const TargetCrossing at_fer = CrossTarget(r.points, ErrorRate::kFer, sweep.target_fer);
+  s.ebno_at_target_fer_db = at_fer.ebno_db;
+  s.ebno_at_target_fer_low_db = at_fer.low_db;
+  s.ebno_at_target_fer_high_db = at_fer.high_db;
   s.uncoded_ebno_at_target_db = fading
                                     ? analysis::FadingEbnoDbAtBer(mod, channel, sweep.target_ber)
                                     : analysis::UncodedEbnoDbAtBer(mod, sweep.target_ber);
@@ -282,6 +322,10 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
     s.gap_to_ergodic_db = s.ebno_at_target_db - r.limits.ergodic_shannon_ebno_db;
   }
   s.gap_to_outage_db = OutageGapDb(r, r.target_fer);
+  if (r.limits.finite_length.present) {
+    s.gap_to_finite_length_db =
+        s.ebno_at_target_fer_db - r.limits.finite_length.normal_approximation_ebno_db;
+  }
   if (r.limits.threshold_present) {
     const Modulation& m = chain.scheme().modulation;
     if (m.family == ModulationFamily::kPsk && m.order <= 4) {

@@ -7,11 +7,13 @@
 
 #include <atomic>
 #include <limits>
+#include <span>
 #include <string>
 #include <string_view>
 #include <variant>
 #include <vector>
 
+#include "analysis/finite_length.h"
 #include "sim/chain/chain.h"
 #include "sim/config/config.h"
 #include "sim/engine/engine.h"
@@ -116,12 +118,21 @@ struct Limits {
       outage_probability_constrained;
   double outage_threshold_gaussian_esno_db = std::numeric_limits<double>::quiet_NaN();
   double outage_threshold_constrained_esno_db = std::numeric_limits<double>::quiet_NaN();
+  // Finite-length limits at the scheme's own block (n, k) on the AWGN
+  // channel, on a 0.1 dB grid and at target_fer (analysis/finite_length.h);
+  // finite_length.present is false for uncoded and fading schemes, with the
+  // reason in finite_length.absent_reason.
+  analysis::FiniteLengthLimits finite_length;
 };
 
 struct Summary {
   double ebno_at_target_db;
   double ebno_at_target_low_db;   // from the lower CI bound (optimistic)
   double ebno_at_target_high_db;  // from the upper CI bound (pessimistic)
+  // The same at target_fer from the FER and its Clopper-Pearson bounds.
+  double ebno_at_target_fer_db = std::numeric_limits<double>::quiet_NaN();
+  double ebno_at_target_fer_low_db = std::numeric_limits<double>::quiet_NaN();
+  double ebno_at_target_fer_high_db = std::numeric_limits<double>::quiet_NaN();
   double uncoded_ebno_at_target_db;
   double coding_gain_db;
   double gap_to_shannon_db;
@@ -135,6 +146,9 @@ struct Summary {
   // Eb/N0 where the Gaussian-input outage probability equals target_fer
   // (OutageGapDb); NaN while no target FER is set.
   double gap_to_outage_db = std::numeric_limits<double>::quiet_NaN();
+  // ebno_at_target_fer_db minus the normal approximation's Eb/N0 at
+  // target_fer for the scheme's (n, k); NaN without a finite-length limit.
+  double gap_to_finite_length_db = std::numeric_limits<double>::quiet_NaN();
 };
 
 // Power spectral density of the transmitted signal of a shaped scheme
@@ -178,14 +192,27 @@ struct SchemeResult {
   // The decoder is iterative: the points carry iteration statistics.
   bool iterative = false;
   double target_ber = 1e-5;
-  // FER of the summary's outage gap; NaN (no gap computed) until the sweep
-  // carries a target FER.
-  double target_fer = std::numeric_limits<double>::quiet_NaN();
+  // FER of the summary (Eb/N0 at target FER, outage gap, finite-length
+  // limits): the scheme's sweep.target_fer.
+  double target_fer = 1e-4;
   std::vector<PointResult> points;
   TheoryCurve theory;
   Limits limits;
   Summary summary;
 };
+
+// Where a simulated curve crosses a target error rate: the Eb/N0 of the
+// rate itself and of its Clopper-Pearson bounds (low_db from the lower bound,
+// optimistic; high_db from the upper, pessimistic), interpolated in log
+// rate (CrossingDb), over the points not interrupted; NaN where a curve does
+// not cross.
+enum class ErrorRate { kBer, kFer };
+struct TargetCrossing {
+  double ebno_db;
+  double low_db;
+  double high_db;
+};
+TargetCrossing CrossTarget(std::span<const PointResult> points, ErrorRate rate, double target);
 
 // Gap to the block-fading outage limit at a target FER: the Eb/N0 where the
 // simulated FER (points not interrupted) crosses target_fer minus the Eb/N0

@@ -81,7 +81,8 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
       "results/<config name>.h5, creating results/); its checkpoint is FILE.ckpt")(
       "resume",
       "continue the run recorded in FILE.ckpt (finished points are kept; with larger "
-      "target_errors/max_bits or more Eb/N0 points it extends them); starts fresh if there is "
+      "target_errors/stop_frame_errors/max_bits or more Eb/N0 points it extends them); starts "
+      "fresh if there is "
       "none")("set", po::value(&run.overrides)->composing(),
               "override a config key, e.g. --set sweep.target_errors=500 or "
               "--set scheme.qpsk.frame_bits=4096 (repeatable)")(

@@ -8,6 +8,7 @@
 #include "sim/chain/registry.h"
 
 #include <algorithm>
+#include <cmath>
 #include <filesystem>
 #include <numeric>
 
@@ -112,9 +113,11 @@ Result<SweepConfig> BuildSweep(const ResolvedKeys& k) {
   if (!points.ok()) return k.Fail("ebno_db", points.status().message());
   c.ebno_db = points.value();
   c.target_errors = k.integer("target_errors");
+  if (k.has("stop_frame_errors")) c.stop_frame_errors = k.integer("stop_frame_errors");
   c.max_bits = k.integer("max_bits");
   c.ber_floor = k.number("ber_floor");
   c.target_ber = k.number("target_ber");
+  c.target_fer = k.number("target_fer");
   c.seed = k.integer("seed");
   c.threads = static_cast<int>(k.integer("threads"));
   c.checkpoint_seconds = k.number("checkpoint_seconds");
@@ -131,6 +134,14 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
     auto points = ParseDbPoints(k.text("ebno_db"));
     if (!points.ok()) return k.Fail("ebno_db", points.status().message());
     s.ebno_db = points.value();
+  }
+  if (k.has("stop_frame_errors")) s.stop_frame_errors = k.integer("stop_frame_errors");
+  if (k.has("target_fer")) s.target_fer = k.number("target_fer");
+  if (sweep.target_errors == 0 && sweep.stop_frame_errors == 0 && s.stop_frame_errors == 0) {
+    return Status::Error(source + ": sweep.target_errors = '0' and no stop_frame_errors for scheme " +
+                         name +
+                         ": a point needs an error target (set sweep.target_errors >= 1 or "
+                         "stop_frame_errors in [sweep] or [scheme." + name + "])");
   }
   auto modulation = ParseConstellation(k.text("modulation"));
   if (!modulation.ok()) return k.Fail("modulation", modulation.status().message());
@@ -226,7 +237,10 @@ Result<std::vector<double>> ParseDbList(const std::string& text, const std::stri
 
 SweepConfig RunConfig::SweepFor(std::size_t i) const {
   SweepConfig s = sweep;
-  s.ebno_db = schemes.at(i).ebno_db;
+  const SchemeConfig& scheme = schemes.at(i);
+  s.ebno_db = scheme.ebno_db;
+  if (scheme.stop_frame_errors > 0) s.stop_frame_errors = scheme.stop_frame_errors;
+  if (!std::isnan(scheme.target_fer)) s.target_fer = scheme.target_fer;
   return s;
 }
 

@@ -12,6 +12,7 @@
 
 #include <any>
 #include <cstdint>
+#include <limits>
 #include <map>
 #include <string>
 #include <string_view>
@@ -37,10 +38,16 @@ inline constexpr std::string_view kSourceKindWords[] = {"random", "prbs9", "prbs
 
 struct SweepConfig {
   std::vector<double> ebno_db;          // points in simulation order
-  std::uint64_t target_errors = 100;    // bit errors that end a point
+  // Stopping rule of a point: it stops at the first unit (in index order)
+  // after which its counted prefix holds target_errors bit errors, or
+  // stop_frame_errors frame errors, or max_bits information bits, whichever
+  // comes first; 0 disables one error target (at least one is set).
+  std::uint64_t target_errors = 100;    // bit errors that end a point (0: none)
+  std::uint64_t stop_frame_errors = 0;  // frame errors that end a point (0: none)
   std::uint64_t max_bits = 100000000;   // information bits that end a point
   double ber_floor = 1e-7;              // a scheme's sweep ends after a point below it
   double target_ber = 1e-5;             // BER of the summary (Eb/N0 needed, gaps)
+  double target_fer = 1e-4;             // FER of the summary and finite-length limits
   std::uint64_t seed = 1;
   int threads = 0;                      // 0: all cores
   // Seconds between checkpoints while a point runs (0: only when a point
@@ -95,6 +102,10 @@ struct SchemeConfig {
   std::string name;
   // Eb/N0 points of this scheme: its own ebno_db key, else sweep.ebno_db.
   std::vector<double> ebno_db;
+  // Overrides of the sweep's stop_frame_errors / target_fer (0 / NaN: the
+  // sweep's own); RunConfig::SweepFor applies them.
+  std::uint64_t stop_frame_errors = 0;
+  double target_fer = std::numeric_limits<double>::quiet_NaN();
   Modulation modulation;
   DemapMethod demapper = DemapMethod::kMaxLog;
   std::uint32_t frame_bits = 0;         // information bits per frame
@@ -128,7 +139,8 @@ struct RunConfig {
   std::string source_name;  // file name used in messages
   SweepConfig sweep;
   std::vector<SchemeConfig> schemes;
-  // The sweep of scheme i: `sweep` with that scheme's Eb/N0 points.
+  // The sweep of scheme i: `sweep` with that scheme's Eb/N0 points,
+  // stop_frame_errors and target_fer.
   SweepConfig SweepFor(std::size_t i) const;
   // Every key after defaults and overrides, "section.key" -> value.
   std::vector<std::pair<std::string, std::string>> resolved;

@@ -189,6 +189,7 @@ std::string OnResumeText(OnResume rule) {
     case OnResume::kFree: return "may change on --resume";
     case OnResume::kMayGrow: return "may only grow on --resume";
     case OnResume::kAppendPoints: return "points may be appended on --resume";
+    case OnResume::kErrorTarget: return "may only grow or be removed on --resume";
   }
   return "";
 }

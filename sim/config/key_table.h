@@ -147,6 +147,10 @@ enum class OnResume {
   kFree,          // may change: it alters neither the streams nor the recorded work
   kMayGrow,       // an integer stopping limit that may only be raised
   kAppendPoints,  // an Eb/N0 list: recorded points keep their values, new ones may follow
+  // An error target (0 or absent: none, i.e. infinite) that may only be
+  // raised or removed; checked on the scheme's effective value
+  // (CheckResumable).
+  kErrorTarget,
 };
 
 struct KeySpec {

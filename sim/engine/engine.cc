@@ -27,15 +27,18 @@ std::string ToString(StopReason reason) {
     case StopReason::kTargetErrors: return "target_errors";
     case StopReason::kMaxBits: return "max_bits";
     case StopReason::kInterrupted: return "interrupted";
+    case StopReason::kStopFrameErrors: return "stop_frame_errors";
   }
   return "unknown";
 }
 
 Result<StopReason> ParseStopReason(const std::string& word) {
-  for (StopReason r : {StopReason::kTargetErrors, StopReason::kMaxBits, StopReason::kInterrupted}) {
+  for (StopReason r : {StopReason::kTargetErrors, StopReason::kStopFrameErrors, StopReason::kMaxBits,
+                       StopReason::kInterrupted}) {
     if (word == ToString(r)) return r;
   }
-  return Status::Error("stop reason '" + word + "': valid: target_errors, max_bits, interrupted");
+  return Status::Error("stop reason '" + word +
+                       "': valid: target_errors, stop_frame_errors, max_bits, interrupted");
 }
 
 int ResolveThreadCount(int requested) {
@@ -49,8 +52,12 @@ std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_
 }
 
 bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason) {
-  if (counts.bit_errors >= sweep.target_errors) {
+  if (sweep.target_errors > 0 && counts.bit_errors >= sweep.target_errors) {
     *reason = StopReason::kTargetErrors;
+    return true;
+  }
+  if (sweep.stop_frame_errors > 0 && counts.frame_errors >= sweep.stop_frame_errors) {
+    *reason = StopReason::kStopFrameErrors;
     return true;
   }
   if (counts.bits >= sweep.max_bits) {
@@ -95,10 +102,14 @@ class PointState final : public PointControl {
     if (prefix_end == 0) return -1;
     const double units = prefix_end;
     double need = std::numeric_limits<double>::infinity();
-    if (prefix.bit_errors > 0) {
-      need = static_cast<double>(sweep_.target_errors - std::min(sweep_.target_errors, prefix.bit_errors)) *
-             units / static_cast<double>(prefix.bit_errors);
-    }
+    // Units still needed to reach `target` (0: no such target) at the
+    // prefix's rate of `have` per unit.
+    const auto units_to = [&](std::uint64_t target, std::uint64_t have) {
+      if (target == 0 || have == 0) return std::numeric_limits<double>::infinity();
+      return static_cast<double>(target - std::min(target, have)) * units / static_cast<double>(have);
+    };
+    need = std::min(units_to(sweep_.target_errors, prefix.bit_errors),
+                    units_to(sweep_.stop_frame_errors, prefix.frame_errors));
     if (prefix.bits > 0) {
       need = std::min(need, static_cast<double>(sweep_.max_bits - std::min(sweep_.max_bits, prefix.bits)) *
                                 units / static_cast<double>(prefix.bits));
@@ -235,7 +246,7 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
       if (progress_due) {
         last_progress = now;
         Progress p{&chain.scheme().name, point_index, sweep.ebno_db.size(), ebno_db, prefix,
-                   sweep.target_errors, sweep.max_bits, start.seconds + secs,
+                   sweep.target_errors, sweep.stop_frame_errors, sweep.max_bits, start.seconds + secs,
                    secs > 0 ? static_cast<double>(all_bits) / secs : 0.0};
         options.on_progress(p);
       }

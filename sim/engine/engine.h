@@ -5,7 +5,8 @@
 // Stopping rule (thread- and process-count independent): units finish in any
 // order, but the point's counts are the sum over the *prefix* of units 0..k in
 // index order, where k is the first index at which the prefix reaches
-// target_errors bit errors or max_bits information bits. Units beyond k that
+// target_errors bit errors (if set), stop_frame_errors frame errors (if set)
+// or max_bits information bits, whichever happens first. Units beyond k that
 // happened to run are discarded. Since unit i's counts depend only on (seed,
 // scheme, point, i), the counts are bit-identical for any number of threads
 // or processes.
@@ -13,7 +14,8 @@
 // Resuming: a point may start from a counted prefix saved earlier (PointStart:
 // units [0, u) and their sum). Work then continues at unit u with the rule
 // applied unit by unit from there, which gives exactly the counts of an
-// uninterrupted run as long as target_errors and max_bits did not decrease
+// uninterrupted run as long as target_errors, stop_frame_errors and max_bits
+// did not decrease (an unset error target counts as infinite)
 // (the saved prefix never met the rule at any earlier unit). The counted
 // prefix is offered to a checkpoint callback at a fixed interval.
 //
@@ -64,7 +66,8 @@ struct Progress {
   std::size_t point_count;
   double ebno_db;
   UnitCounts counts;  // counted prefix so far
-  std::uint64_t target_errors;
+  std::uint64_t target_errors;      // 0: none
+  std::uint64_t stop_frame_errors;  // 0: none
   std::uint64_t max_bits;
   double seconds;          // spent on the point so far (saved sessions included)
   double bits_per_second;  // bits simulated in this session / its duration
@@ -144,7 +147,8 @@ struct EngineOptions {
 std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_db);
 
 // True, with the reason, when `counts` meets the stopping rule of `sweep`
-// (target_errors checked first, as unit by unit in RunPoint).
+// (target_errors checked first, then stop_frame_errors, then max_bits, as
+// unit by unit in RunPoint).
 bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason);
 
 // Runs one point to its stopping rule, starting from `start`. If the start

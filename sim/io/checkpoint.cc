@@ -423,6 +423,38 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
     return Status::Error(head + "sweep.seed changed from " + std::to_string(old.sweep.seed) +
                          " to " + std::to_string(cfg.sweep.seed) + fixed);
   }
+  // Error targets (kErrorTarget): 0 or absent is "none", i.e. infinite; the
+  // scheme's effective stop_frame_errors (its own key, else the sweep's) may
+  // only be raised or removed, like target_errors.
+  const auto target_word = [](std::uint64_t t) {
+    return t == 0 ? std::string("(none)") : std::to_string(t);
+  };
+  const auto lowered = [](std::uint64_t was, std::uint64_t now) {
+    return now != 0 && (was == 0 || now < was);
+  };
+  if (lowered(old.sweep.target_errors, cfg.sweep.target_errors)) {
+    return Status::Error(head + "sweep.target_errors decreased from " +
+                         target_word(old.sweep.target_errors) + " to " +
+                         target_word(cfg.sweep.target_errors) +
+                         "; a resume may only raise it (finished points may already hold more "
+                         "than the new value)");
+  }
+  for (const SchemeRecord& s : ckpt.schemes) {
+    for (std::size_t i = 0; i < cfg.schemes.size(); ++i) {
+      if (cfg.schemes[i].name != s.name) continue;
+      std::size_t j = 0;
+      while (j < old.schemes.size() && old.schemes[j].name != s.name) ++j;
+      if (j == old.schemes.size()) continue;  // refused below (scheme keys)
+      const std::uint64_t was = old.SweepFor(j).stop_frame_errors;
+      const std::uint64_t now = cfg.SweepFor(i).stop_frame_errors;
+      if (lowered(was, now)) {
+        return Status::Error(head + "stop_frame_errors of scheme " + s.name + " decreased from " +
+                             target_word(was) + " to " + target_word(now) +
+                             "; a resume may only raise it (finished points may hold more frame "
+                             "errors than the new target)");
+      }
+    }
+  }
   // Eb/N0 lists (kAppendPoints): the recorded points of every scheme keep
   // their values, whichever key (scheme.NAME.ebno_db, else sweep.ebno_db)
   // gives them now.
@@ -459,7 +491,10 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
         const auto it = was.find(key);
         if ((it == was.end()) != appeared) continue;
         const OnResume r = rule(key);
-        if (r == OnResume::kFree || r == OnResume::kAppendPoints) continue;  // points: above
+        // Points and error targets: checked above.
+        if (r == OnResume::kFree || r == OnResume::kAppendPoints || r == OnResume::kErrorTarget) {
+          continue;
+        }
         if (r == OnResume::kMayGrow && !appeared) {
           auto a = ParseUint64(it->second);
           auto b = ParseUint64(value);

@@ -126,12 +126,16 @@ Status CheckRecordedCounts(const Checkpoint& ckpt, const std::vector<Chain>& cha
 
 // Whether `cfg` may continue the run recorded in `ckpt` (read from
 // `ckpt_path`, named in messages). Refused, naming the key and both values:
-// any change of a scheme's definition (every [scheme.NAME] key), a scheme of
-// the checkpoint missing from the config, sweep.seed, the Eb/N0 of a recorded
-// point, a decrease of target_errors or max_bits, and any other [sweep] key
-// not listed as free. Free (extension) keys: target_errors and max_bits
-// upwards, ebno_db points appended (or dropped at the end), ber_floor,
-// target_ber, threads, checkpoint_seconds; new schemes run from scratch.
+// any change of a key its key table marks fixed (OnResume, key_table.h), a
+// scheme of the checkpoint missing from the config, sweep.seed, the Eb/N0 of
+// a recorded point, a decrease of target_errors, of a scheme's
+// stop_frame_errors (sweep or scheme key) or of max_bits. An unset error
+// target counts as infinite: setting one where there was none is a
+// decrease, removing one a raise. Free (extension) keys: target_errors,
+// stop_frame_errors and max_bits upwards (a raised target continues the
+// same streams from the recorded prefix), ebno_db points appended (or
+// dropped at the end), ber_floor, target_ber, target_fer, threads,
+// checkpoint_seconds; new schemes run from scratch.
 Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::string& ckpt_path);
 
 }  // namespace capgap

@@ -295,6 +295,30 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
                 r.limits.outage_probability_constrained);
       }
 
+      const analysis::FiniteLengthLimits& fl = r.limits.finite_length;
+      if (fl.present) {
+        H5::Group f = lim.createGroup("finite_length");
+        NumAttr(f, "n", H5::PredType::NATIVE_INT, fl.n);
+        NumAttr(f, "k", H5::PredType::NATIVE_INT, fl.k);
+        NumAttr(f, "target_fer", F64, fl.target_fer);
+        NumAttr(f, "normal_approximation_ebno_db", F64, fl.normal_approximation_ebno_db);
+        NumAttr(f, "normal_approximation_gaussian_ebno_db", F64,
+                fl.normal_approximation_gaussian_ebno_db);
+        NumAttr(f, "rcu_ebno_db", F64, fl.rcu_ebno_db);
+        NumAttr(f, "rcu_relative_std_error", F64, fl.rcu_relative_std_error);
+        NumAttr(f, "converse_ebno_db", F64, fl.converse_ebno_db);
+        NumAttr(f, "converse_relative_std_error", F64, fl.converse_relative_std_error);
+        NumAttr(f, "converse_equal_power_ebno_db", F64, fl.converse_equal_power_ebno_db);
+        StrAttr(f, "method", fl.method);
+        Dataset(f, "ebno_db", F64, fl.ebno_db);
+        Dataset(f, "fer_normal_approximation", F64, fl.fer_normal_approximation);
+        Dataset(f, "fer_normal_approximation_gaussian", F64, fl.fer_normal_approximation_gaussian);
+        Dataset(f, "fer_rcu", F64, fl.fer_rcu);
+        Dataset(f, "fer_converse", F64, fl.fer_converse);
+      } else {
+        StrAttr(lim, "finite_length_absent", fl.absent_reason);
+      }
+
       H5::Group sum = g.createGroup("summary");
       const Summary& s = r.summary;
       NumAttr(sum, "ebno_at_target_db", F64, s.ebno_at_target_db);
@@ -305,10 +329,12 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
       NumAttr(sum, "gap_to_shannon_db", F64, s.gap_to_shannon_db);
       NumAttr(sum, "gap_to_constrained_db", F64, s.gap_to_constrained_db);
       if (r.limits.ergodic_present) NumAttr(sum, "gap_to_ergodic_db", F64, s.gap_to_ergodic_db);
-      if (r.limits.outage_present) {
-        NumAttr(sum, "gap_to_outage_db", F64, s.gap_to_outage_db);
-        NumAttr(sum, "target_fer", F64, r.target_fer);
-      }
+      NumAttr(sum, "target_fer", F64, r.target_fer);
+      NumAttr(sum, "ebno_at_target_fer_db", F64, s.ebno_at_target_fer_db);
+      NumAttr(sum, "ebno_at_target_fer_low_db", F64, s.ebno_at_target_fer_low_db);
+      NumAttr(sum, "ebno_at_target_fer_high_db", F64, s.ebno_at_target_fer_high_db);
+      if (r.limits.outage_present) NumAttr(sum, "gap_to_outage_db", F64, s.gap_to_outage_db);
+      if (fl.present) NumAttr(sum, "gap_to_finite_length_db", F64, s.gap_to_finite_length_db);
       if (r.limits.threshold_present) {
         NumAttr(sum, "gap_to_threshold_db", F64, s.gap_to_threshold_db);
         NumAttr(sum, "gap_to_binary_input_db", F64, s.gap_to_binary_input_db);

@@ -42,6 +42,11 @@ struct StoredScheme {
   double spectral_efficiency = 1;
   double spectral_efficiency_ideal = 1;
   double target_ber = 0;
+  // FER summary (files of earlier versions: has_fer false) and the
+  // finite-length normal approximation at target_fer (has_finite_length).
+  bool has_fer = false, has_finite_length = false;
+  double target_fer = 0;
+  double finite_length_na_ebno_db = 0;
   std::vector<double> ebno_db;
   std::vector<std::uint64_t> bits, bit_errors;
   std::vector<double> ber;

@@ -362,6 +362,20 @@ StoredScheme ReadScheme(const H5::H5File& file, const std::string& name) {
     s.ergodic_bicm_ebno_db = NumberAttr(lim, lp, "ergodic_bicm_ebno_db");
     s.summary.gap_to_ergodic_db = NumberAttr(sum, sp, "gap_to_ergodic_db");
   }
+  s.has_fer = HasAttr(sum, "ebno_at_target_fer_db");
+  if (s.has_fer) {
+    s.target_fer = NumberAttr(sum, sp, "target_fer");
+    s.summary.ebno_at_target_fer_db = NumberAttr(sum, sp, "ebno_at_target_fer_db");
+    s.summary.ebno_at_target_fer_low_db = NumberAttr(sum, sp, "ebno_at_target_fer_low_db");
+    s.summary.ebno_at_target_fer_high_db = NumberAttr(sum, sp, "ebno_at_target_fer_high_db");
+  }
+  s.has_finite_length = HasAttr(sum, "gap_to_finite_length_db");
+  if (s.has_finite_length) {
+    const H5::Group fl = OpenGroup(lim, lp, "finite_length");
+    s.finite_length_na_ebno_db =
+        NumberAttr(fl, lp + "/finite_length", "normal_approximation_ebno_db");
+    s.summary.gap_to_finite_length_db = NumberAttr(sum, sp, "gap_to_finite_length_db");
+  }
   s.has_outage = HasAttr(sum, "gap_to_outage_db");
   if (s.has_outage) s.summary.gap_to_outage_db = NumberAttr(sum, sp, "gap_to_outage_db");
 

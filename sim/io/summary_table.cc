@@ -56,6 +56,37 @@ std::string FormatSummaryTable(const StoredRun& run) {
                   target);
     out += line;
   }
+  // Frame error rates: Eb/N0 at the target FER with its interval, the
+  // finite-length limit (normal approximation) at the scheme's (n, k), the
+  // gap to it and to the Shannon limit at the same FER.
+  bool fer_header = false;
+  for (const StoredScheme& s : run.schemes) {
+    if (!s.has_fer || s.code == "none") continue;
+    if (!fer_header) {
+      std::snprintf(line, sizeof line, "%-14s %7s  %7s %-15s %7s %6s  %7s\n", "FER scheme",
+                    "FER", "Eb/N0", "95% interval", "NA", "gap", "Shannon");
+      out += line;
+      fer_header = true;
+    }
+    const Summary& m = s.summary;
+    std::string interval("[");
+    interval.append(Db(m.ebno_at_target_fer_low_db)).append(", ");
+    interval.append(Db(m.ebno_at_target_fer_high_db)).append("]");
+    const double nan = std::nan("");
+    const double gap_shannon = m.ebno_at_target_fer_db - s.shannon_ebno_db;
+    std::snprintf(line, sizeof line, "%-14s %7.0e  %7s %-15s %7s %6s  %7s\n", s.name.c_str(),
+                  s.target_fer, Db(m.ebno_at_target_fer_db).c_str(), interval.c_str(),
+                  Db(s.has_finite_length ? s.finite_length_na_ebno_db : nan).c_str(),
+                  Db(s.has_finite_length ? m.gap_to_finite_length_db : nan).c_str(),
+                  Db(gap_shannon).c_str());
+    out += line;
+  }
+  if (fer_header) {
+    out += "FER: the target frame error rate; Eb/N0 where the simulated FER crosses it, interval "
+           "from the FER's 95 %\nbounds; NA: normal approximation (Polyanskiy-Poor-Verdu 2010) "
+           "for the best code of the scheme's own\n(n, k) at that FER; gap = simulated - NA; "
+           "Shannon: simulated - Shannon limit at eta (infinite length).\n";
+  }
   // LDPC schemes: the curve against the ensemble's threshold and the
   // binary-input capacity at the code rate, and how hard the decoder worked.
   bool ldpc_header = false;

@@ -9,6 +9,7 @@
 #include <cerrno>
 #include <cstdio>
 #include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <memory>
 #include <string>
@@ -49,20 +50,36 @@ class ProgressPrinter {
 
   void Update(const Progress& p) {
     if (!enabled()) return;
-    const double f_err =
-        static_cast<double>(p.counts.bit_errors) / static_cast<double>(p.target_errors);
-    const double f_bits = static_cast<double>(p.counts.bits) / static_cast<double>(p.max_bits);
-    const double f = std::min(1.0, std::max(f_err, f_bits));
+    // The point stops at whichever target it reaches first (unset targets: 0).
+    const auto fraction = [](std::uint64_t have, std::uint64_t target) {
+      return target == 0 ? 0.0 : static_cast<double>(have) / static_cast<double>(target);
+    };
+    const double f = std::min(
+        1.0, std::max({fraction(p.counts.bit_errors, p.target_errors),
+                       fraction(p.counts.frame_errors, p.stop_frame_errors),
+                       fraction(p.counts.bits, p.max_bits)}));
+    // "errors 12/100", "frame errors 3/50" or both, as configured.
+    char targets[160] = "";
+    if (p.target_errors > 0) {
+      std::snprintf(targets, sizeof targets, "errors %llu/%llu",
+                    static_cast<unsigned long long>(p.counts.bit_errors),
+                    static_cast<unsigned long long>(p.target_errors));
+    }
+    if (p.stop_frame_errors > 0) {
+      const std::size_t used = std::strlen(targets);
+      std::snprintf(targets + used, sizeof targets - used, "%sframe errors %llu/%llu",
+                    used ? "  " : "", static_cast<unsigned long long>(p.counts.frame_errors),
+                    static_cast<unsigned long long>(p.stop_frame_errors));
+    }
     char eta[32] = "?";
     if (f > 0) std::snprintf(eta, sizeof eta, "%.0fs", p.seconds * (1 - f) / f);
     char line[512];
     std::snprintf(
         line, sizeof line,
-        "%s[%s] point %zu/%zu  Eb/N0 %6.2f dB  errors %llu/%llu  bits %.3g  "
+        "%s[%s] point %zu/%zu  Eb/N0 %6.2f dB  %s  bits %.3g  "
         "%.1f Mbit/s  ETA %s%s",
         mode_ == ProgressMode::kBar ? "\r\033[K" : "", p.scheme->c_str(), p.point_index + 1,
-        p.point_count, p.ebno_db, static_cast<unsigned long long>(p.counts.bit_errors),
-        static_cast<unsigned long long>(p.target_errors), static_cast<double>(p.counts.bits),
+        p.point_count, p.ebno_db, targets, static_cast<double>(p.counts.bits),
         p.bits_per_second / 1e6, eta, mode_ == ProgressMode::kLines ? "\n" : "");
     err_ << line << std::flush;
     bar_drawn_ = mode_ == ProgressMode::kBar;

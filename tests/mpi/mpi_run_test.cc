@@ -172,6 +172,26 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
   fs::remove_all(dir);
 }
 
+// Points that stop on frame errors (sweep.stop_frame_errors, no bit-error
+// target): 2 and 3 ranks write the counts of one process with one thread.
+TEST(MpiRun, FrameErrorStoppingGivesTheCountsOfOneThread) {
+  const fs::path dir = TempDir("frames");
+  const std::vector<std::string> frames = {"--set", "sweep.target_errors=0", "--set",
+                                           "sweep.stop_frame_errors=150", "--quiet"};
+  std::vector<std::string> one = frames;
+  one.insert(one.end(), {"--threads", "1"});
+  const std::string ref = (dir / "ref.h5").string();
+  const RunOutput r1 = RunCapgap(RunArgs(ref, one), dir);
+  ASSERT_EQ(r1.status, 0) << r1.log;
+  for (const int np : {2, 3}) {
+    const std::string out = (dir / ("np" + std::to_string(np) + ".h5")).string();
+    const RunOutput r = RunMpi(np, RunArgs(out, frames), dir);
+    ASSERT_EQ(r.status, 0) << r.log;
+    EXPECT_EQ(ReadCounts(out), ReadCounts(ref)) << np << " ranks";
+  }
+  fs::remove_all(dir);
+}
+
 TEST(MpiRun, KilledRankEndsTheRunAndResumeFinishesIt) {
   const fs::path dir = TempDir("kill");
   const std::string out = (dir / "out.h5").string();

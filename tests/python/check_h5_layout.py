@@ -35,6 +35,12 @@ Layout (format_version 1):
                     decoder_iterations_max, undetected_frame_errors
   /<scheme>/signal  optional: constellation_i, constellation_q (1-D float64),
                     attr constellation_ebno_db; eye (2-D) with eye_time
+  /<scheme>/limits/finite_length  optional (coded AWGN schemes): attrs n, k,
+                    target_fer, normal_approximation_ebno_db,
+                    normal_approximation_gaussian_ebno_db, rcu_ebno_db,
+                    converse_ebno_db, method; 1-D ebno_db, fer_normal_approximation,
+                    fer_rcu, fer_converse (NaN where not evaluated); then
+                    /<scheme>/summary has gap_to_finite_length_db
   /<scheme>/summary attrs ebno_at_target_db, ebno_at_target_low_db,
                     ebno_at_target_high_db, uncoded_ebno_at_target_db,
                     coding_gain_db, gap_to_shannon_db, gap_to_constrained_db
@@ -96,7 +102,7 @@ except Exception:  # pragma: no cover - depends on the interpreter
 
 FORMAT_NAME = "capgap-curves"
 FORMAT_VERSION = 1
-STOP_REASONS = ("target_errors", "max_bits")
+STOP_REASONS = ("target_errors", "stop_frame_errors", "max_bits")
 ROOT_STRING_ATTRS = ("format", "program_version", "git_revision", "created_utc",
                      "command_line", "config", "kernel_target")
 POINT_FLOAT = ("ebno_db", "esno_db", "ber", "ber_low", "ber_high", "fer",
@@ -592,6 +598,70 @@ def check_optional_views(c, g, lim, m):
             c.ok(f"{sg.name}/eye", f"{eye.shape[0]} traces of {eye.shape[1]} samples")
 
 
+def binary_input_na_fer(n, k, snr):
+    """Normal approximation of the FER of k bits in n binary-input AWGN uses
+    at SNR P (Polyanskiy, Poor & Verdu, IEEE Trans. Inf. Theory 56(5),
+    2010): C, V of i = 1 - log2(1 + exp(-2 y P)), y ~ N(1, 1/P), by numpy's
+    Gauss-Hermite rule (independent of the C++ quadrature)."""
+    t, w = np.polynomial.hermite.hermgauss(150)
+    y = 1.0 + np.sqrt(2.0 / snr) * t
+    i = 1.0 - np.logaddexp(0.0, -2.0 * y * snr) / math.log(2.0)
+    cap = float(np.sum(w * i) / math.sqrt(math.pi))
+    var = float(np.sum(w * i * i) / math.sqrt(math.pi)) - cap * cap
+    return qfunc((n * cap + 0.5 * math.log2(n) - k) / math.sqrt(n * var))
+
+
+def check_finite_length(c, g, lim, summ):
+    """/<scheme>/limits/finite_length, when present: attributes, equal-length
+    FER curves within [0, 1] (NaN where not evaluated), the NA falling with
+    Eb/N0, converse <= RCU (a converse bound below an achievability bound;
+    Monte Carlo slack 20 %), the summary gap, and for the binary-input model
+    the NA at its Eb/N0 equal to target_fer by an independent evaluation."""
+    if "finite_length" not in lim:
+        if "gap_to_finite_length_db" in summ.attrs:
+            c.fail(f"{summ.name} attribute 'gap_to_finite_length_db'",
+                   "present without limits/finite_length")
+        return
+    fl = c.group(lim, "finite_length")
+    where = fl.name
+    n, k = c.attr_int(fl, "n"), c.attr_int(fl, "k")
+    target = c.attr_float64(fl, "target_fer")
+    na_at = c.attr_float64(fl, "normal_approximation_ebno_db")
+    for name in ("normal_approximation_gaussian_ebno_db", "rcu_ebno_db", "converse_ebno_db"):
+        c.attr_float64(fl, name)
+    method = c.attr_string(fl, "method")
+    x = c.dataset_float64(fl, "ebno_db")
+    curves = {name: c.dataset_float64(fl, name, finite=False)
+              for name in ("fer_normal_approximation", "fer_rcu", "fer_converse")}
+    for name, y in curves.items():
+        if y.shape != x.shape:
+            c.fail(f"{where}/{name}", f"shape {y.shape} differs from ebno_db {x.shape}")
+        ok = np.isfinite(y)
+        if np.any((y[ok] < 0) | (y[ok] > 1)):
+            c.fail(f"{where}/{name}", "expected values in [0, 1] (or NaN)")
+    na = curves["fer_normal_approximation"]
+    if not np.all(np.isfinite(na)) or np.any(np.diff(na) > 1e-15):
+        c.fail(f"{where}/fer_normal_approximation", "expected finite and non-increasing")
+    both = np.isfinite(curves["fer_rcu"]) & np.isfinite(curves["fer_converse"])
+    if np.any(curves["fer_converse"][both] > 1.2 * curves["fer_rcu"][both]):
+        c.fail(f"{where}/fer_converse", "above the RCU achievability bound")
+    c.ok(where, f"n = {n}, k = {k}: FER curves consistent, converse below RCU")
+    if not (0 < target < 1) or n <= 0 or k <= 0:
+        c.fail(where, f"expected 0 < target_fer < 1 and n, k > 0, got {target!r}, {n}, {k}")
+    at_fer = c.attr_float64(summ, "ebno_at_target_fer_db")
+    gap = c.attr_float64(summ, "gap_to_finite_length_db")
+    want = at_fer - na_at if math.isfinite(at_fer) and math.isfinite(na_at) else math.nan
+    c.close(f"{summ.name} attribute 'gap_to_finite_length_db'", gap, want, abs_=1e-9,
+            what="ebno_at_target_fer_db - normal_approximation_ebno_db")
+    if method.find("binary-input AWGN") >= 0 and math.isfinite(na_at):
+        snr = 2.0 * k / n * 10.0 ** (na_at / 10.0)
+        got = binary_input_na_fer(n, k, snr)
+        # The Eb/N0 is found to 1e-3 dB; the FER moves ~ a few % per 0.01 dB.
+        c.close(f"{where} attribute 'normal_approximation_ebno_db'", got, target, rel=0.02,
+                what="target_fer, by the normal approximation recomputed with numpy")
+        c.ok(where, f"NA {na_at:.3f} dB gives FER {got:.3e} (target {target:g})")
+
+
 def check_scheme(c, f, name):
     g = f[name]
     base = g.name
@@ -690,6 +760,7 @@ def check_scheme(c, f, name):
         c.ok(sb, "ebno_at_target_db is NaN and no adjacent points straddle target_ber")
 
     check_optional_views(c, g, lim, m)
+    check_finite_length(c, g, lim, summ)
 
     grid_at, step = crossing_from_grid(theory["ebno_db"], theory["ber_uncoded"], target)
     if math.isnan(grid_at):

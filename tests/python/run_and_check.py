@@ -13,6 +13,7 @@ Each step's command and outcome are printed; exit status 1 on failure.
 
 Usage: run_and_check.py --capgap BIN --config INI --out OUT.h5
                         [--checker PATH] [--plotter PATH] [--timeout S]
+                        [--set KEY=VALUE ...]
 """
 
 import argparse
@@ -60,6 +61,8 @@ def main(argv):
     ap.add_argument("--checker", default=str(HERE / "check_h5_layout.py"))
     ap.add_argument("--plotter", default=str(REPO / "analysis" / "plot_curves.py"))
     ap.add_argument("--timeout", type=float, default=240.0, help="per step, seconds")
+    ap.add_argument("--set", action="append", default=[], metavar="KEY=VALUE",
+                    help="config override passed to capgap run (repeatable)")
     args = ap.parse_args(argv)
     out = pathlib.Path(args.out)
     png, svg = out.with_suffix(".png"), out.with_suffix(".svg")
@@ -76,7 +79,9 @@ def main(argv):
     if not pathlib.Path(args.config).exists():
         print(f"[1/3] FAIL: the config {args.config} does not exist")
         return 1
-    ok = (step(1, "simulate", [args.capgap, "run", args.config, "-o", out, "--quiet"], args.timeout)
+    overrides = [a for kv in args.set for a in ("--set", kv)]
+    ok = (step(1, "simulate", [args.capgap, "run", args.config, "-o", out, "--quiet"] + overrides,
+               args.timeout)
           and non_empty(out)
           and step(2, "check the HDF5 layout", py + [args.checker, out], args.timeout)
           and step(3, "plot", py + [args.plotter, out, "-o", png], args.timeout)

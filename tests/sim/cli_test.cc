@@ -52,7 +52,7 @@ TEST(Cli, BadConfigValueGivesOneLineAndNoFile) {
                           " --quiet --set sweep.target_errors=-5");
   EXPECT_EQ(o.status, 1);
   EXPECT_EQ(o.text, "capgap: " + Config("ci_tiny.ini") +
-                        ": sweep.target_errors = '-5': must be an integer > 0\n");
+                        ": sweep.target_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
   EXPECT_FALSE(fs::exists(out));
 }
 

@@ -351,6 +351,54 @@ TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
   fs::remove_all(dir);
 }
 
+// The same with frame errors as the only target: a run finished at
+// stop_frame_errors 300 and resumed at 600 equals a fresh run at 600, and
+// with one thread simulates only the units beyond the reused ones.
+TEST(ResumeCli, RaisingStopFrameErrorsReusesTheFinishedUnits) {
+  const fs::path dir = TempDir("extend_frames");
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0:1:5",
+                                        "--set", "sweep.target_errors=0"};
+  auto with = [&](std::vector<std::string> a, const std::vector<std::string>& more) {
+    a.insert(a.end(), more.begin(), more.end());
+    return a;
+  };
+  const RunOutput fresh =
+      RunCapgap(RunArgs(ref, with(few, {"--set", "sweep.stop_frame_errors=600"})), dir);
+  ASSERT_EQ(fresh.status, 0) << fresh.log;
+  ASSERT_EQ(RunCapgap(RunArgs(out, with(few, {"--set", "sweep.stop_frame_errors=300"})), dir).status,
+            0);
+  std::uint64_t before_units = 0;
+  for (const auto& s : ReadGood(CheckpointPath(out)).schemes) {
+    for (const auto& p : s.points) {
+      before_units += p.units;
+      EXPECT_EQ(p.stop_reason, StopReason::kStopFrameErrors);
+    }
+  }
+  const RunOutput ext = RunCapgap(
+      RunArgs(out, with(few, {"--resume", "--set", "sweep.stop_frame_errors=600"})), dir);
+  ASSERT_EQ(ext.status, 0) << ext.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
+  std::uint64_t total = 0;
+  for (const auto& s : ReadGood(CheckpointPath(ref)).schemes) {
+    for (const auto& p : s.points) total += p.units;
+  }
+  const std::string expect = "units: " + std::to_string(total) + " counted, " +
+                             std::to_string(before_units) + " reused from the checkpoint, " +
+                             std::to_string(total - before_units) + " simulated in this run\n";
+  EXPECT_NE(ext.log.find(expect), std::string::npos) << expect << "\n" << ext.log;
+  EXPECT_GT(before_units, 0u);
+  // Lowering it again is refused.
+  const RunOutput lower = RunCapgap(
+      RunArgs(out, with(few, {"--resume", "--set", "sweep.stop_frame_errors=100"})), dir);
+  EXPECT_NE(lower.status, 0);
+  EXPECT_NE(lower.log.find("stop_frame_errors of scheme qpsk decreased from 600 to 100"),
+            std::string::npos)
+      << lower.log;
+  fs::remove_all(dir);
+}
+
 // Extending the sweep itself: more Eb/N0 points and a lower ber_floor (so a
 // scheme that ended early goes on) equal a fresh run of the final config.
 TEST(ResumeCli, MorePointsAndALowerFloorExtendTheSweep) {

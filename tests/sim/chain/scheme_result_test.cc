@@ -143,5 +143,38 @@ TEST(SchemeResultViews, QpskConstrainedCurveEqualsBinaryInputAtHalfRate) {
   }
 }
 
+// The summary at target_fer takes the FER and its Clopper-Pearson bounds
+// through the same crossing as target_ber: FER 1e-1 at 1 dB and 1e-3 at 2 dB
+// cross 1e-2 at 1.5 dB by log-linear interpolation (arithmetic); the lower
+// bound crosses first, the upper last; interrupted points are left out.
+TEST(SchemeResultSummary, FerCrossingUsesTheFerAndItsInterval) {
+  std::vector<PointResult> pts(3);
+  const std::uint64_t frames = 100000;
+  const std::uint64_t errors[] = {10000, 100, 5};
+  for (std::size_t i = 0; i < 3; ++i) {
+    pts[i].ebno_db = 1.0 + static_cast<double>(i);
+    pts[i].counts.frames = frames;
+    pts[i].counts.frame_errors = errors[i];
+    pts[i].counts.bits = frames * 100;
+    pts[i].counts.bit_errors = errors[i] * 3;
+    pts[i].ber_ci = ClopperPearson(pts[i].counts.bit_errors, pts[i].counts.bits);
+    pts[i].fer_ci = ClopperPearson(errors[i], frames);
+  }
+  const TargetCrossing fer = CrossTarget(pts, ErrorRate::kFer, 1e-2);
+  EXPECT_NEAR(fer.ebno_db, 1.5, 1e-12);
+  EXPECT_LT(fer.low_db, fer.ebno_db);
+  EXPECT_GT(fer.high_db, fer.ebno_db);
+  // 100 errors: about +-20 % at 95 % (common practice), i.e. +-0.08 decades
+  // of FER; the curve falls 2 decades per dB, so roughly +-0.04 dB.
+  EXPECT_GT(fer.high_db - fer.low_db, 0.02);
+  EXPECT_LT(fer.high_db - fer.low_db, 0.12);
+  // BER = 3 FER / 100 here: 3e-3 at 1 dB, 3e-5 at 2 dB, crossing 3e-4 at 1.5 dB.
+  EXPECT_NEAR(CrossTarget(pts, ErrorRate::kBer, 3e-4).ebno_db, 1.5, 1e-12);
+  pts[1].stop_reason = StopReason::kInterrupted;  // then 1e-1 at 1 dB to 5e-5 at 3 dB
+  EXPECT_NEAR(CrossTarget(pts, ErrorRate::kFer, 1e-2).ebno_db,
+              1.0 + 2.0 * 1.0 / (-1.0 - std::log10(5e-5)), 1e-12);
+  EXPECT_TRUE(std::isnan(CrossTarget(pts, ErrorRate::kFer, 1e-6).ebno_db));
+}
+
 }  // namespace
 }  // namespace capgap

@@ -104,6 +104,38 @@ TEST(ConfigLdpc, BadValuesNameKeyValueAndRule) {
             "dir/test.ini: scheme.a.code = 'turbo': valid: none, conv, ldpc" + LaterCodeWords());
 }
 
+// stop_frame_errors and target_fer: sweep keys with per-scheme overrides;
+// at least one error target per scheme.
+TEST(ConfigLdpc, FrameTargetsHaveSchemeOverridesAndOneErrorTargetIsRequired) {
+  const std::string text =
+      "[sweep]\nebno_db = 0:2:10\nstop_frame_errors = 50\ntarget_fer = 1e-3\n"
+      "[scheme.u]\nmodulation = qpsk\n"
+      "[scheme.c]\nmodulation = qpsk\ncode = ldpc\nstop_frame_errors = 200\ntarget_fer = 1e-2\n";
+  auto r = ParseRunConfig(text, "t.ini", {});
+  ASSERT_TRUE(r.ok()) << r.status().message();
+  EXPECT_EQ(r.value().SweepFor(0).stop_frame_errors, 50u);
+  EXPECT_EQ(r.value().SweepFor(0).target_fer, 1e-3);
+  EXPECT_EQ(r.value().SweepFor(1).stop_frame_errors, 200u);
+  EXPECT_EQ(r.value().SweepFor(1).target_fer, 1e-2);
+  EXPECT_EQ(r.value().SweepFor(1).target_errors, 100u);  // default kept
+  // Defaults: no frame target, target_fer 1e-4.
+  auto d = ParseRunConfig("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\n", "t.ini", {});
+  ASSERT_TRUE(d.ok());
+  EXPECT_EQ(d.value().SweepFor(0).stop_frame_errors, 0u);
+  EXPECT_EQ(d.value().SweepFor(0).target_fer, 1e-4);
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\ntarget_errors = 0\n[scheme.a]\nmodulation = qpsk\n"),
+            "dir/test.ini: sweep.target_errors = '0' and no stop_frame_errors for scheme a: a "
+            "point needs an error target (set sweep.target_errors >= 1 or stop_frame_errors in "
+            "[sweep] or [scheme.a])");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\ntarget_errors = 0\n[scheme.a]\nmodulation = qpsk\n"
+                    "stop_frame_errors = 10\n"),
+            "OK");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\nstop_frame_errors = 0\n[scheme.a]\nmodulation = qpsk\n"),
+            "dir/test.ini: sweep.stop_frame_errors = '0': must be an integer > 0");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\ntarget_fer = 1\n"),
+            "dir/test.ini: scheme.a.target_fer = '1': must be in (0, 1)");
+}
+
 // A scheme may sweep its own Eb/N0 points (an LDPC waterfall needs a finer
 // grid than an uncoded curve in the same run); without the key it uses the
 // sweep's, and the resolved text does not list it.

@@ -67,9 +67,9 @@ TEST(Config, ResolvedTextRoundTrips) {
 
 TEST(Config, BadValuesNameFileKeyValueAndRule) {
   EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=-3"}),
-            "test.ini: sweep.target_errors = '-3': must be an integer > 0");
+            "test.ini: sweep.target_errors = '-3': must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=abc"}),
-            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer > 0");
+            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:0:4"}),
             "test.ini: sweep.ebno_db = '0:0:4': STEP must be > 0");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:1"}),

@@ -166,7 +166,7 @@ TEST(SchemeKeys, SeedKeepsEvery64BitIntegerExactly) {
 TEST(SchemeKeys, IntegersAreDecimalDigitsAndNumbersDecimalNotation) {
   EXPECT_EQ(ErrorOf(kBase, {"sweep.target_errors=1e3"}),
             "cfg.ini: sweep.target_errors = '1e3': not an integer (decimal digits only, no point "
-            "or exponent); must be an integer > 0");
+            "or exponent); must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kBase, {"sweep.ebno_db=0x10"}),
             "cfg.ini: sweep.ebno_db = '0x10': not a decimal number (no hexadecimal); expected "
             "START:STEP:STOP or a comma list");
@@ -240,11 +240,18 @@ TEST(SchemeKeys, ResumeChangeableKeysAreMarkedInTheTables) {
   EXPECT_EQ(rule(SchemeKeyTables(), "frame_bits"), OnResume::kFixed);
   EXPECT_EQ(rule(SchemeKeyTables(), "max_iterations"), OnResume::kFixed);
   EXPECT_EQ(rule(SweepKeyTables(), "threads"), OnResume::kFree);
-  EXPECT_EQ(rule(SweepKeyTables(), "target_errors"), OnResume::kMayGrow);
+  EXPECT_EQ(rule(SweepKeyTables(), "target_errors"), OnResume::kErrorTarget);
+  EXPECT_EQ(rule(SweepKeyTables(), "stop_frame_errors"), OnResume::kErrorTarget);
+  EXPECT_EQ(rule(SchemeKeyTables(), "stop_frame_errors"), OnResume::kErrorTarget);
+  EXPECT_EQ(rule(SweepKeyTables(), "target_fer"), OnResume::kFree);
+  EXPECT_EQ(rule(SweepKeyTables(), "max_bits"), OnResume::kMayGrow);
   EXPECT_EQ(rule(SweepKeyTables(), "seed"), OnResume::kFixed);
   const std::string help = ConfigKeysHelp();
   EXPECT_NE(help.find("larger, in MiB [may change on --resume]\n"), std::string::npos) << help;
-  EXPECT_NE(help.find("bit errors that end a point [may only grow on --resume]\n"),
+  EXPECT_NE(help.find("information bits that end a point [may only grow on --resume]\n"),
+            std::string::npos)
+      << help;
+  EXPECT_NE(help.find("either target is reached [may only grow or be removed on --resume]\n"),
             std::string::npos)
       << help;
   EXPECT_EQ(help.find("master seed ["), std::string::npos) << help;

@@ -30,7 +30,7 @@ std::vector<PointResult> RunAll(const RunConfig& cfg, int threads) {
   EXPECT_TRUE(chain.ok()) << chain.status().message();
   EngineOptions eo;
   eo.threads = threads;
-  return RunSweep(chain.value(), cfg.sweep, eo);
+  return RunSweep(chain.value(), cfg.SweepFor(0), eo);
 }
 
 void ExpectSameCounts(const std::vector<PointResult>& a, const std::vector<PointResult>& b) {
@@ -114,6 +114,89 @@ TEST(Engine, SweepEndsAfterFirstPointBelowBerFloor) {
   ASSERT_EQ(points.size(), 4u);
   EXPECT_LT(points.back().ber(), 1e-2);
   EXPECT_GE(points[points.size() - 2].ber(), 1e-2);
+}
+
+// Frame-error target (sweep.stop_frame_errors). Uncoded QPSK at 7 dB with
+// 480-bit frames: Pb = Q(sqrt(2 Eb/N0)) = 7.7e-4 (Proakis & Salehi, 5th ed.,
+// ch. 4; evaluated with scipy.special.erfc), so a frame is in error with
+// probability 1 - (1 - Pb)^480 ~ 0.31 and 150 frame errors take ~480 frames.
+RunConfig FrameTargetConfig(std::uint64_t target_errors, std::uint64_t stop_frame_errors) {
+  return MakeConfig("qpsk", "maxlog", "6,7", target_errors, 100000000,
+                    "stop_frame_errors = " + std::to_string(stop_frame_errors) + "\n");
+}
+
+TEST(Engine, FrameErrorTargetCountsAreIdenticalForOneTwoAndThreeThreads) {
+  const RunConfig cfg = FrameTargetConfig(0, 150);
+  EXPECT_EQ(cfg.SweepFor(0).stop_frame_errors, 150u);
+  const auto one = RunAll(RunConfig(cfg), 1);
+  ASSERT_EQ(one.size(), 2u);
+  for (const PointResult& p : one) {
+    EXPECT_EQ(p.stop_reason, StopReason::kStopFrameErrors);
+    EXPECT_GE(p.counts.frame_errors, 150u);
+    EXPECT_LT(p.counts.frame_errors, 150u + 4u);  // a unit holds 4 frames
+  }
+  ExpectSameCounts(one, RunAll(cfg, 2));
+  ExpectSameCounts(one, RunAll(cfg, 3));
+}
+
+// With both targets the point stops at the first unit where either holds.
+TEST(Engine, EitherTargetEndsThePointWhicheverComesFirst) {
+  auto chain = Chain::Create(FrameTargetConfig(1, 1).schemes[0], 42);
+  ASSERT_TRUE(chain.ok());
+  EngineOptions eo;
+  eo.threads = 2;
+  // Frame errors first: 40 frame errors come with far fewer than 10^6 bit errors.
+  const RunConfig frames_first = FrameTargetConfig(1000000, 40);
+  const PointResult a = RunPoint(chain.value(), frames_first.SweepFor(0), 0, 7.0, eo);
+  EXPECT_EQ(a.stop_reason, StopReason::kStopFrameErrors);
+  EXPECT_GE(a.counts.frame_errors, 40u);
+  // Bit errors first: 40 bit errors come before 10^6 frame errors.
+  const RunConfig bits_first = FrameTargetConfig(40, 1000000);
+  const PointResult b = RunPoint(chain.value(), bits_first.SweepFor(0), 0, 7.0, eo);
+  EXPECT_EQ(b.stop_reason, StopReason::kTargetErrors);
+  EXPECT_GE(b.counts.bit_errors, 40u);
+  EXPECT_LT(b.counts.frame_errors, 40u);
+  // The deciding unit is the first at which either holds: without it, neither.
+  for (const PointResult* r : {&a, &b}) {
+    const RunConfig& cfg = r == &a ? frames_first : bits_first;
+    NoiseSpec spec;
+    spec.ebno_db = 7.0;
+    spec.bits_per_symbol = 2;
+    const AwgnChannel channel(spec);
+    ChainWorkspace ws = chain.value().MakeWorkspace();
+    UnitCounts prefix;
+    for (std::uint32_t u = 0; u + 1 < r->units; ++u) prefix += chain.value().RunUnit(channel, 0, u, ws);
+    StopReason reason;
+    EXPECT_FALSE(StopRuleMet(prefix, cfg.SweepFor(0), &reason));
+    prefix += chain.value().RunUnit(channel, 0, static_cast<std::uint32_t>(r->units - 1), ws);
+    EXPECT_EQ(prefix, r->counts);
+  }
+}
+
+// Raising stop_frame_errors continues the same streams: a point resumed from
+// the prefix recorded under the lower target ends with the counts of a fresh
+// run under the raised one and simulates only the units beyond the prefix.
+TEST(Engine, RaisedFrameErrorTargetContinuesTheRecordedPrefix) {
+  const RunConfig low = FrameTargetConfig(0, 60);
+  const RunConfig high = FrameTargetConfig(0, 150);
+  auto chain = Chain::Create(low.schemes[0], low.sweep.seed);
+  ASSERT_TRUE(chain.ok());
+  EngineOptions eo;
+  eo.threads = 1;  // one worker simulates no unit beyond the deciding one
+  const PointResult first = RunPoint(chain.value(), low.SweepFor(0), 0, 7.0, eo);
+  ASSERT_EQ(first.stop_reason, StopReason::kStopFrameErrors);
+  const PointResult fresh = RunPoint(chain.value(), high.SweepFor(0), 0, 7.0, eo);
+  PointStart start;
+  start.units = static_cast<std::uint32_t>(first.units);
+  start.counts = first.counts;
+  const PointResult resumed = RunPoint(chain.value(), high.SweepFor(0), 0, 7.0, eo, start);
+  EXPECT_EQ(resumed.counts, fresh.counts);
+  EXPECT_EQ(resumed.units, fresh.units);
+  EXPECT_EQ(resumed.units_simulated, fresh.units - first.units);
+  // The same prefix under the lower target is already finished.
+  const PointResult again = RunPoint(chain.value(), low.SweepFor(0), 0, 7.0, eo, start);
+  EXPECT_EQ(again.units_simulated, 0u);
+  EXPECT_EQ(again.counts, first.counts);
 }
 
 TEST(Engine, InterruptStopsThePoint) {

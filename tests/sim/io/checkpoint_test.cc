@@ -351,7 +351,8 @@ const char kFixed[] =
 TEST(CheckResumable, ExtensionKeysAreAllowed) {
   EXPECT_EQ(Refusal({}), "");
   EXPECT_EQ(Refusal({"sweep.target_errors=1000", "sweep.max_bits=5000000", "sweep.ber_floor=0",
-                     "sweep.target_ber=1e-4", "sweep.threads=3", "sweep.checkpoint_seconds=5"}),
+                     "sweep.target_ber=1e-4", "sweep.target_fer=1e-3", "sweep.threads=3",
+                     "sweep.checkpoint_seconds=5"}),
             "");
   EXPECT_EQ(Refusal({"sweep.ebno_db=0:1:9"}), "");  // points appended
   EXPECT_EQ(Refusal({"sweep.ebno_db=0,1"}), "");    // fewer points: recorded ones beyond are dropped
@@ -380,6 +381,45 @@ TEST(CheckResumable, ChangesThatAlterRecordedStreamsAreRefusedNamingTheKey) {
   EXPECT_EQ(Refusal({"sweep.max_bits=999999"}),
             "cannot resume from r.ckpt: sweep.max_bits decreased from 1000000 to 999999; a resume "
             "may only raise it (finished points may already hold more than the new value)");
+}
+
+// Error targets on resume: stop_frame_errors (sweep or scheme key) may grow
+// or go away, not shrink or appear (an unset target is infinite); target_fer
+// is free.
+TEST(CheckResumable, FrameErrorTargetMayOnlyGrow) {
+  const auto refusal = [&](const std::vector<std::string>& overrides, bool recorded_with_frames) {
+    auto old_cfg = ParseRunConfig(std::string(kConfig), "test.ini",
+                                  recorded_with_frames
+                                      ? std::vector<std::string>{"sweep.stop_frame_errors=50"}
+                                      : std::vector<std::string>{});
+    EXPECT_TRUE(old_cfg.ok()) << old_cfg.status().message();
+    const Checkpoint c = RecordedFor(old_cfg.value(), 3);
+    auto cfg = ParseRunConfig(std::string(kConfig), "test.ini", overrides);
+    EXPECT_TRUE(cfg.ok()) << cfg.status().message();
+    const Status s = CheckResumable(c, cfg.value(), "r.ckpt");
+    return s.ok() ? std::string() : s.message();
+  };
+  EXPECT_EQ(refusal({"sweep.stop_frame_errors=80"}, true), "");
+  EXPECT_EQ(refusal({"sweep.stop_frame_errors=80", "scheme.qpsk.stop_frame_errors=90"}, true), "");
+  EXPECT_EQ(refusal({}, true), "");  // removed: infinite
+  EXPECT_EQ(refusal({"sweep.stop_frame_errors=50", "sweep.target_fer=1e-3",
+                     "scheme.q16.target_fer=1e-2"},
+                    true),
+            "");
+  EXPECT_EQ(refusal({"sweep.stop_frame_errors=40"}, true),
+            "cannot resume from r.ckpt: stop_frame_errors of scheme qpsk decreased from 50 to 40; "
+            "a resume may only raise it (finished points may hold more frame errors than the new "
+            "target)");
+  EXPECT_EQ(refusal({"scheme.q16.stop_frame_errors=10"}, true),
+            "cannot resume from r.ckpt: stop_frame_errors of scheme q16 decreased from 50 to 10; "
+            "a resume may only raise it (finished points may hold more frame errors than the new "
+            "target)");
+  EXPECT_EQ(refusal({"sweep.stop_frame_errors=500"}, false),
+            "cannot resume from r.ckpt: stop_frame_errors of scheme qpsk decreased from (none) to "
+            "500; a resume may only raise it (finished points may hold more frame errors than the "
+            "new target)");
+  // target_errors = 0 (no bit-error target) is a raise to infinity.
+  EXPECT_EQ(refusal({"sweep.target_errors=0", "sweep.stop_frame_errors=50"}, true), "");
 }
 
 TEST(CheckResumable, RecordedSchemeMissingFromConfigIsRefused) {

@@ -228,7 +228,7 @@ TEST(Run, BadConfigGives1WithOneLineOnTheErrorStreamAndNoFile) {
   Outcome r = RunCaptured(o);
   EXPECT_EQ(r.status, kExitFailed);
   EXPECT_EQ(r.err,
-            "capgap: " + TinyConfig() + ": sweep.target_errors = '-5': must be an integer > 0\n");
+            "capgap: " + TinyConfig() + ": sweep.target_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
   EXPECT_EQ(r.out, "");
   o = Tiny(dir / "bad.h5");
   o.config_path = (dir / "missing.ini").string();

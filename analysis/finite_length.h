@@ -1,0 +1,166 @@
+// Finite-length limits of a block of n channel uses carrying k information
+// bits on the AWGN channel: how small a frame error rate (FER) any code of
+// that length and rate can reach at an Eb/N0, and the Eb/N0 any such code
+// needs for a target FER.
+//
+// Source for all three quantities: Y. Polyanskiy, H. V. Poor, S. Verdu,
+// "Channel coding rate in the finite blocklength regime", IEEE Trans. Inf.
+// Theory 56(5), 2010 (PPV below).
+//
+// - Normal approximation (NA): log2 M ~ n C - sqrt(n V) Qinv(eps) +
+//   0.5 log2 n, with C = E[i(X;Y)] and V = Var[i(X;Y)] of the information
+//   density of the actual input: binary input +-1 by Gauss-Hermite
+//   quadrature (BinaryInputAwgn); uniform M-PSK/QAM by the coded-modulation
+//   (CM) information density (ConstellationAwgn; square QAM splits into its
+//   two PAM axes exactly); Gaussian input by the closed form of PPV
+//   (GaussianInputAwgn). Solved for eps: FER = Q((n C + 0.5 log2 n - k) /
+//   sqrt(n V)). An approximation, neither bound.
+// - Achievability: the RCUs form of PPV's random-coding union bound (Thm. 16),
+//   eps <= E[min(1, (M - 1) 2^-i_s(X^n;Y^n))] with the generalized density
+//   i_s (Markov's inequality on the inner probability of the RCU bound, so
+//   it lies above RCU and is itself achievable for every s > 0; s from a
+//   grid, the best at the target), for i.i.d. uniform binary input,
+//   evaluated by importance-sampled Monte Carlo: each output letter is drawn
+//   from the exponentially tilted density p(y) 2^(-theta i(y)) (tabulated)
+//   with theta such that the sum of the information densities centres on
+//   log2(M - 1), and weighted by the likelihood ratio (BinaryInputRcus; its
+//   relative standard error is returned).
+// - Converse: for binary input, PPV's meta-converse with the output of
+//   uniform i.i.d. input as auxiliary distribution, both error
+//   probabilities of its Neyman-Pearson test estimated from one importance-
+//   sampled set (BinaryInputConverseFer). Beside it, and for other inputs,
+//   PPV's meta-converse for equal-power codes on the real AWGN
+//   channel (Thm. 41 form; auxiliary output N(0, (1 + P) I)), log2 M <=
+//   -log2 beta_{1-eps}: the Neyman-Pearson test reduces to a non-central
+//   chi-square statistic (EqualPowerConverseLog2M). Every BPSK/QPSK and
+//   M-PSK codeword has equal energy, so it bounds those codes directly; a
+//   code with an average-power constraint (QAM) is bounded through the
+//   length n + 1 equal-power code it extends to (PPV Lemma 39).
+//
+// Channel and SNR conventions: a "real use" carries one real dimension with
+// signal power P over unit noise variance (SNR P). BPSK uses one real
+// dimension per symbol at P = 2 Es/N0; a complex constellation two at P =
+// Es/N0 each; so a Gray BPSK or QPSK block of n coded bits is n uses of the
+// binary-input AWGN channel at P = 2 R Eb/N0 (R = k/n).
+#ifndef CAPGAP_ANALYSIS_FINITE_LENGTH_H_
+#define CAPGAP_ANALYSIS_FINITE_LENGTH_H_
+
+#include <atomic>
+#include <cstdint>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "blocks/core/types.h"
+
+namespace capgap::analysis {
+
+// Capacity (bit per use) and dispersion (bit^2 per use) of an information
+// density.
+struct CapacityDispersion {
+  double capacity = 0;
+  double dispersion = 0;
+};
+
+// Binary input +-1, equiprobable, real AWGN with SNR `snr` (linear, P over
+// noise variance per real use): i = 1 - log2(1 + exp(-2 x y / sigma^2)),
+// sigma^2 = 1/snr; 200-node Gauss-Hermite quadrature.
+CapacityDispersion BinaryInputAwgn(double snr);
+
+// Gaussian input on the real AWGN channel (PPV): C = 0.5 log2(1 + P),
+// V = P (P + 2) / (2 (P + 1)^2) log2(e)^2.
+CapacityDispersion GaussianInputAwgn(double snr);
+
+// Uniform input over `points` (unit average energy) on the complex AWGN
+// channel at Es/N0 (linear), per complex use: CM information density
+// i = log2 M - log2 sum_x' exp(-(|y - x'|^2 - |y - x|^2) / N0). A product
+// (square-QAM-like) set adds its two axes' PAM values (independent); other
+// sets use a 64 x 64 Gauss-Hermite product rule.
+CapacityDispersion ConstellationAwgn(std::span<const cf32> points, double esno);
+
+// NA FER of k information bits in n uses: Q((n C + 0.5 log2 n - k) /
+// sqrt(n V)). REQUIRES n >= 1.
+double NormalApproximationFer(double n, double k, const CapacityDispersion& cd);
+
+struct RcuEstimate {
+  double fer = 0;
+  double relative_std_error = 0;  // of the Monte Carlo estimate
+};
+// RCUs (s = 1) bound on the FER of the best code with k information bits in n
+// uses of the binary-input AWGN channel at SNR `snr`, from `samples` blocks of
+// importance-sampled outputs (deterministic for a given seed).
+// s in (0, 1]: the RCUs parameter (generalized density i_s = 1 - log2(1 +
+// exp(-2 s x y snr)); Markov's inequality holds for every s > 0).
+RcuEstimate BinaryInputRcus(int n, double k, double snr, double s, int samples,
+                            std::uint64_t seed);
+
+// PPV meta-converse for equal-power codes of length n (real uses) at SNR P:
+// the largest log2 M any code with error probability eps can have.
+double EqualPowerConverseLog2M(int n, double snr, double eps);
+// The smallest FER a code with k information bits can have by that bound
+// (bisection on log eps; 1 when even eps -> 1 does not admit k bits).
+double EqualPowerConverseFer(int n, double k, double snr);
+
+// PPV meta-converse for the binary-input AWGN channel with auxiliary output
+// the output of i.i.d. uniform input (by symmetry the bound holds for every
+// code): the smallest FER of k bits in n uses at SNR `snr`, by importance
+// sampling (exponential tilt centring the information density on k); fer is
+// the estimate, relative_std_error its error.
+RcuEstimate BinaryInputConverseFer(int n, double k, double snr, int samples,
+                                   std::uint64_t seed);
+
+// What the finite-length analysis of a scheme uses: its block on the channel
+// and which models apply.
+struct FiniteLengthBlock {
+  int coded_bits = 0;  // per frame
+  int info_bits = 0;   // k per frame
+  std::vector<cf32> points;  // the constellation, unit average energy
+};
+
+struct FiniteLengthLimits {
+  bool present = false;
+  std::string absent_reason;  // why not, when !present
+  int n = 0;                  // channel uses of the model the NA counts (see method)
+  int k = 0;
+  double target_fer = 0;
+  double normal_approximation_ebno_db = 0;
+  double normal_approximation_gaussian_ebno_db = 0;
+  double rcu_ebno_db = 0;       // NaN where the model has no RCU evaluation
+  double rcu_relative_std_error = 0;
+  double rcu_s = 0;  // the RCUs parameter used
+  double converse_ebno_db = 0;  // binary input: the binary meta-converse
+  double converse_relative_std_error = 0;
+  double converse_equal_power_ebno_db = 0;  // the equal-power (Gaussian auxiliary) one
+  std::string method;
+  std::vector<double> ebno_db;
+  std::vector<double> fer_normal_approximation;
+  std::vector<double> fer_normal_approximation_gaussian;
+  std::vector<double> fer_rcu;
+  std::vector<double> fer_converse;
+};
+
+struct FiniteLengthOptions {
+  // Blocks per Monte Carlo estimate (RCU and binary-input converse): per
+  // curve point and search step, and at the target.
+  int rcu_samples_curve = 500;
+  int rcu_samples_target = 6000;
+  std::uint64_t seed = 1;
+  // Blocks longer than this (real uses) skip RCU and converse (NaN): the NA
+  // is within a few hundredths of a dB of both there.
+  int max_bound_length = 20000;
+  bool rcu = true;        // false: skip the RCU bound (NaN)
+  bool at_target = true;  // false: skip the bounds' Eb/N0 at target_fer (curves only)
+  const std::atomic<bool>* stop = nullptr;  // gives up (present = false) once true
+};
+
+// The limits of `block` on the Eb/N0 grid `ebno_db` and at target_fer.
+// Binary model (BPSK, QPSK): n = coded bits; other constellations: n =
+// symbols per frame, NA from the CM density, converse through real
+// dimensions, no RCU.
+FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
+                                       std::span<const double> ebno_db, double target_fer,
+                                       const FiniteLengthOptions& options = {});
+
+}  // namespace capgap::analysis
+
+#endif  // CAPGAP_ANALYSIS_FINITE_LENGTH_H_
