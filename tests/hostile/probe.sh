@@ -236,6 +236,20 @@ m_huge() {
 }
 setup=m_huge
 expect "matrix header n = 2^20 refused before allocating" 1 "h.txt" -- run l.ini -o x.h5
+m_valid_huge() {
+  # A well-formed matrix of n = 2^20 (8.4 MB of text, under the 64 MiB
+  # limit): read, then refused by the memory estimate before the encoder's
+  # dense elimination matrix (64 GiB) is made.
+  "$PY" -c "
+m = 524288
+with open('big.txt', 'w') as f:
+    f.write('ldpc-matrix n %d m %d\\n' % (2 * m, m))
+    f.writelines('2: %d %d\\n' % (2 * r, 2 * r + 1) for r in range(m))"
+  ldpc_ini l.ini "construction = file" "matrix_file = big.txt"
+}
+setup=m_valid_huge
+expect "well-formed matrix file with n = 2^20 refused by memory_limit_mb" 1 \
+  "encoder elimination matrix 98305 MB" -- run l.ini -o x.h5 --threads 1
 b_dir() { ldpc_ini l.ini "construction = qc" "base_matrix = adir"; }
 setup=b_dir
 expect "base_matrix = directory" 1 "adir: is a directory, not a base matrix file" -- run l.ini -o x.h5
