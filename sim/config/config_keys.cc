@@ -15,6 +15,7 @@
 #include "blocks/mapping/modulation.h"
 #include "sim/config/config.h"
 #include "sim/config/text.h"
+#include "sim/families/channel_keys.h"
 
 namespace capgap {
 namespace {
@@ -25,8 +26,8 @@ namespace {
 bool Quotable(const std::string& value) { return Printable(value) == value; }
 
 Status CheckModulation(const std::string& value) {
-  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ModulationChoices());
-  return ParseModulation(value).status();
+  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ConstellationChoices());
+  return ParseConstellation(value).status();
 }
 
 Status CheckDemapper(const std::string& value) {
@@ -64,8 +65,8 @@ constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
 std::span<const KeySpec> SchemeCommonKeys() {
   static const KeySpec keys[] = {
     {"modulation", nullptr,
-     Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
-     "Gray-labelled constellation, unit average energy"},
+     Custom(ConstellationSyntax(), CheckModulation),
+     "constellation (the registry's; README, \"Constellations\"), unit average energy"},
     {"ebno_db", "", Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
      "this scheme's points instead of sweep.ebno_db", Always(), OnResume::kAppendPoints},
     {"frame_bits", "1920", IntegerIn(1, 16777216),
@@ -122,6 +123,7 @@ std::span<const KeyTable> SchemeKeyTables() {
         {"carrier impairments", kImpairmentKeys},
         {"channel code", code_choice},
     };
+    for (const KeyTable& table : ChannelKeyTables()) t.push_back(table);
     for (const CodeFamily* f : CodeFamilies()) {
       if (f->keys) t.push_back(*f->keys);
     }

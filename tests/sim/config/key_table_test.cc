@@ -10,6 +10,7 @@
 #include <map>
 #include <string>
 
+#include "sim/chain/registry.h"
 #include "sim/config/config.h"
 #include "sim/config/config_keys.h"
 
@@ -200,7 +201,7 @@ TEST(SchemeKeys, HugeAndBinaryValuesAreEchoedShortenedAndEscaped) {
   const std::string b = ErrorOf(kBase, {"scheme.q.modulation=" + huge});
   EXPECT_LT(b.size(), 300u) << b.substr(0, 400);
   EXPECT_EQ(b, "cfg.ini: scheme.q.modulation = '\\x01\\xFF" + tail +
-                   ": not a modulation; valid: " + ModulationChoices());
+                   ": not a modulation; valid: " + ConstellationChoices());
   const std::string c = ErrorOf(kBase, {"sweep.ebno_db=" + huge});
   EXPECT_EQ(c, "cfg.ini: sweep.ebno_db = '\\x01\\xFF" + tail +
                    ": not a number; expected START:STEP:STOP or a comma list");
