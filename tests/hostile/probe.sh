@@ -180,6 +180,8 @@ expect "4 MB value is shortened (one short line)" 1 "sweep.ebno_db = 'xxxx" -- r
 huge_file() { { printf '[sweep]\nebno_db = '; head -c 10000000 /dev/zero | tr '\0' 'x'; printf '\n'; } > huge.ini; }
 setup=huge_file
 expect "10 MB config refused by its size" 1 "a config file may have at most 4194304 bytes" -- run huge.ini -o x.h5
+expect "100 kB --set value is shortened" 1 "sweep.seed = '1111" -- \
+  run tiny.ini -o x.h5 --set "sweep.seed=$(head -c 100000 /dev/zero | tr '\0' '1')"
 binary_value() { printf '[sweep]\nebno_db = \001\002\033[31m\377\n[scheme.q]\nmodulation = qpsk\n' > bin.ini; }
 setup=binary_value
 expect "binary value is escaped" 1 "sweep.ebno_db = '\\x01\\x02\\x1B[31m\\xFF'" -- run bin.ini -o x.h5
