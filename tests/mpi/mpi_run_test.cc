@@ -319,19 +319,19 @@ long MinorFaults(pid_t pid) {
   return std::atol(field.c_str());
 }
 
-// Rank 0 builds its PEG code (n = 16384: about 14 s on one core here) while
+// Rank 0 builds its PEG code (n = 12288: about 8 s on one core here) while
 // the worker waits in the config broadcast; then the worker builds the same
 // code while rank 0 waits for its readiness in a blocking gather. The
 // worker's construction shows as its first page faults since start-up (a
 // rank waiting inside MPI touches no new memory). SIGTERM to every rank then
 // must stop the worker's construction within a second: every rank gone
 // within 2 s, status 75, and a checkpoint with the config and no point
-// (before the worker saw the flag: its whole construction, 14 s or more).
+// (before the worker saw the flag: the rest of its construction, seconds).
 TEST(MpiRun, SigtermWhileTheWorkerRankBuildsTheCodeStopsWithin2s) {
   const fs::path dir = TempDir("worker_build");
   const std::string config = (dir / "peg.ini").string();
   std::ofstream(config) << "[sweep]\nebno_db = 1\nseed = 1\n[scheme.big]\nmodulation = bpsk\n"
-                           "code = ldpc\nlength = 16384\n";
+                           "code = ldpc\nlength = 12288\n";
   const std::string out = (dir / "out.h5").string(), ckpt = CheckpointPath(out);
   Process launcher(CAPGAP_MPIEXEC,
                    Mpi(2, {"run", config, "-o", out, "--threads", "1", "--quiet"}),
@@ -347,7 +347,8 @@ TEST(MpiRun, SigtermWhileTheWorkerRankBuildsTheCodeStopsWithin2s) {
   std::this_thread::sleep_for(std::chrono::seconds(1));  // MPI start-up settles
   const long idle = MinorFaults(worker);
   bool building = false;
-  while (!launcher.Exited() && test::SecondsSince(t0) < 180) {
+  // Generous: rank 0's construction takes minutes on a loaded machine.
+  while (!launcher.Exited() && test::SecondsSince(t0) < 600) {
     if (MinorFaults(worker) > idle + 20) {
       building = true;
       break;

@@ -140,7 +140,7 @@ TEST(Config, MissingRequiredKeysAreNamed) {
             "test.ini: no [scheme.NAME] section; at least one scheme is required");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nframe_bits = 8\n"),
             "test.ini: missing required key 'scheme.a.modulation' (bpsk, qpsk, 8psk, 16qam, "
-            "64qam, 256qam, <M>psk, <M>qam)");
+            "64qam, 256qam, <M>psk, <M>qam, 16apsk)");
 }
 
 TEST(Config, CodeKeysApplyOnlyToTheirCode) {
