@@ -141,7 +141,8 @@ constexpr KeyCondition NotWith(const char* key, std::span<const std::string_view
 // What `capgap run --resume` allows for a key against the configuration the
 // checkpoint stored (CheckResumable, sim/io/checkpoint.h). A key that is not
 // marked is fixed, so that a new key which changes the random streams or the
-// counted work is never let through by omission.
+// counted work is never let through by omission; a name that several tables
+// declare (two families' `length`) is fixed if any of them says so.
 enum class OnResume {
   kFixed,         // must keep its value (start a new output file to change it)
   kFree,          // may change: it alters neither the streams nor the recorded work

@@ -8,6 +8,7 @@
 #include <cstdio>
 #include <cstdlib>
 #include <map>
+#include <optional>
 #include <set>
 #include <span>
 #include <sstream>
@@ -478,9 +479,19 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
   // One section's keys against the stored ones, in the new config's order;
   // then keys that went away (e.g. the shaping keys when shaping changed).
   const auto compare = [&](const std::string& prefix, std::span<const KeyTable> tables) -> Status {
+    // Families may declare keys of the same name (length, decoder): a key is
+    // fixed if any table declaring it says so.
     const auto rule = [&](const std::string& key) {
-      const KeySpec* spec = FindKey(tables, std::string_view(key).substr(prefix.size()));
-      return spec ? spec->on_resume : OnResume::kFixed;
+      const std::string_view name = std::string_view(key).substr(prefix.size());
+      std::optional<OnResume> found;
+      for (const KeyTable& t : tables) {
+        for (const KeySpec& k : t.keys) {
+          if (name != k.name) continue;
+          if (k.on_resume == OnResume::kFixed) return OnResume::kFixed;
+          found = k.on_resume;
+        }
+      }
+      return found.value_or(OnResume::kFixed);
     };
     const auto was = SectionEntries(old, prefix);
     const auto now = SectionEntries(cfg, prefix);

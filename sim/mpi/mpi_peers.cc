@@ -6,8 +6,15 @@
 #include "blocks/kernels/awgn_kernels.h"
 #include "sim/chain/chain.h"
 #include "sim/config/config.h"
+#include "sim/engine/engine.h"
 
 namespace capgap {
+namespace {
+
+// How a worker rank reports a construction stopped by a signal.
+constexpr char kStoppedWhileBuilding[] = "stopped by signal while building";
+
+}  // namespace
 
 MpiPeers::MpiPeers(MpiWorld& world) : world_(world) {}
 MpiPeers::~MpiPeers() = default;
@@ -23,6 +30,15 @@ Status MpiPeers::Start(const std::string& config_text, std::vector<std::string>*
   std::vector<std::string> kernels;
   const auto errors = world_.GatherReadiness("", NoiseKernelTarget(), &kernels);
   coordinator_ = std::make_unique<MpiCoordinator>(world_.size());
+  // A rank stopped by a signal while building a code: the run stops (75)
+  // rather than fails.
+  for (int r = 1; r < world_.size(); ++r) {
+    const std::string& e = errors[static_cast<std::size_t>(r)];
+    if (e.rfind(kStoppedWhileBuilding, 0) == 0) {
+      coordinator_->Shutdown(kExitStopped, 10);
+      return Status::Stopped("rank " + std::to_string(r) + ": " + e);
+    }
+  }
   for (int r = 1; r < world_.size(); ++r) {
     if (!errors[static_cast<std::size_t>(r)].empty()) {
       coordinator_->Shutdown(1, 10);
@@ -75,10 +91,17 @@ int RunMpiWorkerRank(MpiWorld& world, const std::string& config_path,
     error = parsed.status().message();
   } else {
     cfg = std::move(parsed).value();
+    // As on rank 0: the signal flag reaches long constructions (PEG, the
+    // encoder's elimination), and memory estimates count this rank's threads.
+    BuildContext build;
+    build.stop = interrupt;
+    build.threads = ResolveThreadCount(cfg.sweep.threads);
     for (const SchemeConfig& s : cfg.schemes) {
-      auto chain = Chain::Create(s, cfg.sweep.seed);
+      auto chain = Chain::Create(s, cfg.sweep.seed, build);
       if (!chain.ok()) {
-        error = chain.status().message();
+        error = chain.status().stopped()
+                    ? std::string(kStoppedWhileBuilding) + " the code of scheme '" + s.name + "'"
+                    : chain.status().message();
         chains.clear();
         break;
       }

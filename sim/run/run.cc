@@ -252,6 +252,26 @@ int Run(const RunOptions& o) {
     return line;
   };
 
+  // Stopped before anything was simulated (here or, under MPI, on another
+  // rank while it built its codes): a resumed checkpoint stays as it is; a
+  // fresh run records its config with no point yet, so that the run
+  // continues with --resume like after any other stop.
+  auto stopped_building = [&](const std::string& what) {
+    if (!resumed) {
+      ckpt.complete = false;
+      ckpt.seed = cfg.sweep.seed;
+      ckpt.kernel_target = NoiseKernelTarget();
+      ckpt.config_text = cfg.ResolvedText();
+      ckpt.updated_utc = UtcNow();
+      ckpt.schemes.clear();
+      for (const SchemeConfig& sc : cfg.schemes) ckpt.schemes.push_back(SchemeRecord{sc.name, {}});
+      if (Status w = WriteCheckpoint(ckpt_path, ckpt); !w.ok()) return fail(w.message());
+    }
+    return fail(what + "; checkpoint " + ckpt_path + " saved (" +
+                    std::to_string(ckpt.FinishedPoints()) +
+                    " point(s) finished); continue with: " + again(),
+                kExitStopped);
+  };
   // Build every chain before the first frame, so a bad scheme fails fast.
   // The interrupt flag reaches the constructions (PEG, the encoder's
   // elimination), which then stop within a second.
@@ -266,24 +286,7 @@ int Run(const RunOptions& o) {
       continue;
     }
     if (!chain.status().stopped()) return fail(o.config_path + ": " + chain.status().message());
-    // Stopped before anything was simulated: a resumed checkpoint stays as
-    // it is; a fresh run records its config with no point yet, so that the
-    // run continues with --resume like after any other stop.
-    if (!resumed) {
-      ckpt.complete = false;
-      ckpt.seed = cfg.sweep.seed;
-      ckpt.kernel_target = NoiseKernelTarget();
-      ckpt.config_text = cfg.ResolvedText();
-      ckpt.updated_utc = UtcNow();
-      ckpt.schemes.clear();
-      for (const SchemeConfig& sc : cfg.schemes) ckpt.schemes.push_back(SchemeRecord{sc.name, {}});
-      if (Status w = WriteCheckpoint(ckpt_path, ckpt); !w.ok()) return fail(w.message());
-    }
-    return fail("stopped by signal while building the code of scheme '" + s.name +
-                    "'; checkpoint " + ckpt_path + " saved (" +
-                    std::to_string(ckpt.FinishedPoints()) +
-                    " point(s) finished); continue with: " + again(),
-                kExitStopped);
+    return stopped_building("stopped by signal while building the code of scheme '" + s.name + "'");
   }
   // Recorded counts checked against the chains before anything is written:
   // a refused checkpoint is left as it is.
@@ -298,6 +301,7 @@ int Run(const RunOptions& o) {
     std::vector<std::string> notes;
     const Status s = peers->Start(cfg.ResolvedText(), &notes);
     started = true;
+    if (s.stopped()) return stopped_building(s.message());
     if (!s.ok()) return fail(s.message());
     for (const std::string& note : notes) say("note: " + note);
   }

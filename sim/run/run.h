@@ -58,7 +58,9 @@ class RunPeers {
   // Setup failed before Start: the peers exit with status 1.
   virtual void Release() = 0;
   // Sends the resolved config text; every peer builds its chains. An error
-  // names the rank that could not (the peers are then shut down). `notes`
+  // names the rank that could not (the peers are then shut down); a
+  // Status::Stopped says a rank was stopped by a signal while building its
+  // codes (the run then exits 75 with its checkpoint). `notes`
   // receives lines worth printing (e.g. ranks running other kernels).
   virtual Status Start(const std::string& config_text, std::vector<std::string>* notes) = 0;
   // Takes units of the current point (EngineOptions::exchange).

@@ -4,7 +4,8 @@
 // and --resume finishes it to the same counts; SIGTERM to every rank (what a
 // batch scheduler sends) stops cleanly with status 75; SIGTERM to mpirun
 // leaves a good checkpoint that a single process can resume; SIGTERM inside
-// long units stops every rank within 2 s with the finished units saved.
+// long units, or while a worker rank builds the code, stops every rank
+// within 2 s (finished units saved).
 #include <dirent.h>
 #include <signal.h>
 #include <unistd.h>
@@ -321,6 +322,90 @@ TEST(MpiRun, SigtermDuringALongUnitStopsEveryRankWithin2s) {
   EXPECT_EQ(rec.counts.frames, 2000u * rec.units);  // whole units only
   EXPECT_EQ(rec.counts.bits, 2000000u * rec.units);
   EXPECT_FALSE(rec.finished);
+  fs::remove_all(dir);
+}
+
+// Minor page faults of `pid` so far (/proc/PID/stat field 10), or -1.
+long MinorFaults(pid_t pid) {
+  std::ifstream stat("/proc/" + std::to_string(pid) + "/stat");
+  std::string line;
+  if (!std::getline(stat, line)) return -1;
+  const auto close = line.rfind(')');
+  if (close == std::string::npos) return -1;
+  std::istringstream rest(line.substr(close + 2));
+  std::string field;
+  for (int i = 0; i < 8 && rest >> field; ++i) {
+  }
+  return std::atol(field.c_str());
+}
+
+// Rank 0 builds its PEG code (n = 12288: about 8 s on one core here) while
+// the worker waits in the config broadcast; then the worker builds the same
+// code while rank 0 waits for its readiness in a blocking gather. The
+// worker's construction shows as its first page faults since start-up (a
+// rank waiting inside MPI touches no new memory). SIGTERM to every rank then
+// must stop the worker's construction within a second: every rank gone
+// within 2 s, status 75, and a checkpoint with the config and no point
+// (before the worker saw the flag: the rest of its construction, seconds).
+TEST(MpiRun, SigtermWhileTheWorkerRankBuildsTheCodeStopsWithin2s) {
+  const fs::path dir = TempDir("worker_build");
+  const std::string config = (dir / "peg.ini").string();
+  std::ofstream(config) << "[sweep]\nebno_db = 1\nseed = 1\n[scheme.big]\nmodulation = bpsk\n"
+                           "code = ldpc\nlength = 12288\n";
+  const std::string out = (dir / "out.h5").string(), ckpt = CheckpointPath(out);
+  Process launcher(CAPGAP_MPIEXEC,
+                   Mpi(2, {"run", config, "-o", out, "--threads", "1", "--quiet"}),
+                   dir / "worker_build_log.txt");
+  std::vector<std::pair<int, pid_t>> ranks;
+  const auto t0 = test::Clock::now();
+  while (ranks.size() < 2 && test::SecondsSince(t0) < 30) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(100));
+    ranks = Ranks(launcher.pid());
+  }
+  ASSERT_EQ(ranks.size(), 2u) << launcher.Log();
+  const pid_t worker = ranks[0].first == 1 ? ranks[0].second : ranks[1].second;
+  std::this_thread::sleep_for(std::chrono::seconds(1));  // MPI start-up settles
+  const long idle = MinorFaults(worker);
+  bool building = false;
+  // Generous: rank 0's construction takes minutes on a loaded machine.
+  while (!launcher.Exited() && test::SecondsSince(t0) < 600) {
+    if (MinorFaults(worker) > idle + 20) {
+      building = true;
+      break;
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(10));
+  }
+  ASSERT_TRUE(building) << "the worker never started building\n" << launcher.Log();
+  std::this_thread::sleep_for(std::chrono::milliseconds(500));
+  ASSERT_FALSE(launcher.Exited()) << launcher.Log();
+  const auto signalled = test::Clock::now();
+  for (const auto& [rank, pid] : ranks) ::kill(pid, SIGTERM);
+  std::vector<double> gone(ranks.size(), -1);
+  while (!launcher.Exited() && test::SecondsSince(signalled) < 60) {
+    for (std::size_t i = 0; i < ranks.size(); ++i) {
+      if (gone[i] < 0 && !Running(ranks[i].second)) gone[i] = test::SecondsSince(signalled);
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(2));
+  }
+  const double seconds = test::SecondsSince(signalled);
+  const int status = launcher.Wait(1);
+  for (std::size_t i = 0; i < ranks.size(); ++i) {
+    if (gone[i] < 0 && !Running(ranks[i].second)) gone[i] = seconds;
+    EXPECT_GE(gone[i], 0) << "rank " << ranks[i].first << " still running";
+    EXPECT_LT(gone[i], 2.0) << "rank " << ranks[i].first << "\n" << launcher.Log();
+    std::printf("rank %d stopped %.3f s after SIGTERM (worker building)\n", ranks[i].first,
+                gone[i]);
+  }
+  EXPECT_EQ(status, 75) << launcher.Log();
+  EXPECT_NE(launcher.Log().find("capgap: rank 1: stopped by signal while building the code of "
+                                "scheme 'big'; checkpoint " + ckpt + " saved (0 point(s) finished)"),
+            std::string::npos)
+      << launcher.Log();
+  EXPECT_FALSE(fs::exists(out));
+  const Checkpoint c = ReadGood(ckpt);
+  EXPECT_FALSE(c.complete);
+  ASSERT_EQ(c.schemes.size(), 1u);
+  EXPECT_TRUE(c.schemes[0].points.empty());
   fs::remove_all(dir);
 }
 
