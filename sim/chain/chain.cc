@@ -3,10 +3,32 @@
 #include "sim/chain/chain.h"
 
 #include <algorithm>
+#include <bit>
+#include <cstring>
+#include <numbers>
 
 #include "blocks/kernels/bpsk_kernels.h"
+#include "blocks/kernels/channel_llr_kernels.h"
 
 namespace capgap {
+namespace {
+
+// Positions where two arrays of 0/1 bytes differ: eight bytes per XOR and
+// popcount (each differing byte holds exactly one set bit).
+std::uint64_t CountBitErrors(const Bit* a, const Bit* b, std::size_t n) {
+  std::uint64_t errors = 0;
+  std::size_t j = 0;
+  for (; j + 8 <= n; j += 8) {
+    std::uint64_t x, y;
+    std::memcpy(&x, a + j, 8);
+    std::memcpy(&y, b + j, 8);
+    errors += static_cast<std::uint64_t>(std::popcount(x ^ y));
+  }
+  for (; j < n; ++j) errors += static_cast<std::uint64_t>(a[j] ^ b[j]);
+  return errors;
+}
+
+}  // namespace
 
 Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
                             const BuildContext& context) {
@@ -36,6 +58,18 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   // A BPSK chain stays on the real axis only without shaping or carrier offset.
   chain.real_axis_ = scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
                      !carrier && chain.channel_family_->additive_only;
+  // QPSK without shaping or carrier offset: bits to LLRs in one fused kernel
+  // (channel_llr_kernels.h) on additive-only channels.
+  chain.qpsk_fused_ = scheme.modulation.order == 4 &&
+                      scheme.modulation.family == ModulationFamily::kPsk &&
+                      scheme.shaping == PulseShape::kNone && !carrier &&
+                      scheme.demapper != DemapMethod::kHard;
+  if (chain.qpsk_fused_) {
+    for (std::size_t l = 0; l < 4; ++l) {
+      chain.qpsk_re_[l] = chain.mapper_->points()[l].real();
+      chain.qpsk_im_[l] = chain.mapper_->points()[l].imag();
+    }
+  }
   if (scheme.shaping != PulseShape::kNone) {
     PulseSpec spec;
     spec.shape = scheme.shaping;
@@ -233,6 +267,24 @@ std::vector<cf32> Chain::CaptureDemapperInput(const Channel& channel,
 
 void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, Streams& s,
                         ChainWorkspace& ws, std::span<float> llrs) const {
+  if (real_axis_ && channel.additive_only()) {
+    // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
+    // L = 4 y / N0 (LLR > 0 favours bit 0); fused: the same LLRs as the
+    // steps below, bit for bit (channel_llr_kernels.h).
+    BpskChannelLlrs(tx_bits.data(), ws.real_symbols.size(),
+                    static_cast<float>(channel.level().sigma_per_dim), 4.0f / channel.n0(),
+                    s.noise, llrs.data());
+    return;
+  }
+  if (qpsk_fused_ && channel.additive_only()) {
+    // Mapper, complex noise and the demapper's QPSK LLRs (gain 2 sqrt2 / N0,
+    // formed as the demapper forms it) in one pass, bit for bit the same.
+    const float gain = 2.0f * std::numbers::sqrt2_v<float> * (1.0f / channel.n0());
+    QpskChannelLlrs(tx_bits.data(), tx_bits.size() / 2, qpsk_re_, qpsk_im_,
+                    static_cast<float>(channel.level().sigma_per_dim), gain, s.noise,
+                    llrs.data());
+    return;
+  }
   if (real_axis_) {
     // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
     // L = 4 y / N0 (LLR > 0 favours bit 0).
@@ -326,8 +378,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
     for (std::uint32_t b = 0; b < batch; ++b) {
       const Bit* info = ws.batch_bits.data() + b * k;
       const Bit* decided = ws.batch_decided.data() + b * k;
-      std::uint64_t errors = 0;
-      for (std::size_t j = 0; j < k; ++j) errors += static_cast<std::uint64_t>(info[j] ^ decided[j]);
+      const std::uint64_t errors = CountBitErrors(info, decided, k);
       const FrameDecodeResult& r = results[b];
       counts.bits += k;
       counts.bit_errors += errors;

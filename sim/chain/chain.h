@@ -135,6 +135,10 @@ class Chain {
   std::shared_ptr<const Demapper> demapper_;
   std::optional<PrbsGenerator> prbs_;
   bool real_axis_ = false;  // BPSK: real samples, in-phase noise only
+  // QPSK, unshaped, no carrier offset, soft demapper: fused bits -> LLRs on
+  // additive-only channels, with the mapper's points by label.
+  bool qpsk_fused_ = false;
+  float qpsk_re_[4] = {}, qpsk_im_[4] = {};
   // Shaped chains: transmit pulse, matched filter (with any timing offset),
   // carrier offset (also used without shaping when set), and the receiver's
   // delay in symbols (= guard symbols sent after every frame).
