@@ -127,9 +127,117 @@ HWY_NOINLINE void LlrLoop(const Shape& shape, const Bit* HWY_RESTRICT bits, std:
   awgn_detail::ForEachNormalGroup(df, n, key, counter, sink);
 }
 
+// 16-QAM errors of Lanes(df) axis samples from 2 Lanes(df) bytes of bits:
+// the byte pair of sample t read as one 16-bit lane (low byte bits[2t] =
+// the label's MSB, high byte its LSB; every Highway target is
+// little-endian), x by a select among the four levels, y = NoisySample,
+// then the demapper's decision operations; the per-lane error counts (0..2)
+// are added to `acc`. `valid`: lanes from valid on count nothing.
+template <class DF>
+HWY_INLINE void Qam16Errors(DF df, const Qam16Decider& d, const Bit* HWY_RESTRICT bits,
+                            hn::Vec<DF> z, hn::Vec<DF> sigma, std::size_t valid,
+                            hn::Vec<hn::RebindToUnsigned<DF>>& acc) {
+  const hn::RebindToUnsigned<DF> du;
+  const hn::Rebind<std::uint16_t, DF> d16;
+  const hn::Repartition<std::uint8_t, decltype(d16)> d8;
+  const auto pair = hn::PromoteTo(du, hn::BitCast(d16, hn::LoadU(d8, bits)));
+  const auto hi = hn::And(pair, hn::Set(du, 1u));
+  const auto lo = hn::And(hn::ShiftRight<8>(pair), hn::Set(du, 1u));
+  const auto mhi = hn::RebindMask(df, hn::Ne(hi, hn::Zero(du)));
+  const auto mlo = hn::RebindMask(df, hn::Ne(lo, hn::Zero(du)));
+  const auto x = hn::IfThenElse(mhi, hn::IfThenElse(mlo, hn::Set(df, d.levels[3]), hn::Set(df, d.levels[2])),
+                                hn::IfThenElse(mlo, hn::Set(df, d.levels[1]), hn::Set(df, d.levels[0])));
+  const auto y = awgn_detail::NoisySample(sigma, z, x);
+  hn::Mask<DF> dhi, dlo;
+  const auto zero = hn::Zero(df);
+  if (d.maxlog) {
+    const auto two_s = hn::Set(df, d.two_s);
+    const auto l0 = hn::Sub(hn::Mul(hn::Set(df, d.ka), y),
+                            hn::Mul(hn::Set(df, d.kb),
+                                    hn::Sub(hn::Abs(hn::Add(y, two_s)), hn::Abs(hn::Sub(y, two_s)))));
+    const auto l1 = hn::Sub(hn::Mul(hn::Set(df, d.kc), hn::Abs(y)), hn::Set(df, d.kd));
+    dhi = hn::Lt(l0, zero);
+    dlo = hn::Lt(l1, zero);
+  } else {
+    const auto u = hn::Mul(hn::Set(df, d.inv_s), y);
+    dhi = hn::Lt(u, zero);
+    dlo = hn::Xor(hn::Lt(u, hn::Set(df, 2.0f)), hn::Lt(u, hn::Set(df, -2.0f)));
+  }
+  const auto first = hn::FirstN(df, valid);
+  const auto ehi = hn::And(hn::Xor(dhi, mhi), first);
+  const auto elo = hn::And(hn::Xor(dlo, mlo), first);
+  const auto one = hn::Set(du, 1u);
+  acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, ehi), one));
+  acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, elo), one));
+}
+
+template <class DF>
+struct Qam16Sink {
+  DF df;
+  float sigma;
+  Qam16Decider d;
+  const Bit* HWY_RESTRICT bits;
+  std::uint64_t errors = 0;
+
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    Qam16Errors(df, d, bits + 2 * i, s0, vs, lanes, acc);
+    Qam16Errors(df, d, bits + 2 * (i + lanes), s1, vs, lanes, acc);
+    Qam16Errors(df, d, bits + 2 * (i + 2 * lanes), s2, vs, lanes, acc);
+    Qam16Errors(df, d, bits + 2 * (i + 3 * lanes), s3, vs, lanes, acc);
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    const auto vs = hn::Set(df, sigma);
+    HWY_ALIGN Bit b[8 * hn::MaxLanes(DF())] = {};
+    for (std::size_t k = 0; k < 2 * count; ++k) b[k] = bits[2 * i + k];
+    auto acc = hn::Zero(du);
+    const hn::Vec<DF> s[4] = {s0, s1, s2, s3};
+    for (std::size_t v = 0; v < 4 && v * lanes < count; ++v) {
+      const std::size_t left = count - v * lanes;
+      Qam16Errors(df, d, b + 2 * v * lanes, s[v], vs, left < lanes ? left : lanes, acc);
+    }
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+};
+
+inline HWY_NOINLINE std::uint64_t Qam16Loop(const Qam16Decider& d, const Bit* HWY_RESTRICT bits,
+                                            std::size_t n_symbols, float sigma, PhiloxKey key,
+                                            const PhiloxCounter& counter) {
+  using DF = hn::ScalableTag<float>;
+  const DF df;
+  Qam16Sink<DF> sink{df, sigma, d, bits};
+  awgn_detail::ForEachNormalGroup(df, 2 * n_symbols, key, counter, sink);
+  return sink.errors;
+}
+
 }  // namespace channel_llr_detail
 
 #endif  // HWY_TARGET != HWY_SCALAR
+
+// Uncoded 16-QAM error count (channel_llr_kernels.h) at a stream position;
+// does not advance the stream (the caller advances it by n_symbols blocks).
+HWY_MAYBE_UNUSED inline std::uint64_t CountQam16ErrorsKernel(const Bit* HWY_RESTRICT bits,
+                                                             std::size_t n_symbols,
+                                                             const Qam16Decider& d, float sigma,
+                                                             PhiloxKey key,
+                                                             const PhiloxCounter& counter) {
+  if (n_symbols == 0) return 0;
+#if HWY_TARGET == HWY_SCALAR
+  RngStream stream(key, counter[3], counter[2], static_cast<Substream>(counter[1]));
+  stream.Advance(counter[0]);
+  return reference::CountQam16Errors(bits, n_symbols, d, sigma, stream);
+#else
+  return channel_llr_detail::Qam16Loop(d, bits, n_symbols, sigma, key, counter);
+#endif
+}
 
 // The kernels at a stream position (key, counter); they do not advance any
 // stream: the caller advances the noise stream by ceil(n / 2) blocks (BPSK:

@@ -41,6 +41,32 @@ void QpskChannelLlrs(const Bit* bits, std::size_t n_symbols, const float* points
                      const float* points_im, float sigma, float gain, RngStream& noise,
                      float* llrs);
 
+// Uncoded Gray 16-QAM on an additive channel, fused to the error count:
+// bits -> symbols -> AWGN -> decisions -> errors, nothing stored. Per axis
+// sample t (Re of symbol s at t = 2s, Im at 2s + 1; the layout of
+// AddComplexNoise) the two bits bits[2t], bits[2t + 1] are the axis label,
+// x = levels[label] (Mapper::pam_levels()), y = x + sigma z_t as
+// AddComplexNoise forms it, and the decisions are exactly those the chain
+// would take:
+//  * hard: the demapper's slicer, u = (1 / s) y, level index j = #{u < c}
+//    over the thresholds c = 2, 0, -2, label Gray(j);
+//  * max-log: the demapper's closed-form 4-PAM LLRs (demap_reference.h),
+//    L0 = ka y - kb (|y + 2s| - |y - 2s|), L1 = kc |y| - kd, each bit
+//    decided as L < 0 (the identity code's LlrToBits);
+// with s the level scale and the constants formed exactly as the demapper
+// forms them (MakeQam16Decider). Advances the noise stream by 2 n_symbols /
+// 2 = n_symbols blocks, like AddComplexNoise.
+struct Qam16Decider {
+  float levels[4];  // by axis label
+  bool maxlog;
+  float inv_s;                     // hard
+  float ka, kb, kc, kd, two_s;     // max-log
+};
+Qam16Decider MakeQam16Decider(const float* levels, float level_scale, float n0, bool maxlog);
+// 4 n_symbols bits, one per byte (0 or 1).
+std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                               float sigma, RngStream& noise);
+
 // Name of the instruction set these kernels run (NoiseKernelTarget() unless
 // the scalar kernels are forced).
 const char* ChannelLlrKernelTarget();

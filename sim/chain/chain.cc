@@ -65,6 +65,13 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
                       scheme.modulation.family == ModulationFamily::kPsk &&
                       scheme.shaping == PulseShape::kNone && !carrier &&
                       scheme.demapper != DemapMethod::kHard;
+  // Uncoded Gray 16-QAM, hard or max-log decisions, unshaped, no carrier
+  // offset: bits to error count in one fused kernel on additive-only channels.
+  chain.qam16_fused_ = scheme.modulation.order == 16 &&
+                       scheme.modulation.family == ModulationFamily::kQam &&
+                       scheme.shaping == PulseShape::kNone && !carrier &&
+                       (scheme.demapper == DemapMethod::kHard ||
+                        scheme.demapper == DemapMethod::kMaxLog);
   if (chain.qpsk_fused_) {
     for (std::size_t l = 0; l < 4; ++l) {
       chain.qpsk_re_[l] = chain.mapper_->points()[l].real();
@@ -331,6 +338,15 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
   const bool fused = real_axis_ && hard && uncoded && channel.additive_only();
   // Uncoded complex chains with a hard demapper decide symbols directly.
   const bool direct_hard = !real_axis_ && hard && uncoded;
+  // Uncoded 16-QAM, hard or max-log (channel_llr_kernels.h): symbols, noise,
+  // the demapper's decisions and the count in registers; the same counts and
+  // stream use as the composed path.
+  const bool fused_qam16 = qam16_fused_ && uncoded && channel.additive_only();
+  Qam16Decider qam16{};
+  if (fused_qam16) {
+    qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
+                             channel.n0(), !hard);
+  }
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
   for (std::uint32_t f0 = 0; f0 < unit_frames_; f0 += batch_frames_) {
@@ -356,6 +372,16 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         continue;
       }
       FillSource(unit_index, f0 + b, s.bits, bits);
+      if (fused_qam16) {
+        const std::uint64_t errors =
+            CountQam16Errors(bits.data(), k / 4, qam16,
+                             static_cast<float>(channel.level().sigma_per_dim), s.noise);
+        counts.bits += k;
+        counts.bit_errors += errors;
+        counts.frames += 1;
+        counts.frame_errors += errors > 0 ? 1 : 0;
+        continue;
+      }
       std::span<const Bit> tx_bits = bits;
       if (!uncoded) {
         code_->Encode(bits, ws.coded, *ws.code);
@@ -368,7 +394,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
       }
     }
-    if (fused) continue;
+    if (fused || fused_qam16) continue;
     const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
     if (direct_hard) {
       std::fill(results.begin(), results.end(), FrameDecodeResult{});

@@ -139,6 +139,9 @@ class Chain {
   // additive-only channels, with the mapper's points by label.
   bool qpsk_fused_ = false;
   float qpsk_re_[4] = {}, qpsk_im_[4] = {};
+  // Uncoded 16-QAM with hard or max-log decisions, unshaped, no carrier
+  // offset: fused bits -> error count on additive-only channels.
+  bool qam16_fused_ = false;
   // Shaped chains: transmit pulse, matched filter (with any timing offset),
   // carrier offset (also used without shaping when set), and the receiver's
   // delay in symbols (= guard symbols sent after every frame).

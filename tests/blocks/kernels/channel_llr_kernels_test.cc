@@ -5,7 +5,9 @@
 // CPU is checked against the composed path of the same target: symbols as
 // the chain / Mapper form them, that target's noise loop (NormalKernel), and
 // the LLR multiply. LLRs must be identical bit for bit, on awkward lengths,
-// misaligned bit arrays and streams whose block index wraps inside a call.
+// misaligned bit arrays and streams whose block index wraps inside a call;
+// the fused uncoded 16-QAM count equals the count of the same target's
+// noisy samples decided by the demapper's operations.
 // The public entry points are checked against the public composed path
 // (Mapper::Map, AwgnChannel noise, Demapper::Demap; dispatched and forced
 // scalar) for LLRs and stream positions.
@@ -38,6 +40,10 @@ void QpskUnderTest(const Bit* bits, std::size_t n, const float* re, const float*
                    float gain, PhiloxKey key, const PhiloxCounter& counter, float* llrs) {
   QpskChannelLlrsKernel(bits, n, re, im, sigma, gain, key, counter, llrs);
 }
+std::uint64_t Qam16UnderTest(const Bit* bits, std::size_t n, const Qam16Decider& d, float sigma,
+                             PhiloxKey key, const PhiloxCounter& counter) {
+  return CountQam16ErrorsKernel(bits, n, d, sigma, key, counter);
+}
 // The composed path's noise step on this target: x[i] += sigma z_i.
 void AddNoiseOnTarget(float* x, std::size_t n, float sigma, PhiloxKey key,
                       const PhiloxCounter& counter) {
@@ -66,6 +72,7 @@ namespace {
 HWY_EXPORT(BpskUnderTest);
 HWY_EXPORT(QpskUnderTest);
 HWY_EXPORT(AddNoiseOnTarget);
+HWY_EXPORT(Qam16UnderTest);
 
 // The library picks its targets once, on first use: before any test mocks
 // the CPU's target list.
@@ -173,6 +180,92 @@ TEST_P(ChannelLlrPerTarget, QpskEqualsComposedPathOfTheSameTarget) {
       }
     }
   }
+}
+
+// 16-QAM: the fused count against this target's noisy samples decided by
+// the demapper's oracle operations (reference::Qam16AxisErrors; the demap
+// kernels are bit-identical to their oracle on every target), hard and
+// max-log, awkward lengths, misaligned bits, a wrapping stream.
+TEST_P(ChannelLlrPerTarget, Qam16CountEqualsComposedPathOfTheSameTarget) {
+  const Mapper mapper = Mapper::Create(ParseModulation("16qam").value()).value();
+  const Demapper demapper = Demapper::Create(mapper, DemapMethod::kMaxLog).value();
+  const float sigma = 0.2f;  // Es/N0 about 11 dB: symbol errors ~5e-3
+  for (bool maxlog : {false, true}) {
+    const Qam16Decider d = MakeQam16Decider(mapper.pam_levels().data(),
+                                            demapper.kernel_args().level_scale, 2 * sigma * sigma,
+                                            maxlog);
+    for (std::uint32_t start : {0u, 0xFFFFFFF0u}) {
+      for (std::size_t n : AwkwardLengths()) {
+        for (std::size_t offset : {std::size_t{0}, std::size_t{1}}) {
+          const std::vector<Bit> bits = RandomBits(4 * n + offset, 3);
+          const Bit* b = bits.data() + offset;
+          const RngStream noise = StreamAt(Substream::kNoise, start);
+          std::vector<float> y(2 * n);
+          for (std::size_t t = 0; t < 2 * n; ++t) y[t] = d.levels[2 * b[2 * t] + b[2 * t + 1]];
+          HWY_DYNAMIC_DISPATCH(AddNoiseOnTarget)(y.data(), 2 * n, sigma, noise.key(),
+                                                 noise.counter());
+          std::uint64_t expected = 0;
+          for (std::size_t t = 0; t < 2 * n; ++t) {
+            expected += reference::Qam16AxisErrors(d, y[t], b[2 * t], b[2 * t + 1]);
+          }
+          EXPECT_EQ(HWY_DYNAMIC_DISPATCH(Qam16UnderTest)(b, n, d, sigma, noise.key(),
+                                                         noise.counter()),
+                    expected)
+              << "n = " << n << " maxlog " << maxlog << " start " << start;
+        }
+      }
+    }
+  }
+}
+
+// The public 16-QAM count against the chain's composed path: Mapper::Map,
+// AwgnChannel::AddNoise, then Demapper::HardDecide (hard) or
+// Demapper::Demap + LlrToBits (max-log), errors counted bit by bit; at an
+// Eb/N0 with many errors (so a wrong decision rule could not hide) and
+// with the stream position after the call.
+void ExpectQam16PublicPathAgrees() {
+  const Mapper mapper = Mapper::Create(ParseModulation("16qam").value()).value();
+  NoiseSpec spec;
+  spec.ebno_db = 4.0;
+  spec.bits_per_symbol = 4;
+  const AwgnChannel channel(spec);
+  const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
+  for (DemapMethod method : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+    const Demapper demapper = Demapper::Create(mapper, method).value();
+    const Qam16Decider d =
+        MakeQam16Decider(mapper.pam_levels().data(), demapper.kernel_args().level_scale,
+                         channel.n0(), method == DemapMethod::kMaxLog);
+    for (std::size_t n : {std::size_t{1}, std::size_t{37}, std::size_t{960}, std::size_t{4001}}) {
+      const std::vector<Bit> bits = RandomBits(4 * n, 6);
+      RngStream a = StreamAt(Substream::kNoise, 11), b = a;
+      std::vector<cf32> symbols(n);
+      mapper.Map(bits, symbols);
+      channel.AddNoise(symbols, a);
+      std::vector<Bit> decided(4 * n);
+      if (method == DemapMethod::kHard) {
+        demapper.HardDecide(symbols, decided);
+      } else {
+        std::vector<float> llrs(4 * n);
+        demapper.Demap(symbols, channel.n0(), llrs);
+        LlrToBits(llrs, decided);
+      }
+      std::uint64_t expected = 0;
+      for (std::size_t i = 0; i < 4 * n; ++i) expected += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+      EXPECT_EQ(CountQam16Errors(bits.data(), n, d, sigma, b), expected)
+          << "n = " << n << " method " << ToString(method);
+      EXPECT_EQ(a.block_index(), b.block_index());
+      if (n == 4001) {
+        EXPECT_GT(expected, 100u);  // a BER of ~1e-2 at 4 dB
+      }
+    }
+  }
+}
+
+TEST(ChannelLlrKernels, Qam16CountEqualsComposedPathDispatchedAndScalar) {
+  ExpectQam16PublicPathAgrees();
+  const bool previous = ForceScalarKernels(true);
+  ExpectQam16PublicPathAgrees();
+  ForceScalarKernels(previous);
 }
 
 // The public entry points against the public composed path of the chain
