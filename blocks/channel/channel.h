@@ -13,11 +13,15 @@
 //
 // additive_only(): the channel is exactly additive white Gaussian noise of
 // level() on every sample (gain 1). The chain may then keep BPSK on the real
-// axis (ApplyReal, I noise only) and use its fused uncoded BPSK kernel.
+// axis (ApplyReal, I noise only) and use its fused kernels (uncoded BPSK,
+// soft BPSK/QPSK channel LLRs, uncoded 16-QAM), which draw that noise
+// themselves with sigma = level().sigma_per_dim.
 #ifndef CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
 #define CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
 
+#include <cstdint>
 #include <span>
+#include <vector>
 
 #include "blocks/channel/channel_state.h"
 #include "blocks/core/energy.h"
@@ -26,9 +30,31 @@
 
 namespace capgap {
 
+// Mutable state of a channel process across the blocks of one work unit
+// (block fading: the current block's gains; Doppler fading: the unit's
+// sinusoids), owned by the caller's per-thread workspace. The chain calls
+// Reset() when a unit begins, so a unit's gains depend only on its own
+// kFading stream, never on which thread ran what before (counts stay
+// identical for any thread or rank count). Channels without a process leave
+// it alone; a channel may size its vectors on first use (once per thread).
+struct ChannelProcessState {
+  std::uint64_t symbol = 0;  // symbols of the unit already through the channel
+  bool started = false;      // the unit's process has been drawn
+  std::vector<cf32> held;    // per branch: the gain of the current block
+  std::vector<double> sos;   // Doppler: per branch and sinusoid (freq, phase I, phase Q)
+  std::vector<cf32> gains;   // scratch: branch gains of a block of symbols
+  std::vector<cf32> branch;  // scratch: branch samples of a block of symbols
+  void Reset() {
+    symbol = 0;
+    started = false;
+  }
+};
+
 struct ChannelStateStorage {
   std::span<cf32> gain;  // one per symbol of the block
   std::span<float> n0;   // one per symbol of the block
+  // The unit's process state; nullptr only for channels that need none.
+  ChannelProcessState* process = nullptr;
 };
 
 class Channel {

@@ -55,6 +55,7 @@ enum class Substream : std::uint32_t {
 inline constexpr std::uint32_t kSpectrumPointIndex = 0xFFFFFFFFu;  // Welch PSD of a scheme
 inline constexpr std::uint32_t kDisplayPointIndex = 0xFFFFFFFEu;   // demapper-input capture
 inline constexpr std::uint32_t kEyePointIndex = 0xFFFFFFFDu;       // noise-free eye diagram
+inline constexpr std::uint32_t kInterleaverPointIndex = 0xFFFFFFFCu;  // random interleaver (kCode)
 // Every point index from here up is reserved; a sweep must stay below it.
 inline constexpr std::uint32_t kFirstReservedPointIndex = 0xFFFFFFF0u;
 

@@ -16,6 +16,9 @@
 //    the sums run over the L levels of one axis, not the M points; the results
 //    equal the full 2-D sums.
 //  * M-PSK, M >= 8: the full sums over the M points.
+//  * Generic constellations (points and labels as data, modulation.h): the
+//    brute-force reference GenericDemapSymbol (generic_demapper.h) with
+//    h = 1, in double precision, scalar (no kernel, no dispatch).
 // Log-MAP evaluates exp and log with branch-free polynomial approximations
 // (errors about 1e-7, see blocks/kernels/demap_reference.h); every sum is
 // shifted by its own largest term, so nothing overflows or underflows for any
@@ -25,7 +28,10 @@
 // With a per-symbol channel state (y = h x + n, noise variance N0 per symbol,
 // coherent detection with known h, common practice) the metric is
 // |y - h x|^2 / N0, evaluated by brute force over the M points
-// (generic_demapper.h): exact but slow, meant for fading channels.
+// (generic_demapper.h): exact but slow. A state with gain 1 and per-symbol
+// N0 (an equalised combiner output, fading_channel.h) keeps the fast
+// kernels: max-log LLRs at N0 = 1 scaled by 1 / N0 per symbol (max-log is
+// linear in 1 / N0), log-MAP one kernel call per symbol.
 // Hard decisions are the label of the nearest point (per-axis slicer for QAM,
 // signs for BPSK/QPSK, the angular sector for M-PSK); ties, which have
 // probability zero under noise, are broken arbitrarily.
@@ -79,7 +85,8 @@ class Demapper {
   void HardDecide(std::span<const cf32> received, std::span<Bit> bits) const;
 
   // The constellation tables the demap kernels read (valid while this
-  // Demapper lives); for tests and benchmarks of blocks/kernels.
+  // Demapper lives); for tests and benchmarks of blocks/kernels. Not used
+  // (and not meaningful) for generic constellations.
   DemapKernelArgs kernel_args() const;
 
  private:
@@ -96,6 +103,9 @@ class Demapper {
   // of the M/2 sector boundary lines 2 pi i / M.
   std::vector<float> point_re_, point_im_;
   std::vector<float> boundary_cos_, boundary_sin_;
+  // Generic constellation: every call goes through GenericDemapSymbol.
+  bool generic_ = false;
+  static constexpr std::size_t kMaxGenericBits = 6;  // M <= 64 (modulation.h)
 };
 
 // Hard decisions of LLRs: bit = (llr < 0). REQUIRES equal sizes.

@@ -6,6 +6,7 @@
 #include <cstring>
 #include <numbers>
 
+#include "blocks/channel/channel_words.h"
 #include "blocks/kernels/bpsk_kernels.h"
 #include "blocks/kernels/channel_llr_kernels.h"
 
@@ -45,8 +46,10 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   chain.code_ = std::move(code).value();
   // The family fixes the information bits per frame (LDPC: the code's k).
   chain.scheme_.frame_bits = static_cast<std::uint32_t>(chain.code_->info_bits());
-  chain.channel_family_ = FindChannelFamily("awgn");
-  if (!chain.channel_family_) return Status::Error("no channel 'awgn' in the registry");
+  chain.channel_family_ = FindChannelFamily(ToString(scheme.channel.law));
+  if (!chain.channel_family_) {
+    return Status::Error(p + "channel = '" + ToString(scheme.channel.law) + "': not in the registry");
+  }
   chain.key_ = DeriveKey(seed, scheme.name);
   chain.unit_frames_ = chain.scheme_.ResolvedUnitFrames();
   auto mapper = Mapper::Create(scheme.modulation);
@@ -56,9 +59,11 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   if (!demapper.ok()) return Status::Error("scheme." + scheme.name + ": " + demapper.status().message());
   chain.demapper_ = std::make_shared<const Demapper>(std::move(demapper).value());
   const bool carrier = scheme.phase_offset_deg != 0 || scheme.frequency_offset != 0;
-  // A BPSK chain stays on the real axis only without shaping or carrier offset.
-  chain.real_axis_ = scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
-                     !carrier && chain.channel_family_->additive_only;
+  // A BPSK chain stays on the real axis only without shaping or carrier
+  // offset, on an additive-only channel (asked of an instance).
+  chain.real_axis_ = scheme.modulation.family == ModulationFamily::kPsk &&
+                     scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
+                     !carrier && chain.MakePointChannel(0.0)->additive_only();
   // QPSK without shaping or carrier offset: bits to LLRs in one fused kernel
   // (channel_llr_kernels.h) on additive-only channels.
   chain.qpsk_fused_ = scheme.modulation.order == 4 &&
@@ -112,6 +117,23 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
     chain.prbs_ = std::move(prbs).value();
   }
   chain.batch_frames_ = std::max<std::uint32_t>(1, chain.code_->batch_frames(chain.unit_frames_));
+  if (scheme.interleaver.kind != InterleaverKind::kNone) {
+    if (!chain.coded()) {
+      return Status::Error(p + "interleaver = " + ToString(scheme.interleaver.kind) +
+                           ": applies to coded schemes only");
+    }
+    // Groups of interleaver_frames frames: whole groups per unit (the
+    // config's unit_frames rule) and per decoder batch.
+    const std::uint32_t f = scheme.interleaver.frames;
+    if (chain.unit_frames_ % f != 0) {
+      return Status::Error(p + "unit_frames = " + std::to_string(chain.unit_frames_) +
+                           ": must be a multiple of interleaver_frames = " + std::to_string(f));
+    }
+    chain.batch_frames_ = std::min(chain.unit_frames_, (chain.batch_frames_ + f - 1) / f * f);
+    auto il = Interleaver::Create(scheme.interleaver, chain.code_->coded_bits() * f, chain.key_);
+    if (!il.ok()) return Status::Error(p + il.status().message());
+    chain.interleaver_ = std::make_shared<const Interleaver>(std::move(il).value());
+  }
   return chain;
 }
 
@@ -122,7 +144,7 @@ std::unique_ptr<const Channel> Chain::MakePointChannel(double ebno_db) const {
   spec.code_rate = code_rate();
   spec.bits_per_symbol = mapper_->bits_per_symbol();
   spec.samples_per_symbol = samples_per_symbol();
-  return channel_family_->make(spec);
+  return channel_family_->make(spec, scheme_.channel);
 }
 
 ChainWorkspace Chain::MakeWorkspace() const {
@@ -136,6 +158,11 @@ ChainWorkspace Chain::MakeWorkspace() const {
   ws.batch_llrs.resize(batch_frames_ * n);
   ws.batch_decided.resize(batch_frames_ * k);
   ws.batch_results.resize(batch_frames_);
+  if (interleaver_) {
+    ws.group_coded.resize(interleaver_->length());
+    ws.group_mixed.resize(interleaver_->length());
+    ws.group_llrs.resize(interleaver_->length());
+  }
   if (real_axis_) {
     ws.real_symbols.resize(symbols);
   } else {
@@ -180,7 +207,7 @@ Chain::Streams Chain::UnitStreams(std::uint32_t point_index, std::uint32_t unit_
 void Chain::ApplyChannel(const Channel& channel, std::span<cf32> samples, Streams& s,
                          ChainWorkspace& ws) const {
   channel.Apply(samples, samples_per_symbol(), s.noise, s.process,
-                ChannelStateStorage{ws.state_gain, ws.state_n0}, ws.state);
+                ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process}, ws.state);
 }
 
 // One frame through the shaped channel. The receiver lags the transmitter by
@@ -210,6 +237,8 @@ void Chain::ShapedFrame(const Channel& channel, Streams& s, ChainWorkspace& ws) 
 // the filters hold a steady state when the first frame arrives. Carrier
 // offset: the phase ramp restarts with every unit.
 void Chain::PrimeUnit(const Channel& channel, Streams& s, ChainWorkspace& ws) const {
+  // A unit's channel process starts afresh (its kFading stream only).
+  ws.process.Reset();
   if (shaped()) {
     ws.tx.Reset();
     ws.rx.Reset();
@@ -341,7 +370,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
   // Uncoded 16-QAM, hard or max-log (channel_llr_kernels.h): symbols, noise,
   // the demapper's decisions and the count in registers; the same counts and
   // stream use as the composed path.
-  const bool fused_qam16 = qam16_fused_ && uncoded && channel.additive_only();
+  const bool fused_qam16 = qam16_fused_ && uncoded && !interleaver_ && channel.additive_only();
   Qam16Decider qam16{};
   if (fused_qam16) {
     qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
@@ -380,6 +409,24 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         counts.bit_errors += errors;
         counts.frames += 1;
         counts.frame_errors += errors > 0 ? 1 : 0;
+        continue;
+      }
+      if (interleaver_) {
+        // Groups of F frames (batches hold whole groups): encode into the
+        // group, then interleave it, send it frame by frame and put the
+        // group's LLRs back in code order.
+        const std::uint32_t f = scheme_.interleaver.frames;
+        const std::span<Bit> group(ws.group_coded);
+        code_->Encode(bits, group.subspan((b % f) * n, n), *ws.code);
+        if ((b + 1) % f == 0) {
+          interleaver_->Interleave(ws.group_coded, ws.group_mixed);
+          for (std::uint32_t j = 0; j < f; ++j) {
+            ChannelLlrs(std::span<const Bit>(ws.group_mixed).subspan(j * n, n), channel, s, ws,
+                        std::span<float>(ws.group_llrs).subspan(j * n, n));
+          }
+          interleaver_->Deinterleave(
+              ws.group_llrs, std::span<float>(ws.batch_llrs.data() + (b + 1 - f) * n, f * n));
+        }
         continue;
       }
       std::span<const Bit> tx_bits = bits;

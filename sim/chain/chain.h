@@ -31,6 +31,7 @@
 #include "blocks/core/rng_stream.h"
 #include "blocks/core/status.h"
 #include "blocks/fec/channel_code.h"
+#include "blocks/fec/interleaver.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
 #include "blocks/shaping/fir_filter.h"
@@ -65,6 +66,12 @@ struct ChainWorkspace {
   std::vector<FrameDecodeResult> batch_results;
   std::vector<cf32> symbols;
   std::vector<float> real_symbols;
+  // The unit's channel process (block and Doppler fading), reset per unit.
+  ChannelProcessState process;
+  // Interleaved schemes: a group of interleaver_frames codewords, in code
+  // order and interleaved, and its LLRs in channel order.
+  std::vector<Bit> group_coded, group_mixed;
+  std::vector<float> group_llrs;
 };
 
 class Chain {
@@ -134,6 +141,7 @@ class Chain {
   std::shared_ptr<const Mapper> mapper_;
   std::shared_ptr<const Demapper> demapper_;
   std::optional<PrbsGenerator> prbs_;
+  std::shared_ptr<const Interleaver> interleaver_;  // null: none
   bool real_axis_ = false;  // BPSK: real samples, in-phase noise only
   // QPSK, unshaped, no carrier offset, soft demapper: fused bits -> LLRs on
   // additive-only channels, with the mapper's points by label.

@@ -9,6 +9,7 @@
 #include "analysis/density_evolution.h"
 #include "analysis/fading_theory.h"
 #include "analysis/uncoded_theory.h"
+#include "blocks/channel/channel_words.h"
 #include "blocks/shaping/pulse.h"
 #include "blocks/shaping/spectrum.h"
 #include "sim/chain/registry.h"
@@ -103,30 +104,6 @@ void MeasureEye(const Chain& chain, std::uint64_t seed, SignalViews& out) {
   }
 }
 
-// Words of the channel keys (the same words the scheme's channel keys take).
-const char* LawWord(FadingLaw law) {
-  switch (law) {
-    case FadingLaw::kAwgn: return "awgn";
-    case FadingLaw::kRayleigh: return "rayleigh";
-    case FadingLaw::kRician: return "rician";
-    case FadingLaw::kNakagami: return "nakagami";
-  }
-  return "?";
-}
-
-const char* TimeWord(FadingTime time) {
-  switch (time) {
-    case FadingTime::kFast: return "fast";
-    case FadingTime::kBlock: return "block";
-    case FadingTime::kDoppler: return "doppler";
-  }
-  return "?";
-}
-
-const char* CombiningWord(Combining combining) {
-  return combining == Combining::kMrc ? "mrc" : "selection";
-}
-
 // The channel differs from one-branch AWGN: fading theory and limits apply.
 bool FadingTheoryApplies(const ChannelSpec& channel) {
   return channel.fading() || channel.branches > 1;
@@ -166,14 +143,14 @@ void AnalyseFadingLimits(const Chain& chain, SchemeResult& r) {
 
 CodeReport DescribeChannel(const ChannelSpec& channel) {
   CodeReport report;
-  report.Add("channel", std::string(LawWord(channel.law)));
+  report.Add("channel", ToString(channel.law));
   report.Add("rician_k_db", channel.rician_k_db);
   report.Add("nakagami_m", channel.nakagami_m);
-  report.Add("fading", std::string(TimeWord(channel.time)));
+  report.Add("fading", ToString(channel.time));
   report.Add("coherence_symbols", static_cast<int>(channel.coherence_symbols));
   report.Add("doppler", channel.doppler);
   report.Add("branches", channel.branches);
-  report.Add("combining", std::string(CombiningWord(channel.combining)));
+  report.Add("combining", ToString(channel.combining));
   report.Add("channel_state", std::string("perfect"));
   report.Add("ebno_basis", std::string("Eb/N0 is the average per receive branch (E|h|^2 = 1 "
                                        "per branch); the receiver knows every gain h"));
@@ -231,6 +208,13 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   const double lo = sweep.ebno_db.front() - 1.0;
   const double hi = sweep.ebno_db.back() + 1.0;
   const int n = static_cast<int>(std::floor((hi - lo) / 0.05 + 1e-9)) + 1;
+  if (!analysis::UncodedTheoryIsExact(mod)) {
+    r.theory.uncoded_method =
+        fading ? "union bound over the constellation's pairwise distances on AWGN (upper bound, "
+                 "tight at high SNR); no fading average for a generic constellation (NaN)"
+               : "union bound over the constellation's pairwise distances (upper bound, tight at "
+                 "high SNR)";
+  }
   for (int i = 0; i < n; ++i) {
     const double x = std::round((lo + 0.05 * i) * 1e6) / 1e6;
     r.theory.ebno_db.push_back(x);

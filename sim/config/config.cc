@@ -9,11 +9,13 @@
 
 #include <algorithm>
 #include <filesystem>
+#include <numeric>
 
 #include "sim/config/config_keys.h"
 #include "sim/config/ini_reader.h"
 #include "sim/config/key_table.h"
 #include "sim/config/text.h"
+#include "sim/families/channel_keys.h"
 
 namespace capgap {
 namespace {
@@ -121,7 +123,7 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
     if (!points.ok()) return k.Fail("ebno_db", points.status().message());
     s.ebno_db = points.value();
   }
-  auto modulation = ParseModulation(k.text("modulation"));
+  auto modulation = ParseConstellation(k.text("modulation"));
   if (!modulation.ok()) return k.Fail("modulation", modulation.status().message());
   s.modulation = modulation.value();
   auto demapper = ParseDemapMethod(k.text("demapper"));
@@ -149,6 +151,7 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
   }
   s.phase_offset_deg = k.number("phase_offset_deg");
   s.frequency_offset = k.number("frequency_offset");
+  if (Status st = ParseChannelKeys(k, s); !st.ok()) return st;
   // The code family reads its own keys (sim/families/).
   if (const CodeFamily* family = FindCodeFamily(s.code); family && family->parse) {
     if (Status st = family->parse(k, source, s); !st.ok()) return st;
@@ -186,7 +189,11 @@ std::uint32_t SchemeConfig::ResolvedUnitFrames() const {
   if (unit_frames > 0) return unit_frames;
   constexpr std::uint32_t kUnitBits = 65536;
   const CodeFamily* family = FindCodeFamily(code);
-  const std::uint32_t multiple = family ? family->unit_frames_multiple : 1;
+  std::uint32_t multiple = family ? family->unit_frames_multiple : 1;
+  // Interleaved groups of frames never straddle a unit.
+  if (interleaver.kind != InterleaverKind::kNone && interleaver.frames > 1) {
+    multiple = std::lcm(multiple, interleaver.frames);
+  }
   if (multiple > 1) {
     // A multiple of the family's batch (LDPC: 64 frames, so the decoder's
     // SIMD batches of 16 to 64 codewords across lanes are full on every

@@ -114,7 +114,9 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
   EXPECT_EQ(ErrorOf(std::string(kGood) + "\n[scheme.qpsk]\nroll_off = 0.3\n"),
             "test.ini: unknown key 'scheme.qpsk.roll_off'; [scheme.NAME] keys: modulation, "
             "ebno_db, frame_bits, demapper, source, unit_frames, shaping, rolloff, span, samples_per_symbol, "
-            "timing_offset, phase_offset_deg, frequency_offset, code, generators, "
+            "timing_offset, phase_offset_deg, frequency_offset, code, channel, branches, combining, "
+            "fading, rician_k_db, nakagami_m, coherence_symbols, doppler, interleaver, "
+            "interleaver_rows, interleaver_frames, generators, "
             "constraint_length, puncture, termination, decoder, traceback, construction, length, "
             "rate, degrees, construction_seed, base_matrix, lifting, matrix_file, schedule, "
             "max_iterations, arithmetic, memory_limit_mb, normalization, offset" +
