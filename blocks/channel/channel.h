@@ -13,7 +13,9 @@
 //
 // additive_only(): the channel is exactly additive white Gaussian noise of
 // level() on every sample (gain 1). The chain may then keep BPSK on the real
-// axis (ApplyReal, I noise only) and use its fused uncoded BPSK kernel.
+// axis (ApplyReal, I noise only) and use its fused kernels (uncoded BPSK,
+// soft BPSK/QPSK channel LLRs, uncoded 16-QAM), which draw that noise
+// themselves with sigma = level().sigma_per_dim.
 #ifndef CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
 #define CAPGAP_BLOCKS_CHANNEL_CHANNEL_H_
 

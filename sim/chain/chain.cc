@@ -3,11 +3,34 @@
 #include "sim/chain/chain.h"
 
 #include <algorithm>
+#include <cstring>
+#include <numbers>
 
 #include "blocks/channel/channel_words.h"
 #include "blocks/kernels/bpsk_kernels.h"
+#include "blocks/kernels/channel_llr_kernels.h"
 
 namespace capgap {
+namespace {
+
+// Positions where two arrays of 0/1 bytes differ: eight bytes per XOR; the
+// XOR's bytes are 0 or 1, and multiplying by 0x0101010101010101 sums them
+// into the top byte (partial sums stay <= 8, nothing carries). No popcount
+// instruction is needed (baseline x86-64 has none; GCC would call libgcc).
+std::uint64_t CountBitErrors(const Bit* a, const Bit* b, std::size_t n) {
+  std::uint64_t errors = 0;
+  std::size_t j = 0;
+  for (; j + 8 <= n; j += 8) {
+    std::uint64_t x, y;
+    std::memcpy(&x, a + j, 8);
+    std::memcpy(&y, b + j, 8);
+    errors += ((x ^ y) * 0x0101010101010101ull) >> 56;
+  }
+  for (; j < n; ++j) errors += static_cast<std::uint64_t>(a[j] ^ b[j]);
+  return errors;
+}
+
+}  // namespace
 
 Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
                             const BuildContext& context) {
@@ -41,6 +64,25 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   chain.real_axis_ = scheme.modulation.family == ModulationFamily::kPsk &&
                      scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
                      !carrier && chain.MakePointChannel(0.0)->additive_only();
+  // QPSK without shaping or carrier offset: bits to LLRs in one fused kernel
+  // (channel_llr_kernels.h) on additive-only channels.
+  chain.qpsk_fused_ = scheme.modulation.order == 4 &&
+                      scheme.modulation.family == ModulationFamily::kPsk &&
+                      scheme.shaping == PulseShape::kNone && !carrier &&
+                      scheme.demapper != DemapMethod::kHard;
+  // Uncoded Gray 16-QAM, hard or max-log decisions, unshaped, no carrier
+  // offset: bits to error count in one fused kernel on additive-only channels.
+  chain.qam16_fused_ = scheme.modulation.order == 16 &&
+                       scheme.modulation.family == ModulationFamily::kQam &&
+                       scheme.shaping == PulseShape::kNone && !carrier &&
+                       (scheme.demapper == DemapMethod::kHard ||
+                        scheme.demapper == DemapMethod::kMaxLog);
+  if (chain.qpsk_fused_) {
+    for (std::size_t l = 0; l < 4; ++l) {
+      chain.qpsk_re_[l] = chain.mapper_->points()[l].real();
+      chain.qpsk_im_[l] = chain.mapper_->points()[l].imag();
+    }
+  }
   if (scheme.shaping != PulseShape::kNone) {
     PulseSpec spec;
     spec.shape = scheme.shaping;
@@ -262,6 +304,24 @@ std::vector<cf32> Chain::CaptureDemapperInput(const Channel& channel,
 
 void Chain::ChannelLlrs(std::span<const Bit> tx_bits, const Channel& channel, Streams& s,
                         ChainWorkspace& ws, std::span<float> llrs) const {
+  if (real_axis_ && channel.additive_only()) {
+    // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
+    // L = 4 y / N0 (LLR > 0 favours bit 0); fused: the same LLRs as the
+    // steps below, bit for bit (channel_llr_kernels.h).
+    BpskChannelLlrs(tx_bits.data(), ws.real_symbols.size(),
+                    static_cast<float>(channel.level().sigma_per_dim), 4.0f / channel.n0(),
+                    s.noise, llrs.data());
+    return;
+  }
+  if (qpsk_fused_ && channel.additive_only()) {
+    // Mapper, complex noise and the demapper's QPSK LLRs (gain 2 sqrt2 / N0,
+    // formed as the demapper forms it) in one pass, bit for bit the same.
+    const float gain = 2.0f * std::numbers::sqrt2_v<float> * (1.0f / channel.n0());
+    QpskChannelLlrs(tx_bits.data(), tx_bits.size() / 2, qpsk_re_, qpsk_im_,
+                    static_cast<float>(channel.level().sigma_per_dim), gain, s.noise,
+                    llrs.data());
+    return;
+  }
   if (real_axis_) {
     // BPSK on the real axis: bit 0 -> +1, bit 1 -> -1; only I noise;
     // L = 4 y / N0 (LLR > 0 favours bit 0).
@@ -307,6 +367,15 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
   const bool fused = real_axis_ && hard && uncoded && channel.additive_only();
   // Uncoded complex chains with a hard demapper decide symbols directly.
   const bool direct_hard = !real_axis_ && hard && uncoded;
+  // Uncoded 16-QAM, hard or max-log (channel_llr_kernels.h): symbols, noise,
+  // the demapper's decisions and the count in registers; the same counts and
+  // stream use as the composed path.
+  const bool fused_qam16 = qam16_fused_ && uncoded && !interleaver_ && channel.additive_only();
+  Qam16Decider qam16{};
+  if (fused_qam16) {
+    qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
+                             channel.n0(), !hard);
+  }
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
   for (std::uint32_t f0 = 0; f0 < unit_frames_; f0 += batch_frames_) {
@@ -332,6 +401,16 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         continue;
       }
       FillSource(unit_index, f0 + b, s.bits, bits);
+      if (fused_qam16) {
+        const std::uint64_t errors =
+            CountQam16Errors(bits.data(), k / 4, qam16,
+                             static_cast<float>(channel.level().sigma_per_dim), s.noise);
+        counts.bits += k;
+        counts.bit_errors += errors;
+        counts.frames += 1;
+        counts.frame_errors += errors > 0 ? 1 : 0;
+        continue;
+      }
       if (interleaver_) {
         // Groups of F frames (batches hold whole groups): encode into the
         // group, then interleave it, send it frame by frame and put the
@@ -362,7 +441,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
       }
     }
-    if (fused) continue;
+    if (fused || fused_qam16) continue;
     const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
     if (direct_hard) {
       std::fill(results.begin(), results.end(), FrameDecodeResult{});
@@ -373,8 +452,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
     for (std::uint32_t b = 0; b < batch; ++b) {
       const Bit* info = ws.batch_bits.data() + b * k;
       const Bit* decided = ws.batch_decided.data() + b * k;
-      std::uint64_t errors = 0;
-      for (std::size_t j = 0; j < k; ++j) errors += static_cast<std::uint64_t>(info[j] ^ decided[j]);
+      const std::uint64_t errors = CountBitErrors(info, decided, k);
       const FrameDecodeResult& r = results[b];
       counts.bits += k;
       counts.bit_errors += errors;

@@ -143,6 +143,13 @@ class Chain {
   std::optional<PrbsGenerator> prbs_;
   std::shared_ptr<const Interleaver> interleaver_;  // null: none
   bool real_axis_ = false;  // BPSK: real samples, in-phase noise only
+  // QPSK, unshaped, no carrier offset, soft demapper: fused bits -> LLRs on
+  // additive-only channels, with the mapper's points by label.
+  bool qpsk_fused_ = false;
+  float qpsk_re_[4] = {}, qpsk_im_[4] = {};
+  // Uncoded 16-QAM with hard or max-log decisions, unshaped, no carrier
+  // offset: fused bits -> error count on additive-only channels.
+  bool qam16_fused_ = false;
   // Shaped chains: transmit pulse, matched filter (with any timing offset),
   // carrier offset (also used without shaping when set), and the receiver's
   // delay in symbols (= guard symbols sent after every frame).

@@ -8,6 +8,12 @@ median information bits per second of each chain over --repeats runs.
   bpsk_hard:     bits -> +-1 -> + N(0, N0/2) -> sign -> count errors
   qam16_maxlog:  bits -> Gray 16-QAM -> + CN(0, N0) -> max-log LLRs per bit
                  (min over the constellation subsets, per axis) -> sign -> count
+  qam16_maxlog_careful: the same chain as a careful numpy user writes it:
+                 float32 throughout, random bytes unpacked to bits, and the
+                 per-axis closed-form max-log LLRs of Gray 4-PAM (levels +-a,
+                 +-3a; up to a positive scale the sign bit's LLR is y and the
+                 inner bit's |y| - 2a with this project's labels, where the
+                 outer levels carry inner bit 0)
 
 numpy's PCG64 generator with standard_normal(float32) is used for the noise.
 """
@@ -53,6 +59,15 @@ def qam16_maxlog(rng, n, sigma, n0, levels):
     return errors
 
 
+def qam16_maxlog_careful(rng, n, sigma, levels, two_a):
+    bits = np.unpackbits(rng.integers(0, 256, n // 8, dtype=np.uint8)).reshape(-1, 2)
+    y = levels[2 * bits[:, 0] + bits[:, 1]]  # axis samples, Re and Im interleaved
+    y += sigma * rng.standard_normal(y.shape[0], dtype=np.float32)
+    errors = np.count_nonzero((y < 0) != bits[:, 0].astype(bool))
+    errors += np.count_nonzero((np.abs(y) - two_a < 0) != bits[:, 1].astype(bool))
+    return int(errors)
+
+
 def timed(fn, bits_per_call, calls, repeats):
     rates = []
     for _ in range(repeats):
@@ -80,6 +95,9 @@ def main():
         "bpsk_hard_bits_per_second": timed(lambda: bpsk_hard(rng, n, sigma_bpsk), n, args.calls, args.repeats),
         "qam16_maxlog_bits_per_second": timed(
             lambda: qam16_maxlog(rng, n, sigma_16, n0_16, levels), n, args.calls, args.repeats),
+        "qam16_maxlog_careful_bits_per_second": timed(
+            lambda: qam16_maxlog_careful(rng, n - n % 8, sigma_16, levels, np.float32(2 / np.sqrt(10.0))),
+            n - n % 8, args.calls, args.repeats),
         "numpy_version": np.__version__,
     }
     print(json.dumps(out))

@@ -1,0 +1,139 @@
+// Fused channel-LLR kernels: the per-target instantiations of
+// channel_llr_kernels-inl.h (Google Highway dynamic dispatch), the dispatch
+// table, and the public entry points of channel_llr_kernels.h. The target is
+// chosen once per process by the shared rule of dispatch.h, so these kernels
+// and AddRealNoise / AddComplexNoise run the same target's arithmetic; with
+// the scalar kernels forced the oracle of channel_llr_reference.h runs,
+// matching the scalar noise and demap paths. Every path advances the noise
+// stream by ceil(n / 2) blocks for n real samples.
+#include "blocks/kernels/channel_llr_kernels.h"
+
+#include <cstddef>
+#include <cstdint>
+
+#include "blocks/kernels/awgn_reference.h"
+#include "blocks/kernels/channel_llr_reference.h"
+#include "blocks/kernels/dispatch.h"
+
+#ifndef CAPGAP_FORCE_SCALAR
+// clang-format off
+#undef HWY_TARGET_INCLUDE
+#define HWY_TARGET_INCLUDE "blocks/kernels/channel_llr_kernels.cc"
+#include "hwy/foreach_target.h"  // IWYU pragma: keep
+// foreach_target.h must come before highway.h.
+#include "hwy/highway.h"
+#include "blocks/kernels/channel_llr_kernels-inl.h"
+// clang-format on
+
+HWY_BEFORE_NAMESPACE();
+namespace capgap::HWY_NAMESPACE {
+
+// Plain signatures for the dispatch table.
+void BpskLlrEntry(const Bit* bits, std::size_t n, float sigma, float scale, PhiloxKey key,
+                  const PhiloxCounter& counter, float* llrs) {
+  BpskChannelLlrsKernel(bits, n, sigma, scale, key, counter, llrs);
+}
+void QpskLlrEntry(const Bit* bits, std::size_t n_symbols, const float* re, const float* im,
+                  float sigma, float gain, PhiloxKey key, const PhiloxCounter& counter,
+                  float* llrs) {
+  QpskChannelLlrsKernel(bits, n_symbols, re, im, sigma, gain, key, counter, llrs);
+}
+
+std::uint64_t Qam16Entry(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                         float sigma, PhiloxKey key, const PhiloxCounter& counter) {
+  return CountQam16ErrorsKernel(bits, n_symbols, d, sigma, key, counter);
+}
+
+}  // namespace capgap::HWY_NAMESPACE
+HWY_AFTER_NAMESPACE();
+#endif  // CAPGAP_FORCE_SCALAR
+
+#if defined(CAPGAP_FORCE_SCALAR) || HWY_ONCE
+namespace capgap {
+
+// Dispatch table (dispatch.h).
+struct ChannelLlrTable {
+  void (*bpsk)(const Bit*, std::size_t, float, float, PhiloxKey, const PhiloxCounter&, float*);
+  void (*qpsk)(const Bit*, std::size_t, const float*, const float*, float, float, PhiloxKey,
+               const PhiloxCounter&, float*);
+  std::uint64_t (*qam16)(const Bit*, std::size_t, const Qam16Decider&, float, PhiloxKey,
+                         const PhiloxCounter&);
+  static ChannelLlrTable Resolve();
+};
+#ifndef CAPGAP_FORCE_SCALAR
+HWY_EXPORT(BpskLlrEntry);
+HWY_EXPORT(QpskLlrEntry);
+HWY_EXPORT(Qam16Entry);
+ChannelLlrTable ChannelLlrTable::Resolve() {
+  return {&HWY_DYNAMIC_DISPATCH(BpskLlrEntry), &HWY_DYNAMIC_DISPATCH(QpskLlrEntry),
+          &HWY_DYNAMIC_DISPATCH(Qam16Entry)};
+}
+static const auto& Chosen() { return kernel_dispatch::ChosenKernels<ChannelLlrTable>(); }
+#endif  // CAPGAP_FORCE_SCALAR
+
+void BpskChannelLlrs(const Bit* bits, std::size_t n, float sigma, float scale, RngStream& noise,
+                     float* llrs) {
+  CAPGAP_DCHECK((n + 1) / 2 <= std::size_t{0xFFFFFFFFu});
+#ifndef CAPGAP_FORCE_SCALAR
+  if (!ScalarKernelsForced()) {
+    Chosen().bpsk(bits, n, sigma, scale, noise.key(), noise.counter(), llrs);
+    noise.Advance(reference::BlocksForNormals(n));
+    return;
+  }
+#endif
+  reference::BpskChannelLlrs(bits, n, sigma, scale, noise, llrs);
+}
+
+void QpskChannelLlrs(const Bit* bits, std::size_t n_symbols, const float* points_re,
+                     const float* points_im, float sigma, float gain, RngStream& noise,
+                     float* llrs) {
+  CAPGAP_DCHECK(n_symbols <= std::size_t{0xFFFFFFFFu});
+#ifndef CAPGAP_FORCE_SCALAR
+  if (!ScalarKernelsForced()) {
+    Chosen().qpsk(bits, n_symbols, points_re, points_im, sigma, gain, noise.key(),
+                  noise.counter(), llrs);
+    noise.Advance(reference::BlocksForNormals(2 * n_symbols));
+    return;
+  }
+#endif
+  reference::QpskChannelLlrs(bits, n_symbols, points_re, points_im, sigma, gain, noise, llrs);
+}
+
+// The demapper's constants (demap_kernels-inl.h Pam4MaxLog, demap_reference.h),
+// formed with the same float operations in the same order.
+Qam16Decider MakeQam16Decider(const float* levels, float level_scale, float n0, bool maxlog) {
+  Qam16Decider d{};
+  for (int l = 0; l < 4; ++l) d.levels[l] = levels[l];
+  d.maxlog = maxlog;
+  const float s = level_scale;
+  const float inv_n0 = 1.0f / n0;
+  const float inv_s = 1.0f / s;
+  const float scale = s * s * inv_n0;
+  d.inv_s = inv_s;
+  d.ka = 8.0f * scale * inv_s;
+  d.kb = 2.0f * scale * inv_s;
+  d.kc = 4.0f * scale * inv_s;
+  d.kd = 8.0f * scale;
+  d.two_s = 2.0f * s;
+  return d;
+}
+
+std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                               float sigma, RngStream& noise) {
+#ifndef CAPGAP_FORCE_SCALAR
+  if (!ScalarKernelsForced()) {
+    const std::uint64_t errors =
+        Chosen().qam16(bits, n_symbols, d, sigma, noise.key(), noise.counter());
+    noise.Advance(reference::BlocksForNormals(2 * n_symbols));
+    return errors;
+  }
+#endif
+  return reference::CountQam16Errors(bits, n_symbols, d, sigma, noise);
+}
+
+const char* ChannelLlrKernelTarget() {
+  return kernel_dispatch::KernelTargetName<ChannelLlrTable>();
+}
+
+}  // namespace capgap
+#endif  // CAPGAP_FORCE_SCALAR || HWY_ONCE

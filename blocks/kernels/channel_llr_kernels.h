@@ -1,0 +1,76 @@
+// Fused kernels of the soft BPSK and QPSK chains on an additive channel:
+// coded bits -> symbols -> AWGN -> channel LLRs in one pass, in registers,
+// with no symbol array. Plain interface (pointers and counts, no vector
+// types); channel_llr_kernels.cc is compiled for several instruction sets
+// (Google Highway dynamic dispatch, the target chosen once per process by
+// dispatch.h, the same as the noise kernels') and channel_llr_reference.h
+// holds the scalar oracle, which ForceScalarKernels(true) and
+// CAPGAP_FORCE_SCALAR builds run instead.
+//
+// Exactness (what makes them drop-in replacements in sim/chain/chain.cc):
+// each LLR is computed with the same float operations, on the same normals,
+// as the composed path
+//  * BPSK (real axis): x_i = 1 - 2 b_i, AddRealNoise(x, sigma) of
+//    awgn_kernels.h, L_i = scale x_i (the chain passes scale = 4 / N0);
+//  * QPSK: Mapper::Map (points by label b0 b1, b0 the MSB), AddComplexNoise
+//    (re of symbol s takes normal 2s, im normal 2s + 1), and the demapper's
+//    LLRs L(b0) = gain Im y, L(b1) = gain Re y (demap_kernels.h: gain =
+//    2 sqrt2 / N0, computed by the caller exactly as the demapper does);
+// so the LLRs are bit-identical to the composed path's on every target, and
+// the noise stream advances exactly as there: by ceil(n / 2) blocks for n
+// real samples (BPSK: n bits; QPSK: 2 per symbol, i.e. n bits as well).
+#ifndef CAPGAP_BLOCKS_KERNELS_CHANNEL_LLR_KERNELS_H_
+#define CAPGAP_BLOCKS_KERNELS_CHANNEL_LLR_KERNELS_H_
+
+#include <cstddef>
+
+#include "blocks/core/rng_stream.h"
+#include "blocks/core/types.h"
+
+namespace capgap {
+
+// n bits (one per byte, 0 or 1) to n LLRs: BPSK on the real axis,
+// llrs[i] = scale (x_i + sigma z_i), x_i = 1 - 2 bits[i].
+void BpskChannelLlrs(const Bit* bits, std::size_t n, float sigma, float scale, RngStream& noise,
+                     float* llrs);
+
+// 2 n bits (one per byte, only the lowest bit of each read) to 2 n LLRs for
+// n QPSK symbols; points_re/im[l] is the point of label l = 2 b0 + b1
+// (Mapper::points()): llrs[2s] = gain Im y_s, llrs[2s + 1] = gain Re y_s.
+void QpskChannelLlrs(const Bit* bits, std::size_t n_symbols, const float* points_re,
+                     const float* points_im, float sigma, float gain, RngStream& noise,
+                     float* llrs);
+
+// Uncoded Gray 16-QAM on an additive channel, fused to the error count:
+// bits -> symbols -> AWGN -> decisions -> errors, nothing stored. Per axis
+// sample t (Re of symbol s at t = 2s, Im at 2s + 1; the layout of
+// AddComplexNoise) the two bits bits[2t], bits[2t + 1] are the axis label,
+// x = levels[label] (Mapper::pam_levels()), y = x + sigma z_t as
+// AddComplexNoise forms it, and the decisions are exactly those the chain
+// would take:
+//  * hard: the demapper's slicer, u = (1 / s) y, level index j = #{u < c}
+//    over the thresholds c = 2, 0, -2, label Gray(j);
+//  * max-log: the demapper's closed-form 4-PAM LLRs (demap_reference.h),
+//    L0 = ka y - kb (|y + 2s| - |y - 2s|), L1 = kc |y| - kd, each bit
+//    decided as L < 0 (the identity code's LlrToBits);
+// with s the level scale and the constants formed exactly as the demapper
+// forms them (MakeQam16Decider). Advances the noise stream by 2 n_symbols /
+// 2 = n_symbols blocks, like AddComplexNoise.
+struct Qam16Decider {
+  float levels[4];  // by axis label
+  bool maxlog;
+  float inv_s;                     // hard
+  float ka, kb, kc, kd, two_s;     // max-log
+};
+Qam16Decider MakeQam16Decider(const float* levels, float level_scale, float n0, bool maxlog);
+// 4 n_symbols bits, one per byte (0 or 1).
+std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                               float sigma, RngStream& noise);
+
+// Name of the instruction set these kernels run (NoiseKernelTarget() unless
+// the scalar kernels are forced).
+const char* ChannelLlrKernelTarget();
+
+}  // namespace capgap
+
+#endif  // CAPGAP_BLOCKS_KERNELS_CHANNEL_LLR_KERNELS_H_
