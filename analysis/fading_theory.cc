@@ -56,7 +56,10 @@ constexpr double kAverageTailMass = 1e-30;
 
 // m = log2(M) for a modulation the theory covers (PSK: M = 2^k >= 2; QAM:
 // M = 4^k >= 4), else 0 (as in uncoded_theory.cc).
+// Generic constellations (points as data) have no MGF form here: 0, so
+// FadingBer/FadingSer/FadingEbnoDbAtBer give NaN for them on fading channels.
 int SupportedBitsPerSymbol(const Modulation& modulation) {
+  if (modulation.family == ModulationFamily::kGeneric) return 0;
   const int order = modulation.order;
   if (order < 2 || !std::has_single_bit(static_cast<unsigned>(order))) return 0;
   const int m = std::countr_zero(static_cast<unsigned>(order));

@@ -150,7 +150,9 @@ double CraigAverage(const CombinedGain& gain, double a_times_snr, double upper);
 // Average uncoded BER / SER of the Gray modulation over the channel at mean
 // Eb/N0 (dB, per branch, per information bit of the uncoded scheme: rho = m).
 // AWGN (L = 1) returns UncodedBer / UncodedSer of analysis/uncoded_theory.h
-// itself; AWGN with L MRC branches is that at L times the SNR.
+// itself; AWGN with L MRC branches is that at L times the SNR. Generic
+// constellations (points as data, ModulationFamily::kGeneric) have no MGF form
+// here: NaN for every channel but plain AWGN (where the union bound returns).
 double FadingBer(const Modulation& modulation, const ChannelSpec& channel, double ebno_db);
 double FadingSer(const Modulation& modulation, const ChannelSpec& channel, double ebno_db);
 

@@ -31,7 +31,9 @@
 #include <vector>
 
 #include "analysis/bisection.h"
+#include "analysis/constellation_bounds.h"
 #include "blocks/core/energy.h"
+#include "blocks/mapping/mapper.h"
 
 namespace capgap::analysis {
 namespace {
@@ -51,6 +53,9 @@ double Erfc(double x) { return boost::math::erfc(x, NoThrowPolicy()); }
 // m = log2(M) for a supported modulation, or 0 when the order is not one the
 // theory covers (PSK: M = 2^k >= 2; QAM: M = 4^k >= 4).
 int SupportedBitsPerSymbol(const Modulation& modulation) {
+  if (modulation.family == ModulationFamily::kGeneric) {
+    return ValidateModulation(modulation).ok() ? modulation.bits_per_symbol() : 0;
+  }
   const int order = modulation.order;
   if (order < 2 || !std::has_single_bit(static_cast<unsigned>(order))) return 0;
   const int m = std::countr_zero(static_cast<unsigned>(order));
@@ -213,6 +218,9 @@ double UncodedSer(const Modulation& modulation, double ebno_db) {
   if (m == 0 || std::isnan(ebno_db)) return kNaN;
   const double esno = DbToLinear(EsnoDbFromEbnoDb(ebno_db, m));
   const int order = modulation.order;
+  if (modulation.family == ModulationFamily::kGeneric) {
+    return UnionBoundSer(Mapper::Create(modulation).value().points(), esno);
+  }
   if (modulation.family == ModulationFamily::kQam) return QamSer(order, esno);
   if (order == 2) return QFunction(std::sqrt(2.0 * esno));
   if (order == 4) {
@@ -228,11 +236,18 @@ double UncodedBer(const Modulation& modulation, double ebno_db) {
   const double ebno = DbToLinear(ebno_db);
   const double esno = DbToLinear(EsnoDbFromEbnoDb(ebno_db, m));
   const int order = modulation.order;
+  if (modulation.family == ModulationFamily::kGeneric) {
+    return UnionBoundBer(Mapper::Create(modulation).value().points(), esno);
+  }
   if (modulation.family == ModulationFamily::kQam) {
     return QamGrayBer(order, m, esno);
   }
   if (order == 2 || order == 4) return QFunction(std::sqrt(2.0 * ebno));
   return PskGrayBer(order, m, esno);
+}
+
+bool UncodedTheoryIsExact(const Modulation& modulation) {
+  return modulation.family != ModulationFamily::kGeneric;
 }
 
 double UncodedEbnoDbAtBer(const Modulation& modulation, double ber) {

@@ -22,8 +22,15 @@ double QFunction(double x);
 // Inverse of Q on (0, 0.5]: x with Q(x) = p.
 double InverseQ(double p);
 
+// Exact for PSK and square QAM. For a generic constellation (points and
+// labels as data) they are the union bounds of constellation_bounds.h over
+// its points: upper bounds, tight at high SNR (UncodedTheoryIsExact false).
+// The Eb/N0 at a BER below then inverts the bound (an optimistic figure).
 double UncodedBer(const Modulation& modulation, double ebno_db);
 double UncodedSer(const Modulation& modulation, double ebno_db);
+// True when UncodedBer/UncodedSer are exact (PSK, QAM), false when they are
+// the union bound (generic constellations).
+bool UncodedTheoryIsExact(const Modulation& modulation);
 
 // Eb/N0 (dB) at which UncodedBer equals `ber` (0 < ber < 0.5 and reachable),
 // found by bracketing and bisection to 1e-6 dB; NaN if not reachable.

@@ -3,6 +3,8 @@
 #include "blocks/fec/ldpc_encoder.h"
 
 #include <algorithm>
+#include <bit>
+#include <cstdint>
 #include <cstring>
 #include <string>
 
@@ -34,8 +36,9 @@ std::uint64_t LdpcEncoder::GeneralPathBytes(std::int64_t n, std::int64_t m) {
   const auto chunk_words = static_cast<std::uint64_t>(kChunkWords);
   const std::uint64_t chunk_bits = 64 * chunk_words;
   const std::uint64_t rows = um * ((un + 63) / 64) * 8;
-  const std::uint64_t columns = (rank + chunk_bits - 1) / chunk_bits * k * chunk_words * 8;
-  return rows + columns + un;  // + the pivot flags
+  const std::uint64_t tables = (rank + chunk_bits - 1) / chunk_bits * ((k + 3) / 4) * 16 *
+                               chunk_words * 8;
+  return rows + tables + un;  // + the pivot flags
 }
 
 Result<LdpcEncoder> LdpcEncoder::Create(std::shared_ptr<const LdpcCode> code, Method method,
@@ -129,20 +132,65 @@ Result<LdpcEncoder> LdpcEncoder::Create(std::shared_ptr<const LdpcCode> code, Me
   for (int c = 0; c < n; ++c) {
     if (!is_pivot[U(c)]) enc.info_positions_.push_back(c);
   }
-  enc.parity_positions_ = pivot_col;
+  // Reduced rows in the order of their pivot columns (increasing): the
+  // parity bits then come out in runs of consecutive codeword positions
+  // (PEG codes: one run, the last m columns). Reordering the rows of the
+  // reduced system changes no codeword.
+  std::vector<int> order(U(rank));
+  for (int r = 0; r < rank; ++r) order[U(r)] = r;
+  std::sort(order.begin(), order.end(),
+            [&](int a, int b) { return pivot_col[U(a)] < pivot_col[U(b)]; });
+  enc.parity_positions_.resize(U(rank));
+  for (int r = 0; r < rank; ++r) enc.parity_positions_[U(r)] = pivot_col[U(order[U(r)])];
   enc.chunks_ = (rank + 64 * kChunkWords - 1) / (64 * kChunkWords);
-  // columns_[(chunk * k + i) * kChunkWords + w]: bit b of that word is
-  // M[r][i] with r = (chunk * kChunkWords + w) * 64 + b (zero beyond rank).
-  enc.columns_.assign(U(enc.chunks_) * U(enc.k_) * U(kChunkWords), 0);
-  for (int r = 0; r < rank; ++r) {
-    const int chunk = r / (64 * kChunkWords);
-    const int w = (r / 64) % kChunkWords;
-    for (int i = 0; i < enc.k_; ++i) {
-      if (bit(r, enc.info_positions_[U(i)])) {
-        enc.columns_[(U(chunk) * U(enc.k_) + U(i)) * U(kChunkWords) + U(w)] |= std::uint64_t{1}
-                                                                               << (r % 64);
+  enc.groups_ = (enc.k_ + 3) / 4;
+  // Nibble tables: entry (chunk, g, idx) is the XOR of the packed parity
+  // columns of info bits 4g + j (j = 0..3) for which bit 3 - j of idx is
+  // set; bit b of word w is M[r][i] with r = (chunk * kChunkWords + w) * 64
+  // + b in the sorted row order (zero beyond rank and beyond k).
+  enc.table_storage_.assign(U(enc.chunks_) * U(enc.groups_) * 16 * U(kChunkWords) + 8, 0);
+  enc.table_offset_ = 0;
+  while ((reinterpret_cast<std::uintptr_t>(enc.table_storage_.data() + enc.table_offset_) & 63) != 0) {
+    ++enc.table_offset_;
+  }
+  std::uint64_t* tables = enc.table_storage_.data() + enc.table_offset_;
+  for (int chunk = 0; chunk < enc.chunks_; ++chunk) {
+    const int r_begin = chunk * kChunkWords * 64;
+    const int r_end = std::min(rank, r_begin + kChunkWords * 64);
+    for (int g = 0; g < enc.groups_; ++g) {
+      std::uint64_t col[4][kChunkWords] = {};
+      for (int j = 0; j < 4 && 4 * g + j < enc.k_; ++j) {
+        const int c = enc.info_positions_[U(4 * g + j)];
+        for (int r = r_begin; r < r_end; ++r) {
+          if (bit(order[U(r)], c)) {
+            const int rel = r - r_begin;
+            col[j][rel / 64] |= std::uint64_t{1} << (rel % 64);
+          }
+        }
+      }
+      std::uint64_t* entry = tables + (U(chunk) * U(enc.groups_) + U(g)) * 16 * U(kChunkWords);
+      for (int idx = 0; idx < 16; ++idx) {
+        for (int j = 0; j < 4; ++j) {
+          if ((idx >> (3 - j)) & 1) {
+            for (int w = 0; w < kChunkWords; ++w) entry[U(idx) * U(kChunkWords) + U(w)] ^= col[j][w];
+          }
+        }
       }
     }
+    // Parity runs of this chunk: consecutive rows at consecutive positions.
+    for (int r = r_begin; r < r_end;) {
+      int e = r + 1;
+      while (e < r_end && enc.parity_positions_[U(e)] == enc.parity_positions_[U(e - 1)] + 1) ++e;
+      enc.parity_runs_.push_back({r - r_begin, e - r_begin, enc.parity_positions_[U(r)], chunk});
+      r = e;
+    }
+  }
+  // Info runs: consecutive info bits at consecutive positions.
+  for (int i = 0; i < enc.k_;) {
+    int e = i + 1;
+    while (e < enc.k_ && enc.info_positions_[U(e)] == enc.info_positions_[U(e - 1)] + 1) ++e;
+    enc.info_runs_.push_back({i, e, enc.info_positions_[U(i)], 0});
+    i = e;
   }
   return enc;
 }
@@ -157,37 +205,88 @@ void LdpcEncoder::Encode(std::span<const Bit> info, std::span<Bit> codeword) con
   }
 }
 
+namespace {
+
+// kSpreadBits[x][j] = bit j of x: eight decisions of one byte as eight
+// 0/1 bytes, written with one 8-byte copy.
+struct SpreadTable {
+  std::uint8_t bytes[256][8];
+  constexpr SpreadTable() : bytes{} {
+    for (int x = 0; x < 256; ++x) {
+      for (int j = 0; j < 8; ++j) bytes[x][j] = static_cast<std::uint8_t>((x >> j) & 1);
+    }
+  }
+};
+constexpr SpreadTable kSpreadBits;
+
+// Index of the nibble table entry of info bits b0..b3 (one per byte, only
+// the lowest bit of each read): b0 8 + b1 4 + b2 2 + b3. With the four
+// bytes as a little-endian word x = b0 + b1 2^8 + b2 2^16 + b3 2^24 (after
+// masking the lowest bits), x (1 + 2^9 + 2^18 + 2^27) holds b3, b2, b1, b0
+// in bits 24..27 and, below bit 24, only the partial products b0 (bits 0,
+// 9, 18), b1 (8, 17) and b2 (16), which never overlap, so nothing carries
+// into them.
+inline unsigned NibbleIndex(const Bit* b) {
+  std::uint32_t x;
+  std::memcpy(&x, b, 4);
+  if constexpr (std::endian::native != std::endian::little) {
+    x = (std::uint32_t{b[0]}) | (std::uint32_t{b[1]} << 8) | (std::uint32_t{b[2]} << 16) |
+        (std::uint32_t{b[3]} << 24);
+  }
+  return ((x & 0x01010101u) * 0x08040201u) >> 24 & 0xFu;
+}
+
+}  // namespace
+
 void LdpcEncoder::EncodeGeneral(std::span<const Bit> info, std::span<Bit> codeword) const {
   const int k = k_;
-  for (int i = 0; i < k; ++i) codeword[U(info_positions_[U(i)])] = info[U(i)];
-  const int rank = n_ - k_;
-  const std::uint64_t* col = columns_.data();
+  const Bit* in = info.data();
+  Bit* out = codeword.data();
+  for (const Run& run : info_runs_) {
+    std::memcpy(out + run.position, in + run.begin, U(run.end - run.begin));
+  }
+  const int full_groups = k / 4;
+  const std::uint64_t* tables = table_storage_.data() + table_offset_;
+  std::size_t next_run = 0;
   for (int chunk = 0; chunk < chunks_; ++chunk) {
     // Four 2 x 64-bit accumulators (GCC/Clang vector extension: SSE2 on
-    // baseline x86-64, NEON on Arm, plain words elsewhere). Written out
-    // because the auto-vectoriser otherwise vectorises across info bits.
+    // baseline x86-64, NEON on Arm, plain words elsewhere); one 64-byte
+    // table entry per four info bits.
     typedef std::uint64_t V2 __attribute__((vector_size(16)));
     V2 a0 = {0, 0}, a1 = a0, a2 = a0, a3 = a0;
-    for (int i = 0; i < k; ++i, col += kChunkWords) {
-      // All ones when the info bit is 1: branch-free (the bits are random).
-      const std::uint64_t m = std::uint64_t{0} - (info[U(i)] & 1u);
-      const V2 mask = {m, m};
+    const std::uint64_t* t = tables + U(chunk) * U(groups_) * 16 * U(kChunkWords);
+    auto add = [&](const std::uint64_t* e) {
       V2 c0, c1, c2, c3;
-      std::memcpy(&c0, col + 0, sizeof(V2));
-      std::memcpy(&c1, col + 2, sizeof(V2));
-      std::memcpy(&c2, col + 4, sizeof(V2));
-      std::memcpy(&c3, col + 6, sizeof(V2));
-      a0 ^= c0 & mask;
-      a1 ^= c1 & mask;
-      a2 ^= c2 & mask;
-      a3 ^= c3 & mask;
+      std::memcpy(&c0, e + 0, sizeof(V2));
+      std::memcpy(&c1, e + 2, sizeof(V2));
+      std::memcpy(&c2, e + 4, sizeof(V2));
+      std::memcpy(&c3, e + 6, sizeof(V2));
+      a0 ^= c0;
+      a1 ^= c1;
+      a2 ^= c2;
+      a3 ^= c3;
+    };
+    for (int g = 0; g < full_groups; ++g, t += 16 * kChunkWords) {
+      add(t + NibbleIndex(in + 4 * g) * kChunkWords);
+    }
+    if (full_groups < groups_) {
+      Bit last[4] = {0, 0, 0, 0};
+      for (int i = 4 * full_groups; i < k; ++i) last[i - 4 * full_groups] = in[i];
+      add(t + NibbleIndex(last) * kChunkWords);
     }
     const std::uint64_t acc[kChunkWords] = {a0[0], a0[1], a1[0], a1[1], a2[0], a2[1], a3[0], a3[1]};
-    const int r_begin = chunk * kChunkWords * 64;
-    const int r_end = std::min(rank, r_begin + kChunkWords * 64);
-    for (int r = r_begin; r < r_end; ++r) {
-      const int rel = r - r_begin;
-      codeword[U(parity_positions_[U(r)])] = static_cast<Bit>((acc[rel / 64] >> (rel % 64)) & 1u);
+    // Parity runs of this chunk, eight decisions per byte copy.
+    for (; next_run < parity_runs_.size() && parity_runs_[next_run].chunk == chunk; ++next_run) {
+      const Run& run = parity_runs_[next_run];
+      Bit* dst = out + run.position;
+      int r = run.begin;
+      for (; r + 8 <= run.end; r += 8, dst += 8) {
+        const int w = r / 64, o = r % 64;
+        std::uint64_t v = acc[w] >> o;
+        if (o > 56) v |= acc[w + 1] << (64 - o);
+        std::memcpy(dst, kSpreadBits.bytes[v & 0xFFu], 8);
+      }
+      for (; r < run.end; ++r, ++dst) *dst = static_cast<Bit>((acc[r / 64] >> (r % 64)) & 1u);
     }
   }
 }

@@ -9,11 +9,14 @@
 // greedily and the info positions are the remaining ones (for a code whose
 // last m columns are independent: info = 0 .. k-1). Rows that become zero
 // (redundant checks) are dropped. Each reduced row r reads
-// c[pivot_r] = XOR_i M[r][i] u_i over the info bits u_i; Create() stores, per
-// info bit i, the packed column (M[0][i] .. M[rank-1][i]) and Encode() XORs
-// the columns of the info bits that are 1 into a packed parity accumulator
-// (branch-free: each column is ANDed with an all-ones / all-zero mask), i.e.
-// k * ceil(rank / 64) word operations per codeword.
+// c[pivot_r] = XOR_i M[r][i] u_i over the info bits u_i. Create() sorts the
+// rows by pivot column and stores, per four info bits and per 512 rows, a
+// table of the 16 XOR combinations of their packed columns (M[.][i]; the
+// grouping of the "method of four Russians", V. L. Arlazarov, E. A. Dinic,
+// M. A. Kronrod, I. A. Faradzev, 1970; from memory); Encode() XORs one 64-byte entry per four info
+// bits into a packed parity accumulator, i.e. k / 4 * ceil(rank / 512)
+// cache lines per codeword, and writes the parity bits in runs of
+// consecutive positions, eight per byte copy.
 //
 // Dual-diagonal path (Method::kAuto, a lifted code whose blocks are shifted
 // identities and whose base matrix has the dual-diagonal parity part of
@@ -65,8 +68,9 @@ class LdpcEncoder {
   // matrix, linear-time encoding).
   static bool HasDualDiagonalPath(const LdpcCode& code);
   // Peak bytes of the general path's Create for n variables and m checks:
-  // the bit-packed m x n elimination matrix plus the packed parity columns
-  // (about m n / 8 + m (n - m) / 8). For memory checks before Create.
+  // the bit-packed m x n elimination matrix plus the nibble tables (16
+  // entries of 512 parity bits per four info bits and 512 parity rows:
+  // about m n / 8 + m (n - m) / 2). For memory checks before Create.
   static std::uint64_t GeneralPathBytes(std::int64_t n, std::int64_t m);
 
   int info_bits() const { return k_; }  // k = n - rank(H)
@@ -93,9 +97,21 @@ class LdpcEncoder {
   int k_ = 0;
   std::vector<int> info_positions_;
   // General path.
-  std::vector<int> parity_positions_;   // pivot column of reduced row r
-  int chunks_ = 0;                      // ceil(rank / 512)
-  std::vector<std::uint64_t> columns_;  // chunks_ x k x 8 words (see .cc)
+  std::vector<int> parity_positions_;  // pivot column of reduced row r, increasing
+  int chunks_ = 0;                     // ceil(rank / 512)
+  int groups_ = 0;                     // ceil(k / 4)
+  // Nibble tables, chunks_ x groups_ x 16 entries of 8 words (see .cc),
+  // starting at table_offset_ (64-byte aligned: one entry, one cache line).
+  std::vector<std::uint64_t> table_storage_;
+  std::size_t table_offset_ = 0;
+  // Runs of consecutive indices at consecutive codeword positions: info
+  // bits [begin, end) at position.. (chunk 0), or the parity rows
+  // [begin, end) of a chunk, relative to its first row.
+  struct Run {
+    int begin, end, position, chunk;
+  };
+  std::vector<Run> info_runs_;
+  std::vector<Run> parity_runs_;
   // Dual-diagonal path.
   bool dual_diagonal_ = false;
   int z_ = 0;

@@ -62,7 +62,9 @@ Result<Demapper> Demapper::Create(const Mapper& mapper, DemapMethod method) {
   d.points_.assign(mapper.points().begin(), mapper.points().end());
   d.pam_levels_.assign(mapper.pam_levels().begin(), mapper.pam_levels().end());
   const int order = d.modulation_.order;
-  if (d.modulation_.family == ModulationFamily::kQam) {
+  if (d.modulation_.family == ModulationFamily::kGeneric) {
+    d.generic_ = true;  // brute force over the points (GenericDemapSymbol)
+  } else if (d.modulation_.family == ModulationFamily::kQam) {
     d.path_ = DemapKernelPath::kPam;
     d.axis_bits_ = d.bits_per_symbol_ / 2;
     // The largest level, L - 1 on the odd-integer grid, has axis label 0.
@@ -103,6 +105,14 @@ void Demapper::Demap(std::span<const cf32> received, float n0, std::span<float> 
   CAPGAP_DCHECK(llrs.size() == static_cast<std::size_t>(bits_per_symbol_) * received.size());
   CAPGAP_DCHECK(n0 > 0.0f);
   // std::complex<float> is array-compatible with float[2] ([complex.numbers]).
+  if (generic_) {
+    const auto m = static_cast<std::size_t>(bits_per_symbol_);
+    for (std::size_t s = 0; s < received.size(); ++s) {
+      GenericDemapSymbol(points_, method_, received[s], cf32(1.0f, 0.0f), n0,
+                         llrs.subspan(m * s, m));
+    }
+    return;
+  }
   const float* y = reinterpret_cast<const float*>(received.data());
   if (method_ == DemapMethod::kHard) {
     DemapHard(kernel_args(), y, received.size(), llrs.data(), nullptr);
@@ -153,6 +163,18 @@ void Demapper::Demap(std::span<const cf32> received, const ChannelStateView& sta
 
 void Demapper::HardDecide(std::span<const cf32> received, std::span<Bit> bits) const {
   CAPGAP_DCHECK(bits.size() == static_cast<std::size_t>(bits_per_symbol_) * received.size());
+  if (generic_) {
+    // The hard "LLRs" of the nearest point are +1 (bit 0) / -1 (bit 1); n0
+    // only scales metrics and does not move the nearest point.
+    const auto m = static_cast<std::size_t>(bits_per_symbol_);
+    float signs[kMaxGenericBits];
+    for (std::size_t s = 0; s < received.size(); ++s) {
+      GenericDemapSymbol(points_, DemapMethod::kHard, received[s], cf32(1.0f, 0.0f), 1.0f,
+                         std::span<float>(signs, m));
+      for (std::size_t k = 0; k < m; ++k) bits[m * s + k] = signs[k] < 0.0f ? 1 : 0;
+    }
+    return;
+  }
   DemapHard(kernel_args(), reinterpret_cast<const float*>(received.data()), received.size(),
             nullptr, bits.data());
 }

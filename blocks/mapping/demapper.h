@@ -16,6 +16,9 @@
 //    the sums run over the L levels of one axis, not the M points; the results
 //    equal the full 2-D sums.
 //  * M-PSK, M >= 8: the full sums over the M points.
+//  * Generic constellations (points and labels as data, modulation.h): the
+//    brute-force reference GenericDemapSymbol (generic_demapper.h) with
+//    h = 1, in double precision, scalar (no kernel, no dispatch).
 // Log-MAP evaluates exp and log with branch-free polynomial approximations
 // (errors about 1e-7, see blocks/kernels/demap_reference.h); every sum is
 // shifted by its own largest term, so nothing overflows or underflows for any
@@ -82,7 +85,8 @@ class Demapper {
   void HardDecide(std::span<const cf32> received, std::span<Bit> bits) const;
 
   // The constellation tables the demap kernels read (valid while this
-  // Demapper lives); for tests and benchmarks of blocks/kernels.
+  // Demapper lives); for tests and benchmarks of blocks/kernels. Not used
+  // (and not meaningful) for generic constellations.
   DemapKernelArgs kernel_args() const;
 
  private:
@@ -99,6 +103,9 @@ class Demapper {
   // of the M/2 sector boundary lines 2 pi i / M.
   std::vector<float> point_re_, point_im_;
   std::vector<float> boundary_cos_, boundary_sin_;
+  // Generic constellation: every call goes through GenericDemapSymbol.
+  bool generic_ = false;
+  static constexpr std::size_t kMaxGenericBits = 6;  // M <= 64 (modulation.h)
 };
 
 // Hard decisions of LLRs: bit = (llr < 0). REQUIRES equal sizes.

@@ -67,7 +67,10 @@ Result<Mapper> Mapper::Create(const Modulation& modulation) {
   const unsigned order = static_cast<unsigned>(modulation.order);
   mapper.points_.assign(order, cf32(0.0f, 0.0f));
 
-  if (modulation.family == ModulationFamily::kPsk) {
+  if (modulation.family == ModulationFamily::kGeneric) {
+    const GenericConstellation& c = *modulation.generic;
+    for (std::size_t i = 0; i < c.points.size(); ++i) mapper.points_[c.labels[i]] = c.points[i];
+  } else if (modulation.family == ModulationFamily::kPsk) {
     if (order == 2) {
       mapper.points_[0] = cf32(1.0f, 0.0f);
       mapper.points_[1] = cf32(-1.0f, 0.0f);

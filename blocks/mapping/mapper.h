@@ -17,6 +17,8 @@
 //    most significant axis bit is 0 on the positive side and neighbouring
 //    levels differ in one bit. 4-QAM: b[0] = 1 iff Re x < 0, b[1] = 1 iff
 //    Im x < 0.
+//  * Generic constellations (ModulationFamily::kGeneric): points()[labels[i]]
+//    = points[i] of the GenericConstellation (modulation.h).
 // All constellations have E|x|^2 = 1 over equiprobable labels.
 // Immutable after Create(); one instance may be shared by all threads.
 #ifndef CAPGAP_BLOCKS_MAPPING_MAPPER_H_
@@ -42,7 +44,7 @@ class Mapper {
   std::span<const cf32> points() const { return points_; }
   // For square QAM: the L-PAM levels of one axis indexed by the axis label
   // (m/2 bits, MSB first), so points()[l] = pam_levels()[l >> p] +
-  // j pam_levels()[l & (L - 1)]; empty for PSK.
+  // j pam_levels()[l & (L - 1)]; empty for PSK and generic constellations.
   std::span<const float> pam_levels() const { return pam_levels_; }
 
   // Symbol s takes bits[m s .. m s + m - 1] (b[0] first).

@@ -5,13 +5,18 @@
 
 #include <bit>
 #include <cctype>
+#include <cmath>
 #include <string>
+#include <utility>
 
 namespace capgap {
 namespace {
 
 constexpr int kMaxPskOrder = 64;
 constexpr int kMaxQamOrder = 1024;
+constexpr int kMinGenericOrder = 4;
+constexpr int kMaxGenericOrder = 64;
+constexpr double kEnergyTolerance = 1e-4;
 
 bool IsPowerOfTwo(int x) { return x > 0 && std::has_single_bit(static_cast<unsigned>(x)); }
 // 4^k: a power of two with an even exponent.
@@ -39,6 +44,47 @@ std::string Lowercase(std::string_view word) {
   return out;
 }
 
+// The rules of GenericConstellation, or "" when they hold.
+std::string GenericRule(const GenericConstellation& c) {
+  const std::size_t order = c.points.size();
+  if (c.name.empty()) return "has no name";
+  if (order < static_cast<std::size_t>(kMinGenericOrder) ||
+      order > static_cast<std::size_t>(kMaxGenericOrder) ||
+      !IsPowerOfTwo(static_cast<int>(order))) {
+    return "M = " + std::to_string(order) + " points: must be a power of 2 in 4..64";
+  }
+  if (c.labels.size() != order) {
+    return std::to_string(c.labels.size()) + " labels for " + std::to_string(order) +
+           " points: need one label per point";
+  }
+  std::vector<bool> seen(order, false);
+  for (std::uint32_t l : c.labels) {
+    if (l >= order || seen[l]) {
+      return "label " + std::to_string(l) + " repeated or >= M: labels must be a permutation of 0.." +
+             std::to_string(order - 1);
+    }
+    seen[l] = true;
+  }
+  double energy = 0.0;
+  for (std::size_t i = 0; i < order; ++i) {
+    const cf32 x = c.points[i];
+    if (!std::isfinite(x.real()) || !std::isfinite(x.imag())) {
+      return "point " + std::to_string(i) + " is not finite";
+    }
+    for (std::size_t j = 0; j < i; ++j) {
+      if (c.points[j] == x) {
+        return "points " + std::to_string(j) + " and " + std::to_string(i) + " coincide";
+      }
+    }
+    energy += static_cast<double>(std::norm(x));
+  }
+  energy /= static_cast<double>(order);
+  if (std::fabs(energy - 1.0) > kEnergyTolerance) {
+    return "average energy " + std::to_string(energy) + ": must be 1 (within 1e-4)";
+  }
+  return "";
+}
+
 Status UnknownWord(std::string_view word) {
   return Status::Error("unknown modulation '" + std::string(word) +
                        "'; valid: " + ModulationChoices());
@@ -46,11 +92,43 @@ Status UnknownWord(std::string_view word) {
 
 }  // namespace
 
+Modulation::Modulation(std::shared_ptr<const GenericConstellation> c)
+    : family(ModulationFamily::kGeneric),
+      order(c ? static_cast<int>(c->points.size()) : 0),
+      generic(std::move(c)) {}
+
+bool Modulation::operator==(const Modulation& other) const {
+  if (family != other.family || order != other.order) return false;
+  if (family != ModulationFamily::kGeneric || generic == other.generic) return true;
+  if (!generic || !other.generic) return false;
+  return generic->name == other.generic->name && generic->points == other.generic->points &&
+         generic->labels == other.generic->labels;
+}
+
+Result<Modulation> MakeGenericModulation(GenericConstellation constellation) {
+  if (std::string rule = GenericRule(constellation); !rule.empty()) {
+    return Status::Error("constellation '" + constellation.name + "': " + rule);
+  }
+  return Modulation(std::make_shared<const GenericConstellation>(std::move(constellation)));
+}
+
 int Modulation::bits_per_symbol() const {
   return order > 0 ? std::countr_zero(static_cast<unsigned>(order)) : 0;
 }
 
 Status ValidateModulation(const Modulation& modulation) {
+  if (modulation.family == ModulationFamily::kGeneric) {
+    if (!modulation.generic) return Status::Error("modulation: generic without points");
+    if (std::string rule = GenericRule(*modulation.generic); !rule.empty()) {
+      return Status::Error("constellation '" + modulation.generic->name + "': " + rule);
+    }
+    if (modulation.order != static_cast<int>(modulation.generic->points.size())) {
+      return Status::Error("constellation '" + modulation.generic->name + "': M = " +
+                           std::to_string(modulation.order) + " but " +
+                           std::to_string(modulation.generic->points.size()) + " points");
+    }
+    return Status::Ok();
+  }
   if (modulation.family != ModulationFamily::kPsk && modulation.family != ModulationFamily::kQam) {
     return Status::Error("modulation: unknown family " +
                          std::to_string(static_cast<int>(modulation.family)));
@@ -92,6 +170,9 @@ Result<Modulation> ParseModulation(std::string_view word) {
 }
 
 std::string ToString(const Modulation& modulation) {
+  if (modulation.family == ModulationFamily::kGeneric) {
+    return modulation.generic ? modulation.generic->name : "generic";
+  }
   if (modulation.family == ModulationFamily::kPsk) {
     if (modulation.order == 2) return "bpsk";
     if (modulation.order == 4) return "qpsk";

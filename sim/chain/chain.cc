@@ -38,7 +38,8 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   const bool carrier = scheme.phase_offset_deg != 0 || scheme.frequency_offset != 0;
   // A BPSK chain stays on the real axis only without shaping or carrier
   // offset, on an additive-only channel (asked of an instance).
-  chain.real_axis_ = scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
+  chain.real_axis_ = scheme.modulation.family == ModulationFamily::kPsk &&
+                     scheme.modulation.order == 2 && scheme.shaping == PulseShape::kNone &&
                      !carrier && chain.MakePointChannel(0.0)->additive_only();
   if (scheme.shaping != PulseShape::kNone) {
     PulseSpec spec;

@@ -1,13 +1,17 @@
 // The registry tables: one line per family (its file declares it).
 #include "sim/chain/registry.h"
 
+#include <string>
 #include <vector>
 
+#include "sim/families/apsk16_constellation.h"
 #include "sim/families/awgn_family.h"
 #include "sim/families/block_family.h"
 #include "sim/families/conv_family.h"
 #include "sim/families/fading_family.h"
 #include "sim/families/ldpc_family.h"
+#include "sim/families/psk_qam_constellation.h"
+#include "sim/families/polar_family.h"
 #include "sim/families/uncoded_family.h"
 
 namespace capgap {
@@ -18,6 +22,7 @@ const CodeFamily* const kCodeFamilies[] = {
     &kConvFamily,
     &kLdpcFamily,
     &kBlockFamily,
+    &kPolarFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {
@@ -27,10 +32,47 @@ const ChannelFamily* const kChannelFamilies[] = {
     &kNakagamiFamily,
 };
 
+const ConstellationFamily* const kConstellationFamilies[] = {
+    &kPskQamConstellation,
+    &k16ApskConstellation,
+};
+
 }  // namespace
 
 std::span<const CodeFamily* const> CodeFamilies() { return kCodeFamilies; }
 std::span<const ChannelFamily* const> ChannelFamilies() { return kChannelFamilies; }
+std::span<const ConstellationFamily* const> ConstellationFamilies() {
+  return kConstellationFamilies;
+}
+
+Result<Modulation> ParseConstellation(std::string_view word) {
+  for (const ConstellationFamily* f : kConstellationFamilies) {
+    if (f->claims(word)) return f->parse(word);
+  }
+  return Status::Error("unknown modulation '" + std::string(word) +
+                       "'; valid: " + ConstellationChoices());
+}
+
+std::string ConstellationChoices() {
+  std::string out;
+  for (const ConstellationFamily* f : kConstellationFamilies) {
+    if (!out.empty()) out += ", ";
+    out += f->choices();
+  }
+  return out;
+}
+
+const char* ConstellationSyntax() {
+  static const std::string syntax = [] {
+    std::string out;
+    for (const ConstellationFamily* f : kConstellationFamilies) {
+      if (!out.empty()) out += ", ";
+      out += f->syntax;
+    }
+    return out;
+  }();
+  return syntax.c_str();
+}
 
 const CodeFamily* FindCodeFamily(std::string_view name) {
   for (const CodeFamily* f : kCodeFamilies) {

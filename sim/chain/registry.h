@@ -1,5 +1,5 @@
-// The registry: explicit tables of the code families and channels a scheme
-// can name. The chain (chain.h), the config key tables (sim/config/) and the
+// The registry: explicit tables of the code families, channels and
+// constellations a scheme can name. The chain (chain.h), the config key tables (sim/config/) and the
 // analysis (scheme_result.h) look a scheme's choice up here and never ask
 // which family it runs. Adding a family is its own files (blocks/ for the
 // blocks, one sim/families/ file for its keys, parse, build and analysis)
@@ -73,8 +73,36 @@ struct ChannelFamily {
   std::unique_ptr<const Channel> (*make)(const NoiseSpec& noise, const ChannelSpec& channel);
 };
 
+// A constellation family, named by the scheme's `modulation` key (and by
+// `capgap theory --modulation`). Its points and labels are data (Modulation,
+// blocks/mapping/modulation.h): PSK and square QAM keep their fast demapper
+// kernels and exact theory; a generic constellation (ModulationFamily::
+// kGeneric) is demapped by brute force and its uncoded theory is the union
+// bound (analysis/constellation_bounds.h).
+struct ConstellationFamily {
+  const char* name;
+  // Its words as the key's help shows them ("bpsk, qpsk, <M>psk, ...").
+  const char* syntax;
+  // Its words with their rules, for error messages.
+  std::string (*choices)();
+  // True when `word` (letters in any case) is one of the family's words, so
+  // that parse either returns its modulation or says what is wrong with it.
+  bool (*claims)(std::string_view word);
+  // The modulation `word` names, or an error quoting the word with the rule.
+  Result<Modulation> (*parse)(std::string_view word);
+};
+
 std::span<const CodeFamily* const> CodeFamilies();
 std::span<const ChannelFamily* const> ChannelFamilies();
+std::span<const ConstellationFamily* const> ConstellationFamilies();
+// The modulation `word` names, parsed by the family that claims it; an
+// unclaimed word gives "unknown modulation 'WORD'; valid: " and
+// ConstellationChoices().
+Result<Modulation> ParseConstellation(std::string_view word);
+// Every family's choices, comma-separated, in registry order.
+std::string ConstellationChoices();
+// Every family's syntax (the `modulation` key's help), comma-separated.
+const char* ConstellationSyntax();
 // nullptr when no family has that name.
 const CodeFamily* FindCodeFamily(std::string_view name);
 const ChannelFamily* FindChannelFamily(std::string_view name);

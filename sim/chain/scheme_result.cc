@@ -208,6 +208,13 @@ SchemeResult AnalyseScheme(const Chain& chain, const SweepConfig& sweep,
   const double lo = sweep.ebno_db.front() - 1.0;
   const double hi = sweep.ebno_db.back() + 1.0;
   const int n = static_cast<int>(std::floor((hi - lo) / 0.05 + 1e-9)) + 1;
+  if (!analysis::UncodedTheoryIsExact(mod)) {
+    r.theory.uncoded_method =
+        fading ? "union bound over the constellation's pairwise distances on AWGN (upper bound, "
+                 "tight at high SNR); no fading average for a generic constellation (NaN)"
+               : "union bound over the constellation's pairwise distances (upper bound, tight at "
+                 "high SNR)";
+  }
   for (int i = 0; i < n; ++i) {
     const double x = std::round((lo + 0.05 * i) * 1e6) / 1e6;
     r.theory.ebno_db.push_back(x);

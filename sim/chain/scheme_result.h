@@ -27,6 +27,10 @@ struct TheoryCurve {
   // Fading schemes (channel other than AWGN with one branch): the AWGN
   // uncoded BER on the same grid, for comparison; empty otherwise.
   std::vector<double> ber_uncoded_awgn;
+  // Empty when ber_uncoded/ser_uncoded are exact; otherwise what they are
+  // (a generic constellation's union bound, analysis/uncoded_theory.h),
+  // written as the theory group's `uncoded_method` attribute.
+  std::string uncoded_method;
   // The code's union bounds on BER and FER on the theory grid (empty when the
   // family has none or it does not apply to the mapper), and what they
   // assume.

@@ -123,7 +123,7 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
     if (!points.ok()) return k.Fail("ebno_db", points.status().message());
     s.ebno_db = points.value();
   }
-  auto modulation = ParseModulation(k.text("modulation"));
+  auto modulation = ParseConstellation(k.text("modulation"));
   if (!modulation.ok()) return k.Fail("modulation", modulation.status().message());
   s.modulation = modulation.value();
   auto demapper = ParseDemapMethod(k.text("demapper"));

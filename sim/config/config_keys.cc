@@ -26,8 +26,8 @@ namespace {
 bool Quotable(const std::string& value) { return Printable(value) == value; }
 
 Status CheckModulation(const std::string& value) {
-  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ModulationChoices());
-  return ParseModulation(value).status();
+  if (!Quotable(value)) return Status::Error("not a modulation; valid: " + ConstellationChoices());
+  return ParseConstellation(value).status();
 }
 
 Status CheckDemapper(const std::string& value) {
@@ -39,17 +39,23 @@ Status CheckDemapper(const std::string& value) {
 constexpr KeySpec kSweepKeys[] = {
     {"ebno_db", nullptr,
      Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
-     "Eb/N0 points (per information bit), increasing, within [-20, 60] dB"},
-    {"target_errors", "100", IntegerAtLeast(1), "bit errors that end a point"},
-    {"max_bits", "100000000", IntegerAtLeast(1), "information bits that end a point"},
+     "Eb/N0 points (per information bit), increasing, within [-20, 60] dB", Always(),
+     OnResume::kAppendPoints},
+    {"target_errors", "100", IntegerAtLeast(1), "bit errors that end a point", Always(),
+     OnResume::kMayGrow},
+    {"max_bits", "100000000", IntegerAtLeast(1), "information bits that end a point", Always(),
+     OnResume::kMayGrow},
     {"ber_floor", "1e-7", NumberIn(Closed(0), Open(0.5)),
-     "a scheme's sweep stops after a point below it"},
-    {"target_ber", "1e-5", NumberIn(Open(0), Open(0.5)), "BER at which the summary is taken"},
+     "a scheme's sweep stops after a point below it", Always(), OnResume::kFree},
+    {"target_ber", "1e-5", NumberIn(Open(0), Open(0.5)), "BER at which the summary is taken",
+     Always(), OnResume::kFree},
     {"seed", "1", IntegerAtLeast(0), "master seed"},
-    {"threads", "0", IntegerIn(0, 4096, "0: all cores"), "worker threads"},
+    {"threads", "0", IntegerIn(0, 4096, "0: all cores"), "worker threads", Always(),
+     OnResume::kFree},
     {"checkpoint_seconds", "60", NumberIn(Closed(0), Closed(86400), "seconds"),
      "time between checkpoints while a point runs (0: only when a point finishes or the run "
-     "stops)"},
+     "stops)",
+     Always(), OnResume::kFree},
 };
 
 constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
@@ -59,10 +65,10 @@ constexpr KeyTable kSweepTables[] = {{"sweep", kSweepKeys}};
 std::span<const KeySpec> SchemeCommonKeys() {
   static const KeySpec keys[] = {
     {"modulation", nullptr,
-     Custom("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam", CheckModulation),
-     "Gray-labelled constellation, unit average energy"},
+     Custom(ConstellationSyntax(), CheckModulation),
+     "constellation (the registry's; README, \"Constellations\"), unit average energy"},
     {"ebno_db", "", Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
-     "this scheme's points instead of sweep.ebno_db"},
+     "this scheme's points instead of sweep.ebno_db", Always(), OnResume::kAppendPoints},
     {"frame_bits", "1920", IntegerIn(1, 16777216),
      "information bits per frame, a multiple of bits per symbol",
      NotWith("code", FixedFrameCodeWords(),

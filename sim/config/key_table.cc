@@ -138,6 +138,16 @@ std::string KeyNames(std::span<const KeyTable> tables) {
   return out;
 }
 
+std::string OnResumeText(OnResume rule) {
+  switch (rule) {
+    case OnResume::kFixed: return "";
+    case OnResume::kFree: return "may change on --resume";
+    case OnResume::kMayGrow: return "may only grow on --resume";
+    case OnResume::kAppendPoints: return "points may be appended on --resume";
+  }
+  return "";
+}
+
 std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section) {
   std::string out = section + "\n";
   for (std::size_t i = 0; i < tables.size(); ++i) {
@@ -158,6 +168,7 @@ std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section
       }
       out += "\n      " + RuleText(k.rule) + "; " + k.help;
       if (k.when.key) out += " (" + ConditionText(k.when) + ")";
+      if (k.on_resume != OnResume::kFixed) out += " [" + OnResumeText(k.on_resume) + "]";
       out += "\n";
     }
   }

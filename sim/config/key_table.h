@@ -138,6 +138,17 @@ constexpr KeyCondition NotWith(const char* key, std::span<const std::string_view
   return KeyCondition{key, values, true, reason};
 }
 
+// What `capgap run --resume` allows for a key against the configuration the
+// checkpoint stored (CheckResumable, sim/io/checkpoint.h). A key that is not
+// marked is fixed, so that a new key which changes the random streams or the
+// counted work is never let through by omission.
+enum class OnResume {
+  kFixed,         // must keep its value (start a new output file to change it)
+  kFree,          // may change: it alters neither the streams nor the recorded work
+  kMayGrow,       // an integer stopping limit that may only be raised
+  kAppendPoints,  // an Eb/N0 list: recorded points keep their values, new ones may follow
+};
+
 struct KeySpec {
   const char* name;
   // nullptr: required; "": optional, absent from the result unless given.
@@ -145,6 +156,7 @@ struct KeySpec {
   KeyRule rule;
   const char* help;  // meaning, one line (the rule is printed beside it)
   KeyCondition when = {};
+  OnResume on_resume = OnResume::kFixed;
 };
 
 struct KeyTable {
@@ -162,6 +174,10 @@ std::string RuleText(const KeyRule& rule);
 // "not an integer; must be an integer > 0", "valid: tail, tailbiting", ...).
 Status CheckValue(const KeyRule& rule, const std::string& value);
 
+// Help text of a resume rule: "" (kFixed), "may change on --resume", "may
+// only grow on --resume", "points may be appended on --resume".
+std::string OnResumeText(OnResume rule);
+
 // First entry named `name` in `tables`, or nullptr.
 const KeySpec* FindKey(std::span<const KeyTable> tables, std::string_view name);
 
@@ -172,7 +188,7 @@ std::string KeyNames(std::span<const KeyTable> tables);
 // table after the first under "  -- TITLE (only with KEY = V)": per key
 // "  NAME = DEFAULT" (or "(required)", "(optional)") and an indented line
 // "RULE; HELP" ending "(only with KEY = V)" or "(not with KEY = V)" where the
-// key has a condition.
+// key has a condition, then "[OnResumeText]" for a key that is not fixed.
 std::string KeyHelp(std::span<const KeyTable> tables, const std::string& section);
 
 // The keys of one section after applicability and defaults: the applicable

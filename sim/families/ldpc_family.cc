@@ -66,7 +66,8 @@ constexpr KeySpec kLdpcKeys[] = {
      "decoder arithmetic (auto: fixed point for min-sum, float for sum-product; float32: "
      "sum-product in float32 across SIMD lanes)"},
     {"memory_limit_mb", "4096", IntegerIn(1, 1u << 24),
-     "refuse a code whose estimated memory (H, encoder, decoder x threads) is larger, in MiB"},
+     "refuse a code whose estimated memory (H, encoder, decoder x threads) is larger, in MiB",
+     Always(), OnResume::kFree},
     {"normalization", "0.75", NumberIn(Open(0), Closed(1)), "normalised min-sum factor",
      OnlyWith("decoder", kNormalizedWord)},
     {"offset", "0.5", NumberIn(Closed(0), Closed(10)), "offset min-sum offset in LLR units",

@@ -9,10 +9,13 @@
 #include <cstdlib>
 #include <map>
 #include <set>
+#include <span>
 #include <sstream>
 
 #include "blocks/core/file_read.h"
 #include "blocks/core/hash.h"
+#include "sim/config/config_keys.h"
+#include "sim/config/key_table.h"
 #include "sim/config/text.h"
 #include "sim/io/atomic_file.h"
 
@@ -413,32 +416,17 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
       "; it fixes the random streams of the recorded work (start a new output file to change "
       "it)";
 
-  // Sweep keys: the seed is fixed, limits may only grow, stored points keep
-  // their Eb/N0, the rest of the free keys may change; an unlisted key is
-  // refused so that a future key that changes the streams is not let through.
-  static const std::set<std::string> kFree = {"sweep.ber_floor", "sweep.target_ber",
-                                              "sweep.threads", "sweep.checkpoint_seconds"};
-  const auto old_sweep = SectionEntries(old, "sweep.");
-  const auto new_sweep = SectionEntries(cfg, "sweep.");
+  // Each key's resume rule comes from its key table (OnResume, key_table.h):
+  // fixed unless marked, so that a future key that changes the streams is
+  // not let through by omission. The seed is compared as a number first.
   if (old.sweep.seed != cfg.sweep.seed) {
     return Status::Error(head + "sweep.seed changed from " + std::to_string(old.sweep.seed) +
                          " to " + std::to_string(cfg.sweep.seed) + fixed);
   }
-  if (cfg.sweep.target_errors < old.sweep.target_errors) {
-    return Status::Error(head + "sweep.target_errors decreased from " +
-                         std::to_string(old.sweep.target_errors) + " to " +
-                         std::to_string(cfg.sweep.target_errors) +
-                         "; a resume may only raise it (finished points may hold more errors than "
-                         "the new target)");
-  }
-  if (cfg.sweep.max_bits < old.sweep.max_bits) {
-    return Status::Error(head + "sweep.max_bits decreased from " + std::to_string(old.sweep.max_bits) +
-                         " to " + std::to_string(cfg.sweep.max_bits) +
-                         "; a resume may only raise it (finished points may hold more bits than "
-                         "the new limit)");
-  }
+  // Eb/N0 lists (kAppendPoints): the recorded points of every scheme keep
+  // their values, whichever key (scheme.NAME.ebno_db, else sweep.ebno_db)
+  // gives them now.
   for (const SchemeRecord& s : ckpt.schemes) {
-    // The scheme's own points (scheme.NAME.ebno_db, else sweep.ebno_db).
     const std::vector<double>* points = &cfg.sweep.ebno_db;
     bool own = false;
     for (const SchemeConfig& sc : cfg.schemes) {
@@ -455,52 +443,59 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
       }
     }
   }
-  for (const auto& [key, value] : new_sweep) {
-    if (key == "sweep.seed" || key == "sweep.target_errors" || key == "sweep.max_bits" ||
-        key == "sweep.ebno_db" || kFree.count(key)) {
-      continue;
+  // One section's keys against the stored ones, in the new config's order;
+  // then keys that went away (e.g. the shaping keys when shaping changed).
+  const auto compare = [&](const std::string& prefix, std::span<const KeyTable> tables) -> Status {
+    const auto rule = [&](const std::string& key) {
+      const KeySpec* spec = FindKey(tables, std::string_view(key).substr(prefix.size()));
+      return spec ? spec->on_resume : OnResume::kFixed;
+    };
+    const auto was = SectionEntries(old, prefix);
+    const auto now = SectionEntries(cfg, prefix);
+    // Changed values first (in config order), then keys that appeared.
+    for (const bool appeared : {false, true}) {
+      for (const auto& [key, value] : cfg.resolved) {
+        if (key.rfind(prefix, 0) != 0) continue;
+        const auto it = was.find(key);
+        if ((it == was.end()) != appeared) continue;
+        const OnResume r = rule(key);
+        if (r == OnResume::kFree || r == OnResume::kAppendPoints) continue;  // points: above
+        if (r == OnResume::kMayGrow && !appeared) {
+          auto a = ParseUint64(it->second);
+          auto b = ParseUint64(value);
+          if (a.ok() && b.ok()) {
+            if (b.value() >= a.value()) continue;
+            return Status::Error(head + key + " decreased from " + it->second + " to " + value +
+                                 "; a resume may only raise it (finished points may already "
+                                 "hold more than the new value)");
+          }
+        }
+        if (appeared || it->second != value) {
+          return Status::Error(head + key + " changed from " +
+                               (appeared ? "(absent)" : Quoted(it->second)) + " to " +
+                               Quoted(value) + fixed);
+        }
+      }
     }
-    auto it = old_sweep.find(key);
-    const std::string was = it == old_sweep.end() ? "(absent)" : Quoted(it->second);
-    if (it == old_sweep.end() || it->second != value) {
-      return Status::Error(head + key + " changed from " + was + " to " + Quoted(value) + fixed);
+    for (const auto& [key, value] : old.resolved) {
+      if (key.rfind(prefix, 0) == 0 && !now.count(key) && rule(key) == OnResume::kFixed) {
+        return Status::Error(head + key + " changed from " + Quoted(value) + " to (absent)" + fixed);
+      }
     }
-  }
+    return Status::Ok();
+  };
+  if (Status s = compare("sweep.", SweepKeyTables()); !s.ok()) return s;
 
-  // Schemes: every recorded scheme must still be there, defined identically.
+  // Schemes: every recorded scheme must still be there, defined identically
+  // but for the keys its tables let change.
   for (const SchemeRecord& s : ckpt.schemes) {
-    const std::string prefix = "scheme." + s.name + ".";
     bool present = false;
     for (const SchemeConfig& sc : cfg.schemes) present |= sc.name == s.name;
     if (!present) {
       return Status::Error(head + "scheme '" + s.name +
                            "' is recorded in the checkpoint but missing from the configuration");
     }
-    // Changed values first (in config order), then keys that appeared or
-    // went away (e.g. the shaping keys when shaping itself changed).
-    const auto a = SectionEntries(old, prefix);
-    const auto b = SectionEntries(cfg, prefix);
-    // The scheme's own Eb/N0 list is checked point by point above (it may
-    // grow, as sweep.ebno_db may).
-    const std::string points_key = prefix + "ebno_db";
-    for (const auto& [key, value] : cfg.resolved) {
-      if (key.rfind(prefix, 0) != 0 || key == points_key) continue;
-      auto it = a.find(key);
-      if (it != a.end() && it->second != value) {
-        return Status::Error(head + key + " changed from " + Quoted(it->second) + " to " +
-                             Quoted(value) + fixed);
-      }
-    }
-    for (const auto& [key, value] : cfg.resolved) {
-      if (key.rfind(prefix, 0) == 0 && key != points_key && !a.count(key)) {
-        return Status::Error(head + key + " changed from (absent) to " + Quoted(value) + fixed);
-      }
-    }
-    for (const auto& [key, value] : old.resolved) {
-      if (key.rfind(prefix, 0) == 0 && key != points_key && !b.count(key)) {
-        return Status::Error(head + key + " changed from " + Quoted(value) + " to (absent)" + fixed);
-      }
-    }
+    if (Status st = compare("scheme." + s.name + ".", SchemeKeyTables()); !st.ok()) return st;
   }
   return Status::Ok();
 }

@@ -215,6 +215,9 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
                 "(MGF method, perfect channel state); ber_uncoded_awgn: the same modulation on "
                 "AWGN");
       }
+      if (!r.theory.uncoded_method.empty()) {
+        StrAttr(th, "uncoded_method", r.theory.uncoded_method);
+      }
       if (!r.theory.ber_bound.empty()) Dataset(th, "ber_bound", F64, r.theory.ber_bound);
       if (!r.theory.fer_bound.empty()) Dataset(th, "fer_bound", F64, r.theory.fer_bound);
       if (!r.theory.ber_bound.empty() || !r.theory.fer_bound.empty()) {

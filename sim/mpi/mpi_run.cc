@@ -7,6 +7,7 @@
 #include <mpi.h>
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <condition_variable>
 #include <cstdio>
@@ -14,6 +15,7 @@
 #include <cstring>
 #include <deque>
 #include <list>
+#include <memory>
 #include <mutex>
 #include <optional>
 #include <thread>
@@ -100,7 +102,10 @@ bool Probe(int source, MPI_Status* status) {
 
 // A worker rank's compute threads: take units from the queue of ranges of the
 // current point, put their counts in the outbox. Switching the point (or to
-// none) empties both; units of the old point still running are dropped.
+// none) empties both; units of the old point still running are abandoned at
+// their next frame (each generation has its own drop flag, which Switch
+// raises), so a cancelled point or a signal frees the threads within a frame
+// or decoder batch instead of a whole unit.
 class WorkerPool {
  public:
   using Result = std::pair<std::uint32_t, UnitCounts>;
@@ -113,6 +118,7 @@ class WorkerPool {
     {
       std::lock_guard<std::mutex> lock(mu_);
       stop_ = true;
+      drop_->store(true, std::memory_order_relaxed);
     }
     cv_.notify_all();
     for (auto& t : threads_) t.join();
@@ -124,6 +130,8 @@ class WorkerPool {
       channel = MakePointChannel(chains_[scheme], cfg_.schemes[scheme].ebno_db[point]);
     }
     std::lock_guard<std::mutex> lock(mu_);
+    drop_->store(true, std::memory_order_relaxed);
+    drop_ = std::make_shared<std::atomic<bool>>(false);
     ++generation_;
     scheme_ = scheme;
     point_ = point;
@@ -185,13 +193,16 @@ class WorkerPool {
       const std::size_t scheme = static_cast<std::size_t>(scheme_);
       const auto point = static_cast<std::uint32_t>(point_);
       const std::shared_ptr<const Channel> channel = channel_;
+      const std::shared_ptr<const std::atomic<bool>> drop = drop_;
       lock.unlock();
       if (!ws[scheme]) ws[scheme].emplace(chains_[scheme].MakeWorkspace());
       const auto t0 = Clock::now();
-      const UnitCounts counts = chains_[scheme].RunUnit(*channel, point, unit, *ws[scheme]);
+      const std::optional<UnitCounts> counts =
+          chains_[scheme].RunUnitUnlessStopped(*channel, point, unit, *ws[scheme], drop.get());
       const double dt = Seconds(Clock::now() - t0);
       lock.lock();
-      if (generation == generation_) outbox_.emplace_back(unit, counts);
+      if (!counts) continue;  // abandoned: its point was switched away
+      if (generation == generation_) outbox_.emplace_back(unit, *counts);
       unit_seconds_ = unit_seconds_ == 0 ? dt : 0.8 * unit_seconds_ + 0.2 * dt;
     }
   }
@@ -204,6 +215,8 @@ class WorkerPool {
   std::uint64_t generation_ = 0;
   std::uint64_t scheme_ = kNone, point_ = kNone;
   std::shared_ptr<const Channel> channel_;
+  // Raised when the generation ends (Switch, destruction): its units stop.
+  std::shared_ptr<std::atomic<bool>> drop_ = std::make_shared<std::atomic<bool>>(false);
   std::deque<PointControl::Range> queue_;
   std::uint64_t queued_ = 0;
   std::vector<Result> outbox_;

@@ -15,6 +15,7 @@
 #include "analysis/uncoded_theory.h"
 #include "blocks/core/energy.h"
 #include "blocks/mapping/mapper.h"
+#include "sim/chain/registry.h"
 #include "sim/config/config.h"
 #include "sim/io/curves_file.h"
 #include "sim/io/summary_table.h"
@@ -83,7 +84,7 @@ int RunTheory(const TheoryOptions& o) {
   if (!o.modulation || !o.ebno_db || o.modulation->empty() || o.ebno_db->empty()) {
     return usage("theory: need --modulation and --ebno-db (or --bandwidth and --snr-db)");
   }
-  auto mod = ParseModulation(*o.modulation);
+  auto mod = ParseConstellation(*o.modulation);
   if (!mod.ok())
     return usage("theory: --modulation = '" + *o.modulation + "': " + mod.status().message());
   const double rate = o.rate.value_or(1.0);
@@ -121,7 +122,10 @@ int RunTheory(const TheoryOptions& o) {
         << "\n# constrained_ebno_db = " << fmt(constrained) << "\n# bicm_ebno_db = " << fmt(bicm)
         << "\nebno_db,esno_db,ber,ser\n";
   } else {
-    out << name << ", uncoded BER/SER on AWGN (exact, Gray labelling)\n"
+    out << name << ", uncoded BER/SER on AWGN ("
+        << (analysis::UncodedTheoryIsExact(mod.value()) ? "exact, Gray labelling"
+                                                        : "union bound over the points")
+        << ")\n"
         << Format("limits at rho = R m = %.4g information bits per symbol (eta = rho):\n", rho)
         << "  Shannon (unconstrained input)  " << fmt(shannon) << " dB\n"
         << "  constellation-constrained      " << fmt(constrained) << " dB"

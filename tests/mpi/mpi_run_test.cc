@@ -3,15 +3,19 @@
 // run, with one progress stream; a SIGKILLed rank ends the run without a hang
 // and --resume finishes it to the same counts; SIGTERM to every rank (what a
 // batch scheduler sends) stops cleanly with status 75; SIGTERM to mpirun
-// leaves a good checkpoint that a single process can resume.
+// leaves a good checkpoint that a single process can resume; SIGTERM inside
+// long units stops every rank within 2 s with the finished units saved.
 #include <dirent.h>
 #include <signal.h>
 #include <unistd.h>
 
+#include <chrono>
+#include <cstdio>
 #include <cstdlib>
 #include <fstream>
 #include <sstream>
 #include <string>
+#include <thread>
 #include <vector>
 
 #include <gtest/gtest.h>
@@ -133,6 +137,16 @@ std::vector<std::pair<int, pid_t>> Ranks(pid_t launcher) {
   return out;
 }
 
+// True while `pid` exists and is not a zombie (a rank whose launcher has
+// exited may wait a while to be reaped by whoever adopted it).
+bool Running(pid_t pid) {
+  std::ifstream stat("/proc/" + std::to_string(pid) + "/stat");
+  std::string line;
+  if (!std::getline(stat, line)) return false;
+  const auto close = line.rfind(')');
+  return close != std::string::npos && close + 2 < line.size() && line[close + 2] != 'Z';
+}
+
 TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
   const fs::path dir = TempDir("counts");
   const std::string ref = Reference();
@@ -218,6 +232,75 @@ TEST(MpiRun, SigtermToMpirunLeavesACheckpointASingleProcessResumes) {
   const RunOutput r = RunCapgap(RunArgs(out, Heavy({"--threads", "2", "--quiet", "--resume"})), dir);
   ASSERT_EQ(r.status, 0) << r.log;
   EXPECT_EQ(ReadCounts(out), ReadCounts(HeavyReference()));
+  fs::remove_all(dir);
+}
+
+// Units of 2000 K = 9 BCJR frames of 1000 bits take several seconds each on
+// one core (about 0.3 Mbit/s; tests/sim/stop_test.cc), so SIGTERM to every
+// rank after the first units are counted lands inside a unit on each rank.
+// The worker rank abandons its unit in flight at the next frame, rank 0
+// abandons its own, saves the checkpoint with the units finished before and
+// sends STOP: every rank is gone within 2 s (about 0.07 s here; before the
+// worker abandoned its unit, 10 s: rank 0's wait for the worker's goodbye),
+// and mpirun reports 75.
+TEST(MpiRun, SigtermDuringALongUnitStopsEveryRankWithin2s) {
+  const fs::path dir = TempDir("long_unit");
+  const std::string config = (dir / "k9.ini").string();
+  std::ofstream(config) << "[sweep]\nebno_db = 2\ntarget_errors = 100000000\n"
+                           "max_bits = 1000000000\nseed = 1\ncheckpoint_seconds = 0.05\n"
+                           "[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\n"
+                           "constraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\n"
+                           "unit_frames = 2000\n";
+  const std::string out = (dir / "out.h5").string(), ckpt = CheckpointPath(out);
+  Process launcher(CAPGAP_MPIEXEC,
+                   Mpi(2, {"run", config, "-o", out, "--threads", "1", "--quiet"}),
+                   dir / "long_unit_log.txt");
+  // Wait for the first counted unit: the next ones are then in flight.
+  std::size_t counted = 0;
+  const auto t0 = test::Clock::now();
+  while (!launcher.Exited() && test::SecondsSince(t0) < 120) {
+    auto c = ReadCheckpoint(ckpt);
+    if (c.ok() && (counted = test::TotalUnits(c.value())) >= 1) break;
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  ASSERT_GE(counted, 1u) << launcher.Log();
+  const auto ranks = Ranks(launcher.pid());
+  ASSERT_EQ(ranks.size(), 2u);
+  const auto signalled = test::Clock::now();
+  for (const auto& [rank, pid] : ranks) ::kill(pid, SIGTERM);
+  // When each rank is gone, then mpirun.
+  std::vector<double> gone(ranks.size(), -1);
+  while (!launcher.Exited() && test::SecondsSince(signalled) < 60) {
+    for (std::size_t i = 0; i < ranks.size(); ++i) {
+      if (gone[i] < 0 && !Running(ranks[i].second)) gone[i] = test::SecondsSince(signalled);
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(2));
+  }
+  const double seconds = test::SecondsSince(signalled);
+  const int status = launcher.Wait(1);
+  for (std::size_t i = 0; i < ranks.size(); ++i) {
+    if (gone[i] < 0 && !Running(ranks[i].second)) gone[i] = seconds;
+    EXPECT_GE(gone[i], 0) << "rank " << ranks[i].first << " still running";
+    EXPECT_LT(gone[i], 2.0) << "rank " << ranks[i].first << "\n" << launcher.Log();
+    std::printf("rank %d stopped %.3f s after SIGTERM\n", ranks[i].first, gone[i]);
+  }
+  EXPECT_EQ(status, 75) << launcher.Log();
+  // mpirun itself, once a rank exits non-zero, runs its kill sequence on the
+  // (already finished) ranks: SIGCONT, SIGTERM, SIGKILL with a sleep of
+  // odls_base_sigkill_timeout (1 s by default, Open MPI 4.1) before the last
+  // two, so it exits 1-2 s after the ranks.
+  EXPECT_LT(seconds, 5.0) << launcher.Log();
+  std::printf("mpirun exited %.3f s after SIGTERM to the ranks\n", seconds);
+  EXPECT_FALSE(fs::exists(out));
+  const Checkpoint c = ReadGood(ckpt);
+  EXPECT_FALSE(c.complete);
+  ASSERT_EQ(c.schemes.size(), 1u);
+  ASSERT_EQ(c.schemes[0].points.size(), 1u);
+  const PointRecord& rec = c.schemes[0].points[0];
+  EXPECT_GE(rec.units, counted);  // the finished units are kept
+  EXPECT_EQ(rec.counts.frames, 2000u * rec.units);  // whole units only
+  EXPECT_EQ(rec.counts.bits, 2000000u * rec.units);
+  EXPECT_FALSE(rec.finished);
   fs::remove_all(dir);
 }
 

@@ -173,6 +173,14 @@ inline FileCounts ReadCounts(const std::string& path) {
   return c;
 }
 
+// A file's bytes ("" when it cannot be read).
+inline std::string ReadText(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
 inline Checkpoint ReadGood(const std::string& path) {
   auto c = ReadCheckpoint(path);
   EXPECT_TRUE(c.ok()) << c.status().message();

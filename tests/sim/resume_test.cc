@@ -372,5 +372,63 @@ TEST(ResumeCli, MorePointsAndALowerFloorExtendTheSweep) {
   fs::remove_all(dir);
 }
 
+// memory_limit_mb is marked resume-changeable in the LDPC key table: it
+// changes neither the random streams nor the recorded work, only whether the
+// code may be built. A run made at 1 thread under a 4 MB limit is extended
+// with 2 threads: the 4 MB limit is checked against the new thread count and
+// refuses (naming the key; the checkpoint untouched), a raised limit is
+// accepted and the extension equals a fresh run of the final config. Sizes:
+// capgap's own estimate for a (3,6) PEG code, n = 2016 (LdpcMemoryEstimate):
+// about 4 MB at one thread, 6 MB at two (3 MB of decoder state per thread).
+TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
+  const fs::path dir = TempDir("memory_limit");
+  const std::string config = (dir / "ldpc.ini").string();
+  std::ofstream(config) << "[sweep]\nebno_db = 1.5,2\ntarget_errors = 50\nmax_bits = 2000000\n"
+                           "seed = 3\n[scheme.l]\nmodulation = bpsk\ncode = ldpc\n"
+                           "length = 2016\nmax_iterations = 20\n";
+  const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
+  auto args = [&](const std::string& file, std::vector<std::string> extra) {
+    std::vector<std::string> a = {"run", config, "-o", file, "--quiet"};
+    a.insert(a.end(), extra.begin(), extra.end());
+    return a;
+  };
+  const RunOutput fresh =
+      RunCapgap(args(ref, {"--threads", "2", "--set", "sweep.target_errors=100"}), dir);
+  ASSERT_EQ(fresh.status, 0) << fresh.log;
+  const RunOutput first =
+      RunCapgap(args(out, {"--threads", "1", "--set", "scheme.l.memory_limit_mb=4"}), dir);
+  ASSERT_EQ(first.status, 0) << first.log;
+  const std::string ckpt_before = test::ReadText(CheckpointPath(out));
+
+  const RunOutput small = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
+                                               "sweep.target_errors=100", "--set",
+                                               "scheme.l.memory_limit_mb=4"}),
+                                    dir);
+  EXPECT_EQ(small.status, 1) << small.log;
+  EXPECT_NE(small.log.find("decoder 2 thread(s) x 3 MB), over scheme.l.memory_limit_mb = 4;"),
+            std::string::npos)
+      << small.log;
+  EXPECT_EQ(test::ReadText(CheckpointPath(out)), ckpt_before);
+
+  const RunOutput raised = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
+                                                "sweep.target_errors=100", "--set",
+                                                "scheme.l.memory_limit_mb=64"}),
+                                     dir);
+  ASSERT_EQ(raised.status, 0) << raised.log;
+  EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
+  ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
+  // A key the table leaves fixed is still refused.
+  const RunOutput iters = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
+                                               "sweep.target_errors=100", "--set",
+                                               "scheme.l.max_iterations=30"}),
+                                    dir);
+  EXPECT_EQ(iters.status, 1);
+  EXPECT_EQ(iters.log, "capgap: cannot resume from " + CheckpointPath(out) +
+                           ": scheme.l.max_iterations changed from '20' to '30'; it fixes the "
+                           "random streams of the recorded work (start a new output file to "
+                           "change it)\n");
+  fs::remove_all(dir);
+}
+
 }  // namespace
 }  // namespace capgap

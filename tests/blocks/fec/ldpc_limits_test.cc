@@ -79,14 +79,14 @@ TEST(LdpcStop, StatusWithPrefixKeepsTheKind) {
 }
 
 // Arithmetic: the bit-packed m x n elimination matrix is m ceil(n/64) words,
-// the packed columns ceil(rank/512) chunks of k columns of 8 words, plus n
-// pivot flags. n = 2^20, m = 2^19 (rate 1/2): 2^19 * 2^14 * 8 = 64 GiB,
-// 2^10 * 2^19 * 64 = 32 GiB, + 1 MiB.
+// the nibble tables ceil(rank/512) chunks of ceil(k/4) groups of 16 entries
+// of 8 words, plus n pivot flags. n = 2^20, m = 2^19 (rate 1/2):
+// 2^19 * 2^14 * 8 = 64 GiB, 2^10 * 2^17 * 16 * 64 = 128 GiB, + 1 MiB.
 TEST(LdpcLimits, EncoderGeneralPathBytesFollowTheDenseLayout) {
   EXPECT_EQ(LdpcEncoder::GeneralPathBytes(1 << 20, 1 << 19),
-            (std::uint64_t{64} << 30) + (std::uint64_t{32} << 30) + (std::uint64_t{1} << 20));
-  // n = 100, m = 50: 50 rows of 2 words, one chunk of 50 columns, 100 flags.
-  EXPECT_EQ(LdpcEncoder::GeneralPathBytes(100, 50), 50u * 16 + 50u * 64 + 100);
+            (std::uint64_t{64} << 30) + (std::uint64_t{128} << 30) + (std::uint64_t{1} << 20));
+  // n = 100, m = 50: 50 rows of 2 words, one chunk of 13 groups, 100 flags.
+  EXPECT_EQ(LdpcEncoder::GeneralPathBytes(100, 50), 50u * 16 + 13u * 16 * 64 + 100);
   EXPECT_EQ(LdpcEncoder::GeneralPathBytes(0, 5), 0u);
 }
 

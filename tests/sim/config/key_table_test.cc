@@ -10,7 +10,9 @@
 #include <map>
 #include <string>
 
+#include "sim/chain/registry.h"
 #include "sim/config/config.h"
+#include "sim/config/config_keys.h"
 
 namespace capgap {
 namespace {
@@ -199,7 +201,7 @@ TEST(SchemeKeys, HugeAndBinaryValuesAreEchoedShortenedAndEscaped) {
   const std::string b = ErrorOf(kBase, {"scheme.q.modulation=" + huge});
   EXPECT_LT(b.size(), 300u) << b.substr(0, 400);
   EXPECT_EQ(b, "cfg.ini: scheme.q.modulation = '\\x01\\xFF" + tail +
-                   ": not a modulation; valid: " + ModulationChoices());
+                   ": not a modulation; valid: " + ConstellationChoices());
   const std::string c = ErrorOf(kBase, {"sweep.ebno_db=" + huge});
   EXPECT_EQ(c, "cfg.ini: sweep.ebno_db = '\\x01\\xFF" + tail +
                    ": not a number; expected START:STEP:STOP or a comma list");
@@ -217,6 +219,29 @@ TEST(SchemeKeys, HelpListsEveryKeyWithItsDefaultAndRule) {
             std::string::npos)
       << help;
   EXPECT_NE(help.find("  offset = 0.5\n      a number in [0, 10]; "), std::string::npos) << help;
+}
+
+// The resume rules live in the key tables (OnResume) and show in the help:
+// the keys --resume may change are marked, a fixed key is not.
+TEST(SchemeKeys, ResumeChangeableKeysAreMarkedInTheTables) {
+  const auto rule = [](std::span<const KeyTable> tables, const char* name) {
+    const KeySpec* k = FindKey(tables, name);
+    EXPECT_NE(k, nullptr) << name;
+    return k ? k->on_resume : OnResume::kFixed;
+  };
+  EXPECT_EQ(rule(SchemeKeyTables(), "memory_limit_mb"), OnResume::kFree);
+  EXPECT_EQ(rule(SchemeKeyTables(), "ebno_db"), OnResume::kAppendPoints);
+  EXPECT_EQ(rule(SchemeKeyTables(), "frame_bits"), OnResume::kFixed);
+  EXPECT_EQ(rule(SchemeKeyTables(), "max_iterations"), OnResume::kFixed);
+  EXPECT_EQ(rule(SweepKeyTables(), "threads"), OnResume::kFree);
+  EXPECT_EQ(rule(SweepKeyTables(), "target_errors"), OnResume::kMayGrow);
+  EXPECT_EQ(rule(SweepKeyTables(), "seed"), OnResume::kFixed);
+  const std::string help = ConfigKeysHelp();
+  EXPECT_NE(help.find("larger, in MiB [may change on --resume]\n"), std::string::npos) << help;
+  EXPECT_NE(help.find("bit errors that end a point [may only grow on --resume]\n"),
+            std::string::npos)
+      << help;
+  EXPECT_EQ(help.find("master seed ["), std::string::npos) << help;
 }
 
 }  // namespace

@@ -376,10 +376,10 @@ TEST(CheckResumable, ChangesThatAlterRecordedStreamsAreRefusedNamingTheKey) {
             "1.5 dB; recorded points keep their Eb/N0 (append new points at the end)");
   EXPECT_EQ(Refusal({"sweep.target_errors=50"}),
             "cannot resume from r.ckpt: sweep.target_errors decreased from 100 to 50; a resume may "
-            "only raise it (finished points may hold more errors than the new target)");
+            "only raise it (finished points may already hold more than the new value)");
   EXPECT_EQ(Refusal({"sweep.max_bits=999999"}),
             "cannot resume from r.ckpt: sweep.max_bits decreased from 1000000 to 999999; a resume "
-            "may only raise it (finished points may hold more bits than the new limit)");
+            "may only raise it (finished points may already hold more than the new value)");
 }
 
 TEST(CheckResumable, RecordedSchemeMissingFromConfigIsRefused) {

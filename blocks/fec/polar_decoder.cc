@@ -1,0 +1,321 @@
+// SC and SCL decoders: the same recursion over the code tree (left child
+// f, right child g, partial sums combined on the way up); SCL keeps one set
+// of level arrays per path with lazy copying.
+#include "blocks/fec/polar_decoder.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+#include <string>
+
+namespace capgap {
+namespace {
+
+inline float F(float a, float b) {
+  const float m = std::min(std::abs(a), std::abs(b));
+  return ((a < 0) != (b < 0)) ? -m : m;
+}
+inline float G(float a, float b, Bit u) { return u ? b - a : b + a; }
+inline Bit HardDecision(float l) { return l < 0 ? Bit{1} : Bit{0}; }
+
+std::size_t Sz(int x) { return static_cast<std::size_t>(x); }
+
+}  // namespace
+
+// ---------------------------------------------------------------- SC
+
+PolarScDecoder::PolarScDecoder(const PolarCode& code) : m_(code.m), frozen_(code.frozen) {}
+
+PolarScDecoder::Workspace PolarScDecoder::MakeWorkspace() const {
+  Workspace ws;
+  ws.llr.assign(Sz(1 << m_), 0.0f);
+  ws.beta.assign(Sz(1 << m_), 0);
+  return ws;
+}
+
+void PolarScDecoder::Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat,
+                          Workspace& ws) const {
+  if (s == 0) {
+    const Bit u = frozen_[Sz(leaf)] ? Bit{0} : HardDecision(in[0]);
+    out[0] = u;
+    u_hat[leaf] = u;
+    return;
+  }
+  const int h = 1 << (s - 1);
+  float* child = ws.llr.data() + h;
+  Bit* child_beta = ws.beta.data() + h;
+  for (int i = 0; i < h; ++i) child[i] = F(in[i], in[i + h]);
+  Node(s - 1, leaf, child, child_beta, u_hat, ws);
+  for (int i = 0; i < h; ++i) out[i] = child_beta[i];
+  for (int i = 0; i < h; ++i) child[i] = G(in[i], in[i + h], out[i]);
+  Node(s - 1, leaf + h, child, child_beta, u_hat, ws);
+  for (int i = 0; i < h; ++i) {
+    out[i] ^= child_beta[i];
+    out[i + h] = child_beta[i];
+  }
+}
+
+void PolarScDecoder::Decode(std::span<const float> llr, std::span<Bit> u_hat, std::span<Bit> x_hat,
+                            Workspace& ws) const {
+  CAPGAP_DCHECK(llr.size() == Sz(1 << m_));
+  Node(m_, 0, llr.data(), x_hat.data(), u_hat.data(), ws);
+}
+
+// ---------------------------------------------------------------- SCL
+
+namespace {
+
+using Ws = PolarSclDecoder::Workspace;
+
+// Level s arrays of the pools start at list (2^s - 1) arrays' worth.
+std::size_t LevelOffset(const Ws& w, int s) { return Sz(w.list_) * (Sz(1 << s) - 1); }
+
+float* LlrArray(Ws& w, int s, int idx) {
+  return w.llr_pool_.data() + LevelOffset(w, s) + Sz(idx) * Sz(1 << s);
+}
+Bit* BetaArray(Ws& w, int s, int idx) {
+  return w.beta_pool_.data() + LevelOffset(w, s) + Sz(idx) * Sz(1 << s);
+}
+int& LlrIdx(Ws& w, int p, int s) { return w.llr_idx_[Sz(p * (w.m_ + 1) + s)]; }
+int& BetaIdx(Ws& w, int p, int s) { return w.beta_idx_[Sz(p * (w.m_ + 1) + s)]; }
+
+int PopArray(std::vector<int>& stack, std::vector<int>& count, int list, int s) {
+  return stack[Sz(s * list + --count[Sz(s)])];
+}
+void PushArray(std::vector<int>& stack, std::vector<int>& count, int list, int s, int idx) {
+  stack[Sz(s * list + count[Sz(s)]++)] = idx;
+}
+
+void Release(std::vector<int>& ref, std::vector<int>& stack, std::vector<int>& count, int list,
+             int s, int idx) {
+  if (--ref[Sz(s * list + idx)] == 0) PushArray(stack, count, list, s, idx);
+}
+
+// Path p's array at level s, made private first if it is shared (contents
+// copied when `keep`).
+[[gnu::always_inline]] inline float* WriteLlr(Ws& w, int p, int s) {
+  int& idx = LlrIdx(w, p, s);
+  int& ref = w.llr_ref_[Sz(s * w.list_ + idx)];
+  if (ref > 1) {
+    --ref;
+    idx = PopArray(w.llr_free_, w.llr_free_n_, w.list_, s);
+    w.llr_ref_[Sz(s * w.list_ + idx)] = 1;
+  }
+  return LlrArray(w, s, idx);
+}
+[[gnu::always_inline]] inline Bit* WriteBeta(Ws& w, int p, int s, bool keep) {
+  int& idx = BetaIdx(w, p, s);
+  int& ref = w.beta_ref_[Sz(s * w.list_ + idx)];
+  if (ref > 1) {
+    --ref;
+    const int old = idx;
+    idx = PopArray(w.beta_free_, w.beta_free_n_, w.list_, s);
+    w.beta_ref_[Sz(s * w.list_ + idx)] = 1;
+    if (keep) std::memcpy(BetaArray(w, s, idx), BetaArray(w, s, old), Sz(1 << s));
+  }
+  return BetaArray(w, s, idx);
+}
+
+int Clone(Ws& w, int p) {
+  const int q = w.slot_free_[Sz(--w.slot_free_n_)];
+  for (int s = 0; s <= w.m_; ++s) {
+    if (s < w.m_) {
+      const int i = LlrIdx(w, q, s) = LlrIdx(w, p, s);
+      ++w.llr_ref_[Sz(s * w.list_ + i)];
+    }
+    const int j = BetaIdx(w, q, s) = BetaIdx(w, p, s);
+    ++w.beta_ref_[Sz(s * w.list_ + j)];
+  }
+  w.metric_[Sz(q)] = w.metric_[Sz(p)];
+  return q;
+}
+
+void Kill(Ws& w, int p) {
+  for (int s = 0; s <= w.m_; ++s) {
+    if (s < w.m_) Release(w.llr_ref_, w.llr_free_, w.llr_free_n_, w.list_, s, LlrIdx(w, p, s));
+    Release(w.beta_ref_, w.beta_free_, w.beta_free_n_, w.list_, s, BetaIdx(w, p, s));
+  }
+  w.slot_free_[Sz(w.slot_free_n_++)] = p;
+}
+
+}  // namespace
+
+std::span<const Bit> PolarSclDecoder::Workspace::Codeword(int rank) const {
+  const int p = rank_[Sz(rank)];
+  const int s = m_;
+  const int idx = beta_idx_[Sz(p * (m_ + 1) + s)];
+  const std::size_t n = Sz(1 << s);
+  return {beta_pool_.data() + Sz(list_) * (n - 1) + Sz(idx) * n, n};
+}
+
+float PolarSclDecoder::Workspace::Metric(int rank) const { return metric_[Sz(rank_[Sz(rank)])]; }
+
+PolarSclDecoder::PolarSclDecoder(const PolarCode& code, int list_size)
+    : m_(code.m), list_(list_size), frozen_(code.frozen) {}
+
+Result<PolarSclDecoder> PolarSclDecoder::Create(const PolarCode& code, int list_size) {
+  if (list_size < 1 || list_size > kMaxListSize) {
+    return Status::Error("list size " + std::to_string(list_size) + ": must be in [1, 32]");
+  }
+  return PolarSclDecoder(code, list_size);
+}
+
+PolarSclDecoder::Workspace PolarSclDecoder::MakeWorkspace() const {
+  Workspace w;
+  w.m_ = m_;
+  w.list_ = list_;
+  const std::size_t n = Sz(1 << m_), l = Sz(list_), levels = Sz(m_ + 1);
+  w.llr_pool_.assign(l * n, 0.0f);
+  w.beta_pool_.assign(l * (2 * n - 1), 0);
+  w.llr_idx_.assign(l * levels, 0);
+  w.beta_idx_.assign(l * levels, 0);
+  w.llr_ref_.assign(l * levels, 0);
+  w.beta_ref_.assign(l * levels, 0);
+  w.llr_free_.assign(l * levels, 0);
+  w.beta_free_.assign(l * levels, 0);
+  w.llr_free_n_.assign(levels, 0);
+  w.beta_free_n_.assign(levels, 0);
+  w.slot_free_.assign(l, 0);
+  w.active_.assign(l, 0);
+  w.metric_.assign(l, 0.0f);
+  w.order_.assign(2 * l, 0);
+  w.cand_metric_.assign(2 * l, 0.0f);
+  w.keep_.assign(2 * l, 0);
+  w.next_active_.assign(l, 0);
+  w.rank_.assign(l, 0);
+  return w;
+}
+
+void PolarSclDecoder::Leaf(int leaf, Workspace& w) const {
+  const int n = w.active_count_;
+  if (frozen_[Sz(leaf)]) {
+    for (int k = 0; k < n; ++k) {
+      const int p = w.active_[Sz(k)];
+      const float l = LlrArray(w, 0, LlrIdx(w, p, 0))[0];
+      if (l < 0) w.metric_[Sz(p)] -= l;
+      WriteBeta(w, p, 0, false)[0] = 0;
+    }
+    return;
+  }
+  // Candidate c = 2 k + b: path active_[k] extended by bit b.
+  for (int k = 0; k < n; ++k) {
+    const int p = w.active_[Sz(k)];
+    const float l = LlrArray(w, 0, LlrIdx(w, p, 0))[0];
+    const float pm = w.metric_[Sz(p)];
+    w.cand_metric_[Sz(2 * k)] = l < 0 ? pm - l : pm;
+    w.cand_metric_[Sz(2 * k + 1)] = l < 0 ? pm : pm + l;
+  }
+  const int c = 2 * n;
+  if (c <= list_) {
+    std::fill_n(w.keep_.begin(), c, std::uint8_t{1});
+  } else {
+    for (int i = 0; i < c; ++i) w.order_[Sz(i)] = i;
+    const auto first = w.order_.begin();
+    // The L smallest under the strict total order (metric, candidate
+    // index) form a unique set; nth_element finds it in linear time.
+    std::nth_element(first, first + (list_ - 1), first + c, [&](int a, int b) {
+      const float ma = w.cand_metric_[Sz(a)], mb = w.cand_metric_[Sz(b)];
+      return ma < mb || (ma == mb && a < b);
+    });
+    std::fill_n(w.keep_.begin(), c, std::uint8_t{0});
+    for (int i = 0; i < list_; ++i) w.keep_[Sz(w.order_[Sz(i)])] = 1;
+  }
+  for (int k = 0; k < n; ++k) {
+    if (!w.keep_[Sz(2 * k)] && !w.keep_[Sz(2 * k + 1)]) Kill(w, w.active_[Sz(k)]);
+  }
+  int next = 0;
+  for (int k = 0; k < n; ++k) {
+    const int p = w.active_[Sz(k)];
+    const bool k0 = w.keep_[Sz(2 * k)] != 0, k1 = w.keep_[Sz(2 * k + 1)] != 0;
+    if (!k0 && !k1) continue;
+    if (k0 && k1) {
+      const int q = Clone(w, p);
+      w.metric_[Sz(p)] = w.cand_metric_[Sz(2 * k)];
+      WriteBeta(w, p, 0, false)[0] = 0;
+      w.metric_[Sz(q)] = w.cand_metric_[Sz(2 * k + 1)];
+      WriteBeta(w, q, 0, false)[0] = 1;
+      w.next_active_[Sz(next++)] = p;
+      w.next_active_[Sz(next++)] = q;
+    } else {
+      const int b = k1 ? 1 : 0;
+      w.metric_[Sz(p)] = w.cand_metric_[Sz(2 * k + b)];
+      WriteBeta(w, p, 0, false)[0] = static_cast<Bit>(b);
+      w.next_active_[Sz(next++)] = p;
+    }
+  }
+  std::copy_n(w.next_active_.begin(), next, w.active_.begin());
+  w.active_count_ = next;
+}
+
+void PolarSclDecoder::Node(int s, int leaf, const float* channel, Workspace& w) const {
+  if (s == 0) {
+    Leaf(leaf, w);
+    return;
+  }
+  const int h = 1 << (s - 1);
+  auto in = [&](int p) -> const float* {
+    return s == m_ ? channel : LlrArray(w, s, LlrIdx(w, p, s));
+  };
+  for (int k = 0; k < w.active_count_; ++k) {
+    const int p = w.active_[Sz(k)];
+    const float* a = in(p);
+    float* child = WriteLlr(w, p, s - 1);
+    for (int i = 0; i < h; ++i) child[i] = F(a[i], a[i + h]);
+  }
+  Node(s - 1, leaf, channel, w);
+  for (int k = 0; k < w.active_count_; ++k) {
+    const int p = w.active_[Sz(k)];
+    const Bit* left = BetaArray(w, s - 1, BetaIdx(w, p, s - 1));
+    Bit* out = WriteBeta(w, p, s, false);
+    std::memcpy(out, left, Sz(h));
+    const float* a = in(p);
+    float* child = WriteLlr(w, p, s - 1);
+    for (int i = 0; i < h; ++i) child[i] = G(a[i], a[i + h], out[i]);
+  }
+  Node(s - 1, leaf + h, channel, w);
+  for (int k = 0; k < w.active_count_; ++k) {
+    const int p = w.active_[Sz(k)];
+    const Bit* right = BetaArray(w, s - 1, BetaIdx(w, p, s - 1));
+    Bit* out = WriteBeta(w, p, s, true);
+    for (int i = 0; i < h; ++i) {
+      out[i] ^= right[i];
+      out[i + h] = right[i];
+    }
+  }
+}
+
+void PolarSclDecoder::Decode(std::span<const float> llr, Workspace& w) const {
+  CAPGAP_DCHECK(llr.size() == Sz(1 << m_));
+  // Reset: every array free, one path (slot 0) holding one array per level.
+  for (int s = 0; s <= m_; ++s) {
+    w.llr_free_n_[Sz(s)] = 0;
+    w.beta_free_n_[Sz(s)] = 0;
+    for (int j = list_ - 1; j >= 0; --j) {
+      w.llr_ref_[Sz(s * list_ + j)] = 0;
+      w.beta_ref_[Sz(s * list_ + j)] = 0;
+      PushArray(w.llr_free_, w.llr_free_n_, list_, s, j);
+      PushArray(w.beta_free_, w.beta_free_n_, list_, s, j);
+    }
+  }
+  w.slot_free_n_ = 0;
+  for (int p = list_ - 1; p >= 1; --p) w.slot_free_[Sz(w.slot_free_n_++)] = p;
+  for (int s = 0; s <= m_; ++s) {
+    const int i = LlrIdx(w, 0, s) = PopArray(w.llr_free_, w.llr_free_n_, list_, s);
+    w.llr_ref_[Sz(s * list_ + i)] = 1;
+    const int j = BetaIdx(w, 0, s) = PopArray(w.beta_free_, w.beta_free_n_, list_, s);
+    w.beta_ref_[Sz(s * list_ + j)] = 1;
+  }
+  w.active_[0] = 0;
+  w.active_count_ = 1;
+  w.metric_[0] = 0;
+  Node(m_, 0, llr.data(), w);
+  const int n = w.active_count_;
+  for (int k = 0; k < n; ++k) w.order_[Sz(k)] = k;
+  std::sort(w.order_.begin(), w.order_.begin() + n, [&](int a, int b) {
+    const float ma = w.metric_[Sz(w.active_[Sz(a)])], mb = w.metric_[Sz(w.active_[Sz(b)])];
+    return ma < mb || (ma == mb && a < b);
+  });
+  for (int r = 0; r < n; ++r) w.rank_[Sz(r)] = w.active_[Sz(w.order_[Sz(r)])];
+}
+
+}  // namespace capgap

@@ -1,0 +1,111 @@
+// Successive-cancellation (SC) and SC list (SCL) decoders of a PolarCode
+// (polar_construction.h: x = u G_N, no bit reversal) over the N LLRs of the
+// mother code (rate matching already undone: punctured bits LLR 0, shortened
+// bits a large positive LLR).
+//
+// LLR convention: L = ln P(b=0|y) / P(b=1|y), L > 0 favours 0. Node updates
+// in float, min-sum form (common practice): f(a, b) = sign(a) sign(b)
+// min(|a|, |b|), g(a, b, u) = b + (1 - 2u) a, where a, b are the first and
+// second halves of a node's LLRs (x_left = v_left + v_right, x_right =
+// v_right). A leaf decides 0 when frozen, else 1 iff L < 0.
+//
+// SCL: I. Tal and A. Vardy, "List decoding of polar codes", IEEE Trans. Inf.
+// Theory 61(5), 2015 (lazy copying: per path and per tree level a reference
+// to a shared array, copied only when a path writes a shared one), with the
+// LLR-based path metric of A. Balatsoukas-Stimming, M. Bastani Parizi and A.
+// Burg, "LLR-based successive cancellation list decoding of polar codes",
+// IEEE Trans. Signal Process. 63(19), 2015, in its approximate form: a
+// path's metric grows by |L| when its decision at a leaf disagrees with the
+// sign of L (hard decision 1 iff L < 0), frozen leaves included. At an
+// information leaf the 2n extensions of n paths are ranked by (metric,
+// parent's rank in the list, bit) and the best L kept, so L = 1 makes the
+// decisions of SC exactly. After the last leaf the candidates are ranked by
+// metric (ties: list order); CRC selection is the caller's
+// (polar_channel_code.h).
+//
+// Both decoders allocate nothing per frame; the workspace holds all state.
+#ifndef CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
+#define CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
+
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include "blocks/core/status.h"
+#include "blocks/core/types.h"
+#include "blocks/fec/polar_construction.h"
+
+namespace capgap {
+
+class PolarScDecoder {
+ public:
+  explicit PolarScDecoder(const PolarCode& code);
+
+  struct Workspace {
+    std::vector<float> llr;  // tree levels 0..m-1, level s at [2^s, 2^{s+1})
+    std::vector<Bit> beta;   // partial sums of levels 0..m-1, same layout
+  };
+  Workspace MakeWorkspace() const;
+
+  // REQUIRES: llr.size() == u_hat.size() == x_hat.size() == N. u_hat: the
+  // leaf decisions; x_hat = u_hat G_N.
+  void Decode(std::span<const float> llr, std::span<Bit> u_hat, std::span<Bit> x_hat,
+              Workspace& ws) const;
+
+ private:
+  void Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat, Workspace& ws) const;
+  int m_;
+  std::vector<std::uint8_t> frozen_;
+};
+
+class PolarSclDecoder {
+ public:
+  static constexpr int kMaxListSize = 32;
+  static Result<PolarSclDecoder> Create(const PolarCode& code, int list_size);  // 1..32
+
+  int list_size() const { return list_; }
+
+  class Workspace {
+   public:
+    // After Decode: the number of surviving paths and the codeword estimate
+    // x (N bits) of the path of rank r (0 = smallest metric).
+    int paths() const { return active_count_; }
+    std::span<const Bit> Codeword(int rank) const;
+    float Metric(int rank) const;
+
+    // Decoder state (polar_decoder.cc), not for callers.
+    int m_ = 0, list_ = 0;
+    std::vector<float> llr_pool_;       // level s: list_ arrays of 2^s at list_ (2^s - 1)
+    std::vector<Bit> beta_pool_;        // levels 0..m, same layout
+    std::vector<int> llr_idx_, beta_idx_;  // [path * (m + 1) + s]
+    std::vector<int> llr_ref_, beta_ref_;  // [s * list_ + array]
+    std::vector<int> llr_free_, beta_free_;  // stacks [s * list_ + j]
+    std::vector<int> llr_free_n_, beta_free_n_;
+    std::vector<int> slot_free_;
+    int slot_free_n_ = 0;
+    std::vector<int> active_;  // slots, list order
+    int active_count_ = 0;
+    std::vector<float> metric_;  // by slot
+    std::vector<int> order_;     // scratch: ranking of 2 list_ candidates
+    std::vector<float> cand_metric_;
+    std::vector<std::uint8_t> keep_;
+    std::vector<int> next_active_;
+    std::vector<int> rank_;  // after Decode: slots by rank
+  };
+  Workspace MakeWorkspace() const;
+
+  // REQUIRES: llr.size() == N.
+  void Decode(std::span<const float> llr, Workspace& ws) const;
+
+ private:
+  PolarSclDecoder(const PolarCode& code, int list_size);
+  void Node(int s, int leaf, const float* channel, Workspace& ws) const;
+  void Leaf(int leaf, Workspace& ws) const;
+  int m_;
+  int list_;
+  std::vector<std::uint8_t> frozen_;
+};
+
+}  // namespace capgap
+
+#endif  // CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
