@@ -139,8 +139,12 @@ TEST(Config, MissingRequiredKeysAreNamed) {
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n"),
             "test.ini: no [scheme.NAME] section; at least one scheme is required");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nframe_bits = 8\n"),
-            "test.ini: missing required key 'scheme.a.modulation' (bpsk, qpsk, 8psk, 16qam, "
-            "64qam, 256qam, <M>psk, <M>qam)");
+            "test.ini: missing required key 'scheme.a.modulation' (" +
+                std::string(ConstellationSyntax()) + ")");
+  // The syntax lists the PSK/QAM family first (sim/families/psk_qam_constellation.h).
+  EXPECT_EQ(std::string(ConstellationSyntax()).rfind("bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, "
+                                                     "<M>psk, <M>qam", 0),
+            0u);
 }
 
 TEST(Config, CodeKeysApplyOnlyToTheirCode) {

@@ -48,12 +48,13 @@ TEST(LdpcMemory, HugePegCodeIsRefusedNamingLengthLimitAndEstimate) {
   const LdpcMemoryEstimate e =
       EstimateLdpcMemory(1 << 20, 1 << 19, 3 << 20, false, 64, /*threads=*/1);
   // The encoder's part by hand (arithmetic): m n / 8 elimination bits +
-  // m (n - m) / 8 packed columns + n flags = 64 GiB + 32 GiB + 1 MiB.
-  EXPECT_EQ(CeilMegabytes(e.encoder_bytes), 98305u);
+  // nibble tables (16 entries per 4 information bits, m / 8 bytes each:
+  // m (n - m) / 2 bytes) + n flags = 64 GiB + 128 GiB + 1 MiB.
+  EXPECT_EQ(CeilMegabytes(e.encoder_bytes), 196609u);
   EXPECT_EQ(ErrorOf(huge),
             "scheme.a.length = 1048576 with construction = peg (n = 1048576, m = 524288): needs "
             "an estimated " + Mb(e.total_bytes()) + " (code " + Mb(e.code_bytes) +
-                ", encoder elimination matrix 98305 MB, decoder 1 thread(s) x " +
+                ", encoder elimination matrix 196609 MB, decoder 1 thread(s) x " +
                 Mb(e.per_thread_bytes) +
                 "), over scheme.a.memory_limit_mb = 4096; use a smaller code, a qc construction "
                 "with a dual-diagonal base matrix (linear-time encoder, no dense matrix), fewer "
