@@ -7,6 +7,25 @@
 #include "blocks/mapping/demapper.h"
 
 namespace capgap {
+
+Result<ConvDecoderKind> ParseConvDecoderKind(std::string_view word) {
+  if (word == "viterbi_soft") return ConvDecoderKind::kViterbiSoft;
+  if (word == "viterbi_hard") return ConvDecoderKind::kViterbiHard;
+  if (word == "bcjr") return ConvDecoderKind::kBcjr;
+  return Status::Error("valid: viterbi_soft, viterbi_hard, bcjr");
+}
+
+std::string ToString(ConvDecoderKind kind) {
+  switch (kind) {
+    case ConvDecoderKind::kViterbiSoft:
+      return "viterbi_soft";
+    case ConvDecoderKind::kViterbiHard:
+      return "viterbi_hard";
+    case ConvDecoderKind::kBcjr:
+      return "bcjr";
+  }
+  return "unknown";
+}
 namespace {
 
 class ConvWorkspace final : public ChannelCode::Workspace {

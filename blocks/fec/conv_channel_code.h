@@ -9,6 +9,8 @@
 
 #include <memory>
 #include <optional>
+#include <string>
+#include <string_view>
 
 #include "blocks/core/status.h"
 #include "blocks/fec/bcjr_decoder.h"
@@ -19,6 +21,10 @@
 namespace capgap {
 
 enum class ConvDecoderKind { kViterbiSoft, kViterbiHard, kBcjr };
+
+// Words viterbi_soft, viterbi_hard, bcjr; an error message lists them.
+Result<ConvDecoderKind> ParseConvDecoderKind(std::string_view word);
+std::string ToString(ConvDecoderKind kind);
 
 class ConvChannelCode final : public ChannelCode {
  public:

@@ -35,7 +35,7 @@ int Parity(std::uint32_t x) { return std::popcount(x) & 1; }
 }  // namespace
 
 Result<Termination> ParseTermination(std::string_view word) {
-  if (word == "terminated") return Termination::kTerminated;
+  if (word == "terminated" || word == "tail") return Termination::kTerminated;
   if (word == "tailbiting") return Termination::kTailBiting;
   return Status::Error("unknown termination '" + std::string(word) +
                        "'; valid: terminated, tailbiting");

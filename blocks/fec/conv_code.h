@@ -49,7 +49,9 @@
 namespace capgap {
 
 enum class Termination { kTerminated, kTailBiting };
-// Words "terminated", "tailbiting"; an error message lists them.
+// Words "terminated", "tailbiting"; an error message lists them. "tail" (the
+// word of the config key `termination`, K-1 zero tail bits) is accepted as
+// another spelling of "terminated".
 Result<Termination> ParseTermination(std::string_view word);
 std::string ToString(Termination termination);
 

@@ -15,6 +15,25 @@
 #include "blocks/fec/ldpc_matrix_file.h"
 
 namespace capgap {
+
+Result<LdpcConstructionKind> ParseLdpcConstructionKind(std::string_view word) {
+  if (word == "peg") return LdpcConstructionKind::kPeg;
+  if (word == "qc") return LdpcConstructionKind::kQc;
+  if (word == "file") return LdpcConstructionKind::kFile;
+  return Status::Error("valid: peg, qc, file");
+}
+
+std::string ToString(LdpcConstructionKind kind) {
+  switch (kind) {
+    case LdpcConstructionKind::kPeg:
+      return "peg";
+    case LdpcConstructionKind::kQc:
+      return "qc";
+    case LdpcConstructionKind::kFile:
+      return "file";
+  }
+  return "unknown";
+}
 namespace {
 
 using Index = std::size_t;

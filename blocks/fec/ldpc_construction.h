@@ -86,6 +86,13 @@
 
 namespace capgap {
 
+// How a scheme's parity-check matrix is made: progressive edge growth, a
+// quasi-cyclic lifting of a base matrix, or read from a matrix file. Words
+// peg, qc, file; an error message lists them.
+enum class LdpcConstructionKind { kPeg, kQc, kFile };
+Result<LdpcConstructionKind> ParseLdpcConstructionKind(std::string_view word);
+std::string ToString(LdpcConstructionKind kind);
+
 // ----- Analysis --------------------------------------------------------------
 
 // Girth returned for a Tanner graph without any cycle (a forest).

@@ -8,6 +8,8 @@
 #include <cstring>
 #include <string>
 
+#include "blocks/fec/polar_encoder.h"
+
 namespace capgap {
 namespace {
 
@@ -24,7 +26,27 @@ std::size_t Sz(int x) { return static_cast<std::size_t>(x); }
 
 // ---------------------------------------------------------------- SC
 
-PolarScDecoder::PolarScDecoder(const PolarCode& code) : m_(code.m), frozen_(code.frozen) {}
+PolarScDecoder::PolarScDecoder(const PolarCode& code, bool fast_nodes)
+    : m_(code.m), frozen_(code.frozen), kind_(Sz(2) << code.m, kPlain) {
+  if (!fast_nodes) return;
+  const int n = 1 << m_;
+  for (int s = 1; s <= m_; ++s) {
+    const int size = 1 << s;
+    for (int leaf = 0; leaf < n; leaf += size) {
+      int frozen = 0;
+      for (int i = leaf; i < leaf + size; ++i) frozen += frozen_[Sz(i)];
+      NodeKind k = kPlain;
+      if (frozen == size) {
+        k = kRate0;
+      } else if (frozen == 0) {
+        k = kRate1;
+      } else if (frozen == size - 1 && !frozen_[Sz(leaf + size - 1)]) {
+        k = kRepetition;
+      }
+      kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)] = k;
+    }
+  }
+}
 
 PolarScDecoder::Workspace PolarScDecoder::MakeWorkspace() const {
   Workspace ws;
@@ -41,7 +63,39 @@ void PolarScDecoder::Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat
     u_hat[leaf] = u;
     return;
   }
-  const int h = 1 << (s - 1);
+  const int size = 1 << s;
+  const int h = size / 2;
+  switch (kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)]) {
+    case kRate0:
+      std::memset(out, 0, Sz(size));
+      std::memset(u_hat + leaf, 0, Sz(size));
+      return;
+    case kRate1: {
+      bool zero = false;
+      for (int i = 0; i < size; ++i) zero |= in[i] == 0.0f;
+      if (zero) break;
+      for (int i = 0; i < size; ++i) out[i] = HardDecision(in[i]);
+      std::memcpy(u_hat + leaf, out, Sz(size));
+      PolarTransform(std::span<Bit>(u_hat + leaf, Sz(size)));  // u = x G (involution)
+      return;
+    }
+    case kRepetition: {
+      // The last leaf's LLR: g with zero partial sums at every level is
+      // in[i + h] + in[i], applied by halves (the recursion's order).
+      float* t = ws.llr.data() + h;  // level s - 1 scratch, size h
+      for (int i = 0; i < h; ++i) t[i] = in[i + h] + in[i];
+      for (int w = h / 2; w >= 1; w /= 2) {
+        for (int i = 0; i < w; ++i) t[i] = t[i + w] + t[i];
+      }
+      const Bit u = HardDecision(t[0]);
+      std::memset(out, u, Sz(size));
+      std::memset(u_hat + leaf, 0, Sz(size - 1));
+      u_hat[leaf + size - 1] = u;
+      return;
+    }
+    default:
+      break;
+  }
   float* child = ws.llr.data() + h;
   Bit* child_beta = ws.beta.data() + h;
   for (int i = 0; i < h; ++i) child[i] = F(in[i], in[i + h]);

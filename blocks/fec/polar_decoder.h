@@ -37,9 +37,22 @@
 
 namespace capgap {
 
+// SC with simplified nodes (fast_nodes = true): a subtree whose leaves are
+// all frozen (rate-0) returns zeros; one whose leaves are all information
+// bits (rate-1) returns the hard decisions of its input LLRs when none of
+// them is exactly 0 (A. Alamdar-Yazdi and F. R. Kschischang, IEEE Commun.
+// Lett. 15(12), 2011); with a zero present it falls back to the recursion,
+// because min-sum f(0, b) = 0 decides 0 where the sign rule would not. A
+// repetition node (only its last leaf free; G. Sarkis et al., "Fast polar
+// decoders: algorithm and implementation", IEEE J. Sel. Areas Commun. 32(5),
+// 2014) decides the sign of the sum of its LLRs, summed in the tree order of
+// the recursion (pairwise by halves), so the float result is the last
+// leaf's LLR bit for bit. Decisions are therefore identical to plain SC
+// (tested on random LLRs, zeros included). SPC nodes are not taken: their ML
+// decision can differ from SC's.
 class PolarScDecoder {
  public:
-  explicit PolarScDecoder(const PolarCode& code);
+  explicit PolarScDecoder(const PolarCode& code, bool fast_nodes = true);
 
   struct Workspace {
     std::vector<float> llr;  // tree levels 0..m-1, level s at [2^s, 2^{s+1})
@@ -53,9 +66,13 @@ class PolarScDecoder {
               Workspace& ws) const;
 
  private:
+  enum NodeKind : std::uint8_t { kPlain, kRate0, kRate1, kRepetition };
   void Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat, Workspace& ws) const;
   int m_;
   std::vector<std::uint8_t> frozen_;
+  // Kind of the node of level s starting at leaf `leaf`, at index
+  // (1 << (m - s)) + (leaf >> s) (heap order); all kPlain without fast nodes.
+  std::vector<std::uint8_t> kind_;
 };
 
 class PolarSclDecoder {

@@ -35,6 +35,15 @@ struct GivenKeys {
   std::map<std::string, std::map<std::string, std::string>> schemes;
 };
 
+// " (did you mean 'a', 'b'?)" when declared keys are near `key`, then where
+// the whole list is (it grows with every family; an error line stays short).
+std::string UnknownKeyHint(std::span<const KeyTable> tables, const std::string& key,
+                           const char* section) {
+  const std::string near = NearKeyNames(tables, key);
+  return (near.empty() ? std::string() : " (did you mean " + near + "?)") +
+         "; 'capgap run --help' lists the " + section + " keys";
+}
+
 // Files `full` ("section.key") under its section; refuses unknown sections,
 // keys and (from --set) schemes the file does not define.
 Status Classify(const std::string& source, const std::string& full, bool from_override,
@@ -51,8 +60,8 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
   *key_out = key;
   if (section == "sweep") {
     if (!FindKey(SweepKeyTables(), key)) {
-      return Status::Error(source + ": unknown key '" + where +
-                           "'; [sweep] keys: " + KeyNames(SweepKeyTables()));
+      return Status::Error(source + ": unknown key '" + where + "'" +
+                           UnknownKeyHint(SweepKeyTables(), key, "[sweep]"));
     }
     *section_out = &given.sweep;
     return Status::Ok();
@@ -64,8 +73,8 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
                            "' may contain only letters, digits, '_' and '-'");
     }
     if (!FindKey(SchemeKeyTables(), key)) {
-      return Status::Error(source + ": unknown key '" + where +
-                           "'; [scheme.NAME] keys: " + KeyNames(SchemeKeyTables()));
+      return Status::Error(source + ": unknown key '" + where + "'" +
+                           UnknownKeyHint(SchemeKeyTables(), key, "[scheme.NAME]"));
     }
     auto& names = given.scheme_names;
     if (std::find(names.begin(), names.end(), name) == names.end()) {

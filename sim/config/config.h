@@ -20,6 +20,10 @@
 
 #include "blocks/channel/channel_spec.h"
 #include "blocks/core/status.h"
+#include "blocks/fec/conv_channel_code.h"
+#include "blocks/fec/conv_code.h"
+#include "blocks/fec/ldpc_construction.h"
+#include "blocks/fec/ldpc_decoder.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/modulation.h"
 #include "blocks/shaping/pulse.h"
@@ -51,15 +55,17 @@ struct ConvSchemeConfig {
   std::string generators = "133,171";
   int constraint_length = 7;
   std::string puncture = "none";
-  std::string termination = "tail";    // tail, tailbiting
-  std::string decoder = "viterbi_soft";  // viterbi_soft, viterbi_hard, bcjr
+  Termination termination = Termination::kTerminated;  // tail, tailbiting
+  ConvDecoderKind decoder = ConvDecoderKind::kViterbiSoft;
   int traceback = 0;                   // 0: automatic
 };
 
-// LDPC keys of a scheme (code = ldpc). Texts (degrees, paths) are parsed by
-// the code blocks when the chain is built; their messages get the key.
+// LDPC keys of a scheme (code = ldpc). Enum words are parsed once, by the
+// family's parse step (ParseX of the blocks); texts (degrees, paths) are
+// parsed by the code blocks when the chain is built; their messages get the
+// key.
 struct LdpcSchemeConfig {
-  std::string construction = "peg";     // peg, qc, file
+  LdpcConstructionKind construction = LdpcConstructionKind::kPeg;
   // peg: code length n, design rate (m = round(n (1 - rate)) checks), the
   // variable-node degree distribution, and the seed of the construction.
   int length = 2016;
@@ -71,10 +77,10 @@ struct LdpcSchemeConfig {
   int lifting = 0;
   // file: a parity-check matrix in capgap's sparse text format.
   std::string matrix_file;
-  std::string decoder = "min_sum_normalized";  // sum_product, min_sum_normalized, min_sum_offset
-  std::string schedule = "layered";            // flooding, layered
+  LdpcAlgorithm decoder = LdpcAlgorithm::kMinSumNormalized;
+  LdpcSchedule schedule = LdpcSchedule::kLayered;
   int max_iterations = 50;
-  std::string arithmetic = "auto";             // auto, int8, int16, float, float32
+  LdpcArithmetic arithmetic = LdpcArithmetic::kAuto;
   double normalization = 0.75;
   double offset = 0.5;
   // Refuse codes whose estimated memory (H, encoder, decoder x threads) is larger.

@@ -3,7 +3,9 @@
 // key_table.h).
 #include "sim/config/key_table.h"
 
+#include <algorithm>
 #include <set>
+#include <vector>
 
 #include "sim/config/text.h"
 
@@ -134,6 +136,49 @@ std::string KeyNames(std::span<const KeyTable> tables) {
       if (!out.empty()) out += ", ";
       out += k.name;
     }
+  }
+  return out;
+}
+
+namespace {
+
+// Levenshtein distance, capped: returns cap + 1 once it exceeds cap.
+std::size_t EditDistance(std::string_view a, std::string_view b, std::size_t cap) {
+  if ((a.size() > b.size() ? a.size() - b.size() : b.size() - a.size()) > cap) return cap + 1;
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diag = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t up = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diag + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      diag = up;
+    }
+  }
+  return std::min(row[b.size()], cap + 1);
+}
+
+}  // namespace
+
+std::string NearKeyNames(std::span<const KeyTable> tables, std::string_view key) {
+  const std::string_view stem = key.substr(0, key.find('_'));
+  std::vector<std::pair<std::size_t, std::string_view>> near;
+  std::set<std::string_view> seen;
+  for (const KeyTable& t : tables) {
+    for (const KeySpec& k : t.keys) {
+      const std::string_view name = k.name;
+      if (!seen.insert(name).second) continue;
+      const std::size_t d = EditDistance(key, name, 2);
+      const bool same_stem = stem.size() >= 3 && name.substr(0, name.find('_')) == stem;
+      if (d <= 2 || same_stem) near.emplace_back(d, name);
+    }
+  }
+  std::stable_sort(near.begin(), near.end(),
+                   [](const auto& x, const auto& y) { return x.first < y.first; });
+  std::string out;
+  for (std::size_t i = 0; i < near.size() && i < 5; ++i) {
+    out += (out.empty() ? "'" : ", '") + std::string(near[i].second) + "'";
   }
   return out;
 }

@@ -184,6 +184,12 @@ const KeySpec* FindKey(std::span<const KeyTable> tables, std::string_view name);
 // Every key name of `tables` in table order, each once: "a, b, c".
 std::string KeyNames(std::span<const KeyTable> tables);
 
+// For an unknown key: the declared keys nearest to it (edit distance at most
+// 2, or sharing its first word before '_'), at most five, as "'a', 'b'"; empty
+// when none is near. Keeps error lines short however many keys the families
+// declare.
+std::string NearKeyNames(std::span<const KeyTable> tables, std::string_view key);
+
 // Help text of `tables` under a heading line `section` ("[sweep]"), each
 // table after the first under "  -- TITLE (only with KEY = V)": per key
 // "  NAME = DEFAULT" (or "(required)", "(optional)") and an indented line

@@ -40,18 +40,15 @@ Status ParseConv(const ResolvedKeys& k, const std::string& /*source*/, SchemeCon
   c.generators = k.text("generators");
   c.constraint_length = static_cast<int>(k.integer("constraint_length"));
   c.puncture = k.text("puncture");
-  c.termination = k.text("termination");
-  c.decoder = k.text("decoder");
+  // The key table admitted only its words; each enum has one ParseX.
+  auto termination = ParseTermination(k.text("termination"));
+  if (!termination.ok()) return k.Fail("termination", termination.status().message());
+  c.termination = termination.value();
+  auto decoder = ParseConvDecoderKind(k.text("decoder"));
+  if (!decoder.ok()) return k.Fail("decoder", decoder.status().message());
+  c.decoder = decoder.value();
   c.traceback = static_cast<int>(k.integer("traceback"));
   return Status::Ok();
-}
-
-
-Result<ConvDecoderKind> ParseConvDecoder(const std::string& word) {
-  if (word == "viterbi_soft") return ConvDecoderKind::kViterbiSoft;
-  if (word == "viterbi_hard") return ConvDecoderKind::kViterbiHard;
-  if (word == "bcjr") return ConvDecoderKind::kBcjr;
-  return Status::Error("valid: viterbi_soft, viterbi_hard, bcjr");
 }
 
 Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
@@ -72,16 +69,14 @@ Result<std::shared_ptr<const ChannelCode>> BuildConv(const SchemeConfig& scheme,
     }
     spec.puncture = pat.value();
   }
-  spec.termination =
-      c.termination == "tailbiting" ? Termination::kTailBiting : Termination::kTerminated;
+  spec.termination = c.termination;
   auto code = ConvCode::Create(spec);
   if (!code.ok()) return Status::Error(p + "generators/puncture: " + code.status().message());
-  auto kind = ParseConvDecoder(c.decoder);
-  if (!kind.ok()) return Status::Error(p + "decoder = '" + c.decoder + "': " + kind.status().message());
-  auto built = ConvChannelCode::Create(code.value(), kind.value(),
+  auto built = ConvChannelCode::Create(code.value(), c.decoder,
                                        c.traceback == 0 ? -1 : c.traceback, scheme.frame_bits);
   if (!built.ok()) {
-    return Status::Error(p + "decoder = '" + c.decoder + "': " + built.status().message());
+    return Status::Error(p + "decoder = '" + ToString(c.decoder) + "': " +
+                         built.status().message());
   }
   const std::size_t coded = built.value()->coded_bits();
   const auto m = static_cast<std::size_t>(scheme.modulation.bits_per_symbol());
@@ -108,8 +103,8 @@ void AnalyseConv(const ChannelCode& code, const SchemeConfig& scheme, SchemeResu
   out.Add("generators", c.generators);
   out.Add("constraint_length", c.constraint_length);
   out.Add("puncture", c.puncture);
-  out.Add("termination", c.termination);
-  out.Add("decoder", c.decoder);
+  out.Add("termination", ToString(c.termination));
+  out.Add("decoder", ToString(c.decoder));
   out.Add("traceback", c.traceback);
   out.Add("code_rate_basis",
           std::string("effective rate: information bits / transmitted coded bits per frame, tail "

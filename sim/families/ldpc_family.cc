@@ -81,24 +81,34 @@ Status ParseLdpc(const ResolvedKeys& k, const std::string& source, SchemeConfig&
   LdpcSchemeConfig& c = s.ldpc;
   const Modulation& modulation = s.modulation;
   c.config_dir = std::filesystem::path(source).parent_path().string();
-  c.construction = k.text("construction");
-  if (c.construction == "peg") {
+  // The key table admitted only its words; each enum has one ParseX.
+  auto construction = ParseLdpcConstructionKind(k.text("construction"));
+  if (!construction.ok()) return k.Fail("construction", construction.status().message());
+  c.construction = construction.value();
+  if (c.construction == LdpcConstructionKind::kPeg) {
     if (Status s = CheckMultipleOfBitsPerSymbol(k, "length", modulation); !s.ok()) return s;
     c.length = static_cast<int>(k.integer("length"));
     c.rate = k.number("rate");
     c.degrees = k.text("degrees");
     c.construction_seed = k.integer("construction_seed");
-  } else if (c.construction == "qc") {
+  } else if (c.construction == LdpcConstructionKind::kQc) {
     c.base_matrix = k.text("base_matrix");
     c.lifting = static_cast<int>(k.integer("lifting"));
   } else {
     c.matrix_file = k.text("matrix_file");
   }
-  c.decoder = k.text("decoder");
-  c.schedule = k.text("schedule");
+  auto decoder = ParseLdpcAlgorithm(k.text("decoder"));
+  if (!decoder.ok()) return k.Fail("decoder", decoder.status().message());
+  c.decoder = decoder.value();
+  auto schedule = ParseLdpcSchedule(k.text("schedule"));
+  if (!schedule.ok()) return k.Fail("schedule", schedule.status().message());
+  c.schedule = schedule.value();
   c.max_iterations = static_cast<int>(k.integer("max_iterations"));
-  c.arithmetic = k.text("arithmetic");
-  if (c.decoder == "sum_product" && (c.arithmetic == "int8" || c.arithmetic == "int16")) {
+  auto arithmetic = ParseLdpcArithmetic(k.text("arithmetic"));
+  if (!arithmetic.ok()) return k.Fail("arithmetic", arithmetic.status().message());
+  c.arithmetic = arithmetic.value();
+  if (c.decoder == LdpcAlgorithm::kSumProduct &&
+      (c.arithmetic == LdpcArithmetic::kInt8 || c.arithmetic == LdpcArithmetic::kInt16)) {
     return k.Fail("arithmetic", "sum_product runs in float only (valid with it: auto, float)");
   }
   c.memory_limit_mb = k.integer("memory_limit_mb");
@@ -141,7 +151,7 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
   const LdpcSchemeConfig& c = scheme.ldpc;
   Result<LdpcCode> code = Status::Error("unset");
   bool checked = false;  // the memory estimate was made before construction
-  if (c.construction == "peg") {
+  if (c.construction == LdpcConstructionKind::kPeg) {
     auto degrees = ParseVariableDegrees(c.degrees);
     if (!degrees.ok()) {
       return Status::Error(p + "degrees = '" + c.degrees + "': " + degrees.status().message());
@@ -165,7 +175,7 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
     checked = true;
     code = BuildPegCode(spec);
     if (!code.ok()) return code.status().WithPrefix(p + "length/rate/degrees: ");
-  } else if (c.construction == "qc") {
+  } else if (c.construction == LdpcConstructionKind::kQc) {
     auto base = ReadBaseMatrixFile(c.ResolvePath(c.base_matrix));
     if (!base.ok()) return Status::Error(p + "base_matrix: " + base.status().message());
     const BaseMatrix& b = base.value();
@@ -185,11 +195,9 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
     if (!code.ok()) {
       return Status::Error(p + "lifting = " + std::to_string(z) + ": " + code.status().message());
     }
-  } else if (c.construction == "file") {
+  } else {  // LdpcConstructionKind::kFile
     code = ReadLdpcMatrixFile(c.ResolvePath(c.matrix_file));
     if (!code.ok()) return Status::Error(p + "matrix_file: " + code.status().message());
-  } else {
-    return Status::Error(p + "construction = '" + c.construction + "': valid: peg, qc, file");
   }
   if (!checked) {
     // A matrix file: H is read (its size bounded by the file's), the
@@ -210,22 +218,10 @@ Result<std::shared_ptr<const ChannelCode>> BuildLdpc(const SchemeConfig& scheme,
                          std::to_string(m) + " bits per symbol of " + ToString(scheme.modulation));
   }
   LdpcDecoderOptions opt;
-  auto algorithm = ParseLdpcAlgorithm(c.decoder);
-  if (!algorithm.ok()) {
-    return Status::Error(p + "decoder = '" + c.decoder + "': " + algorithm.status().message());
-  }
-  opt.algorithm = algorithm.value();
-  auto schedule = ParseLdpcSchedule(c.schedule);
-  if (!schedule.ok()) {
-    return Status::Error(p + "schedule = '" + c.schedule + "': " + schedule.status().message());
-  }
-  opt.schedule = schedule.value();
+  opt.algorithm = c.decoder;
+  opt.schedule = c.schedule;
   opt.max_iterations = c.max_iterations;
-  auto arithmetic = ParseLdpcArithmetic(c.arithmetic);
-  if (!arithmetic.ok()) {
-    return Status::Error(p + "arithmetic = '" + c.arithmetic + "': " + arithmetic.status().message());
-  }
-  opt.arithmetic = arithmetic.value();
+  opt.arithmetic = c.arithmetic;
   opt.normalization = static_cast<float>(c.normalization);
   opt.offset = static_cast<float>(c.offset);
   auto built = LdpcChannelCode::Create(std::move(shared), opt, context.stop);
@@ -243,7 +239,7 @@ void AnalyseLdpc(const ChannelCode& channel_code, const SchemeConfig& scheme, Sc
   const DegreeProfile profile = ComputeDegreeProfile(code);
   const LdpcDecoderOptions& o = ldpc.decoder().options();
   CodeReport& out = r.code;
-  out.Add("construction", c.construction);
+  out.Add("construction", ToString(c.construction));
   out.Add("description", code.description());
   out.Add("length", code.length());
   out.Add("info_bits", ldpc.encoder().info_bits());

@@ -49,7 +49,8 @@ std::string FormatSummaryTable(const StoredRun& run) {
                   "All Eb/N0 values in dB at BER %.0e. rho: information bits per symbol; eta: "
                   "spectral efficiency in bit/s/Hz\n(shaped schemes: rho / measured 99 %% "
                   "bandwidth; unshaped: rho, ideal Nyquist); ideal: rho / (1 + roll-off);\ntheory: uncoded "
-                  "closed form; gain = theory - simulated; Shannon: (2^eta-1)/eta;\nconstr: "
+                  "closed form (union bound for generic constellations such as 16apsk); gain = "
+                  "theory - simulated;\nShannon: (2^eta-1)/eta; constr: "
                   "constellation-constrained capacity limit at rho (inf for uncoded schemes); "
                   "'-': curve did not reach the target.\n",
                   target);

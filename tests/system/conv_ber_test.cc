@@ -31,7 +31,7 @@ SchemeConfig K7(const char* decoder) {
   s.code = "conv";
   s.conv.generators = "133,171";
   s.conv.constraint_length = 7;
-  s.conv.decoder = decoder;
+  s.conv.decoder = ParseConvDecoderKind(decoder).value();
   return s;
 }
 

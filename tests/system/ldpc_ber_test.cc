@@ -31,12 +31,12 @@ SchemeConfig Ldpc(const char* modulation, const char* decoder, const char* sched
   s.modulation = ParseModulation(modulation).value();
   s.demapper = DemapMethod::kMaxLog;
   s.code = "ldpc";
-  s.ldpc.construction = "peg";
+  s.ldpc.construction = LdpcConstructionKind::kPeg;
   s.ldpc.length = 2016;
   s.ldpc.rate = 0.5;
   s.ldpc.degrees = "3";
-  s.ldpc.decoder = decoder;
-  s.ldpc.schedule = schedule;
+  s.ldpc.decoder = ParseLdpcAlgorithm(decoder).value();
+  s.ldpc.schedule = ParseLdpcSchedule(schedule).value();
   s.ldpc.max_iterations = 50;
   return s;
 }
@@ -201,7 +201,7 @@ TEST(LdpcChain, MatrixFileConstructionGivesThePegSchemesCounts) {
   ASSERT_TRUE(WriteLdpcMatrixFile((dir / "peg.txt").string(), code.value()).ok());
   SchemeConfig peg = Ldpc("qpsk", "min_sum_normalized");
   SchemeConfig file = peg;
-  file.ldpc.construction = "file";
+  file.ldpc.construction = LdpcConstructionKind::kFile;
   file.ldpc.matrix_file = "peg.txt";
   file.ldpc.config_dir = dir.string();  // relative paths resolve against the config's directory
   auto a = Chain::Create(peg, 11);

@@ -153,6 +153,74 @@ TEST(PolarDecoders, SclWithListOneEqualsScOnRandomLlrs) {
   }
 }
 
+TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
+  // Rate-0, rate-1 and repetition nodes against the plain recursion, on
+  // random LLRs with exact zeros (+0 and -0), punctured (LLR 0) and
+  // shortened (1e20) positions, at several rates and constructions: u_hat
+  // and x_hat identical bit for bit (K from 1 to N, so every node kind
+  // occurs).
+  std::mt19937 rng(9);
+  std::normal_distribution<float> noise(0.0f, 2.0f);
+  int frames = 0;
+  for (int e : {16, 100, 256, 1000, 4096}) {
+    for (int k : {1, e / 8, e / 2, 7 * e / 8, e}) {
+      for (PolarConstruction c : {PolarConstruction::kGa, PolarConstruction::kBeta}) {
+        const PolarCode code = MakeCode(e, k, c);
+        PolarScDecoder fast(code, true), plain(code, false);
+        auto fw = fast.MakeWorkspace();
+        auto pw = plain.MakeWorkspace();
+        const auto n = static_cast<std::size_t>(code.mother_length);
+        std::vector<Bit> u1(n), x1(n), u2(n), x2(n);
+        std::vector<float> llr(n);
+        for (int trial = 0; trial < 20; ++trial) {
+          for (auto& l : llr) l = 1.0f + noise(rng);
+          for (std::size_t j = 0; j < n; ++j) {
+            const unsigned r = rng() % 16;
+            if (r == 0) llr[j] = 0.0f;
+            if (r == 1) llr[j] = -0.0f;
+            if (r == 2) llr[j] = -llr[j];
+          }
+          if (code.rate_matching == PolarRateMatching::kPuncture) {
+            for (int j = 0; j < code.first_transmitted(); ++j) llr[static_cast<std::size_t>(j)] = 0;
+          } else if (code.rate_matching == PolarRateMatching::kShorten) {
+            for (std::size_t j = static_cast<std::size_t>(e); j < n; ++j) llr[j] = 1e20f;
+          }
+          fast.Decode(llr, u1, x1, fw);
+          plain.Decode(llr, u2, x2, pw);
+          ASSERT_EQ(u1, u2) << "E " << e << " K " << k << " " << ToString(c) << " " << trial;
+          ASSERT_EQ(x1, x2);
+          ++frames;
+        }
+      }
+    }
+  }
+  EXPECT_EQ(frames, 5 * 5 * 2 * 20);
+}
+
+TEST(PolarDecoders, Rate1AndRepetitionNodesDecideAsTheirClosedForms) {
+  // A rate-1 subtree with nonzero LLRs returns hard decisions at once: for
+  // K = N every node is rate-1, and x_hat must equal the hard decisions.
+  const PolarCode all = MakeCode(64, 64);
+  PolarScDecoder fast(all, true);
+  auto ws = fast.MakeWorkspace();
+  std::vector<float> llr(64);
+  std::mt19937 rng(10);
+  for (auto& l : llr) l = (rng() & 1u) ? -1.5f : 2.0f;
+  std::vector<Bit> u(64), x(64);
+  fast.Decode(llr, u, x, ws);
+  for (std::size_t j = 0; j < 64; ++j) EXPECT_EQ(x[j], llr[j] < 0 ? 1 : 0);
+  // K = 1: the only information bit is u_{N-1} (most reliable), a
+  // repetition code: every x_j equals the sign of the LLR sum.
+  const PolarCode rep = MakeCode(64, 1);
+  ASSERT_EQ(rep.info_positions[0], 63);
+  PolarScDecoder fr(rep, true);
+  auto rws = fr.MakeWorkspace();
+  float sum = 0;
+  for (auto l : llr) sum += l;
+  fr.Decode(llr, u, x, rws);
+  for (std::size_t j = 0; j < 64; ++j) EXPECT_EQ(x[j], sum < 0 ? 1 : 0);
+}
+
 // Genie SC written from the definitions (header comment of polar_decoder.h)
 // with decisions forced to u: the leaf LLRs along that path; returns x = u G.
 std::vector<Bit> GenieLeaves(const std::vector<float>& l, const Bit* u, float* leaf) {

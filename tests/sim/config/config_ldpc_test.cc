@@ -23,12 +23,12 @@ TEST(ConfigLdpc, DefaultsArePegRateHalfLayeredNormalisedMinSum) {
   auto r = ParseRunConfig(Scheme(""), "dir/test.ini", {});
   ASSERT_TRUE(r.ok()) << r.status().message();
   const LdpcSchemeConfig& c = r.value().schemes[0].ldpc;
-  EXPECT_EQ(c.construction, "peg");
+  EXPECT_EQ(c.construction, LdpcConstructionKind::kPeg);
   EXPECT_EQ(c.length, 2016);
   EXPECT_DOUBLE_EQ(c.rate, 0.5);
   EXPECT_EQ(c.degrees, "3");
-  EXPECT_EQ(c.decoder, "min_sum_normalized");
-  EXPECT_EQ(c.schedule, "layered");
+  EXPECT_EQ(c.decoder, LdpcAlgorithm::kMinSumNormalized);
+  EXPECT_EQ(c.schedule, LdpcSchedule::kLayered);
   EXPECT_EQ(c.max_iterations, 50);
   EXPECT_DOUBLE_EQ(c.normalization, 0.75);
   EXPECT_EQ(c.config_dir, "dir");

@@ -128,6 +128,26 @@ TEST(Theory, RangeEndsAreAcceptedAndGiveFiniteNumbers) {
   EXPECT_EQ(r.out.find("nan"), std::string::npos) << r.out;
 }
 
+TEST(Theory, GenericConstellationTableIsTheUnionBoundAndSaysSo) {
+  // 16apsk comes from the constellation registry; its table is the union
+  // bound over its points (analysis/constellation_bounds.h), labelled as such,
+  // and it has finite limits once a code lowers rho.
+  Outcome r = Theory(Table("16apsk", "12", 0.75));
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(r.out.rfind("16apsk, uncoded BER/SER on AWGN (union bound over the points)\n", 0), 0u)
+      << r.out;
+  EXPECT_EQ(r.out.find("nan"), std::string::npos) << r.out;
+  EXPECT_EQ(r.out.find("inf dB"), std::string::npos) << r.out;
+  r = Theory(Table("16qam", "12", 1.0));
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(r.out.rfind("16qam, uncoded BER/SER on AWGN (exact, Gray labelling)\n", 0), 0u)
+      << r.out;
+  const Outcome bad = Theory(Table("16apskx", "12", 1.0));
+  EXPECT_EQ(bad.status, kExitUsage);
+  EXPECT_NE(bad.err.find("unknown modulation '16apskx'; valid: "), std::string::npos) << bad.err;
+  EXPECT_NE(bad.err.find("16apsk (4+12 rings, ratio 2.85)"), std::string::npos) << bad.err;
+}
+
 TEST(Summary, UnreadableFileGives1WithTheReason) {
   std::ostringstream out, err;
   EXPECT_EQ(RunSummary(std::string(CAPGAP_SOURCE_DIR) + "/configs/ci_tiny.ini", out, err), 1);
