@@ -35,14 +35,13 @@ int Parity(std::uint32_t x) { return std::popcount(x) & 1; }
 }  // namespace
 
 Result<Termination> ParseTermination(std::string_view word) {
-  if (word == "terminated" || word == "tail") return Termination::kTerminated;
+  if (word == "tail") return Termination::kTerminated;
   if (word == "tailbiting") return Termination::kTailBiting;
-  return Status::Error("unknown termination '" + std::string(word) +
-                       "'; valid: terminated, tailbiting");
+  return Status::Error("unknown termination '" + std::string(word) + "'; valid: tail, tailbiting");
 }
 
 std::string ToString(Termination termination) {
-  return termination == Termination::kTailBiting ? "tailbiting" : "terminated";
+  return termination == Termination::kTailBiting ? "tailbiting" : "tail";
 }
 
 Result<std::vector<std::uint32_t>> ParseGenerators(std::string_view text) {

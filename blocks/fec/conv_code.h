@@ -49,9 +49,8 @@
 namespace capgap {
 
 enum class Termination { kTerminated, kTailBiting };
-// Words "terminated", "tailbiting"; an error message lists them. "tail" (the
-// word of the config key `termination`, K-1 zero tail bits) is accepted as
-// another spelling of "terminated".
+// Words "tail" (K-1 zero tail bits) and "tailbiting", the words of the config
+// key `termination` and of the HDF5 attribute; an error message lists them.
 Result<Termination> ParseTermination(std::string_view word);
 std::string ToString(Termination termination);
 

@@ -181,9 +181,9 @@ TEST(ConvCode, CreateRejectsCatastrophicCode) {
 
 TEST(ParseTermination, RoundTripsAndListsWords) {
   EXPECT_EQ(ParseTermination("tailbiting").value(), Termination::kTailBiting);
-  EXPECT_EQ(ToString(Termination::kTerminated), "terminated");
+  EXPECT_EQ(ToString(Termination::kTerminated), "tail");
   EXPECT_EQ(ParseTermination("zero").status().message(),
-            "unknown termination 'zero'; valid: terminated, tailbiting");
+            "unknown termination 'zero'; valid: tail, tailbiting");
 }
 
 }  // namespace

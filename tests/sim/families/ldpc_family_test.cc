@@ -48,8 +48,8 @@ TEST(LdpcMemory, HugePegCodeIsRefusedNamingLengthLimitAndEstimate) {
   const LdpcMemoryEstimate e =
       EstimateLdpcMemory(1 << 20, 1 << 19, 3 << 20, false, 64, /*threads=*/1);
   // The encoder's part by hand (arithmetic): m n / 8 elimination bits +
-  // nibble tables (16 entries per 4 information bits, m / 8 bytes each:
-  // m (n - m) / 2 bytes) + n flags = 64 GiB + 128 GiB + 1 MiB.
+  // nibble tables of 16 entries x 512 parity bits per four info bits and 512
+  // parity rows, m (n - m) / 2 bytes, + n flags = 64 GiB + 128 GiB + 1 MiB.
   EXPECT_EQ(CeilMegabytes(e.encoder_bytes), 196609u);
   EXPECT_EQ(ErrorOf(huge),
             "scheme.a.length = 1048576 with construction = peg (n = 1048576, m = 524288): needs "
