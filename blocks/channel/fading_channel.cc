@@ -4,6 +4,8 @@
 #include <algorithm>
 
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/fading_kernels.h"
+#include "blocks/kernels/fading_reference.h"
 
 namespace capgap {
 
@@ -38,51 +40,40 @@ void FadingChannel::Apply(std::span<cf32> samples, int samples_per_symbol, RngSt
   const auto sigma = static_cast<float>(level_.sigma_per_dim);
   float* n0_out = storage.n0.data();
   cf32* x = samples.data();
-  // Smallest combined gain used: a gain of exactly 0 (probability 0 in
-  // theory, possible in float) would divide by zero.
-  constexpr float kMinGain = 1e-30f;
+  // The complex arithmetic runs in the fading kernels (bit-identical to
+  // their scalar oracle on every target); selection stays scalar here.
+  float* xf = reinterpret_cast<float*>(x);
+  const float* hf = reinterpret_cast<const float*>(h);
   if (l_count == 1) {
     // r = h x + n, then z = h* r / |h|^2 in place.
-    for (std::size_t i = 0; i < n; ++i) x[i] *= h[i];
+    FadingMultiplyGain(hf, xf, xf, n);
     AddComplexNoise(samples, sigma, noise);
-    for (std::size_t i = 0; i < n; ++i) {
-      const float g = std::max(std::norm(h[i]), kMinGain);
-      const float inv = 1.0f / g;
-      x[i] = std::conj(h[i]) * x[i] * inv;
-      n0_out[i] = n0 * inv;
-    }
+    FadingEqualiseOne(hf, xf, n0, n0_out, n);
   } else {
     if (ps.branch.size() < n * l_count) ps.branch.resize(n * l_count);
-    cf32* r = ps.branch.data();
-    for (std::size_t l = 0; l < l_count; ++l) {
-      for (std::size_t i = 0; i < n; ++i) r[l * n + i] = h[l * n + i] * x[i];
-    }
-    AddComplexNoise(std::span<cf32>(r, n * l_count), sigma, noise);
-    const bool mrc = process_.spec().combining == Combining::kMrc;
-    for (std::size_t i = 0; i < n; ++i) {
-      cf32 num(0.0f, 0.0f);
-      float g = 0.0f;
-      if (mrc) {
-        for (std::size_t l = 0; l < l_count; ++l) {
-          num += std::conj(h[l * n + i]) * r[l * n + i];
-          g += std::norm(h[l * n + i]);
-        }
-      } else {
-        std::size_t best = 0;
-        float best_g = std::norm(h[i]);
+    float* rf = reinterpret_cast<float*>(ps.branch.data());
+    for (std::size_t l = 0; l < l_count; ++l) FadingMultiplyGain(hf + 2 * l * n, xf, rf + 2 * l * n, n);
+    AddComplexNoise(std::span<cf32>(ps.branch.data(), n * l_count), sigma, noise);
+    if (process_.spec().combining == Combining::kMrc) {
+      FadingCombineMrc(hf, rf, n, l_count, n0, xf, n0_out);
+    } else {
+      for (std::size_t i = 0; i < n; ++i) {
+        std::size_t best = 2 * i;
+        float g = hf[best] * hf[best] + hf[best + 1] * hf[best + 1];
         for (std::size_t l = 1; l < l_count; ++l) {
-          const float gl = std::norm(h[l * n + i]);
-          if (gl > best_g) {
-            best_g = gl;
-            best = l;
+          const std::size_t k = 2 * (l * n + i);
+          const float gl = hf[k] * hf[k] + hf[k + 1] * hf[k + 1];
+          if (gl > g) {
+            g = gl;
+            best = k;
           }
         }
-        num = std::conj(h[best * n + i]) * r[best * n + i];
-        g = best_g;
+        const float hr = hf[best], hi = hf[best + 1], rr = rf[best], ri = rf[best + 1];
+        const float inv = 1.0f / std::max(g, reference::kMinCombinedGain);
+        xf[2 * i] = (hr * rr + hi * ri) * inv;
+        xf[2 * i + 1] = (hr * ri - hi * rr) * inv;
+        n0_out[i] = n0 * inv;
       }
-      const float inv = 1.0f / std::max(g, kMinGain);
-      x[i] = num * inv;
-      n0_out[i] = n0 * inv;
     }
   }
   state = ChannelStateView{{}, std::span<const float>(n0_out, n), n0};

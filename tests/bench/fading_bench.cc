@@ -1,11 +1,13 @@
 // Cost of fading in the uncoded chain: 16-QAM max-log over fast Rayleigh
 // (one branch, and two with MRC) against the same chain over AWGN, one
-// thread, in the same run (runs alternate between the channels so machine
-// noise hits both alike), median of the per-round ratios. The issue's
+// thread, in the same run (units alternate between the channels so machine
+// noise hits all alike; thread CPU time), median of the per-round ratios. The issue's
 // target: fast Rayleigh at most 1.4x the AWGN chain's time.
 //   build/bench/fading_bench [--repeats N] [--units N]
 #include <algorithm>
 #include <chrono>
+#include <ctime>
+#include <memory>
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
@@ -19,7 +21,6 @@
 namespace capgap {
 namespace {
 
-using Clock = std::chrono::steady_clock;
 
 double Median(std::vector<double> v) {
   std::sort(v.begin(), v.end());
@@ -38,16 +39,36 @@ SchemeConfig Scheme(FadingLaw law, int branches, DemapMethod demapper) {
   return s;
 }
 
-// Seconds for `units` units at 12 dB.
-double Time(const Chain& chain, int units, std::uint64_t& sink) {
-  const auto channel = chain.MakePointChannel(12.0);
-  ChainWorkspace ws = chain.MakeWorkspace();
-  sink += chain.RunUnit(*channel, 0, 0, ws).bit_errors;  // warm-up
-  const auto t0 = Clock::now();
-  for (int u = 0; u < units; ++u) {
-    sink += chain.RunUnit(*channel, 1, static_cast<std::uint32_t>(u), ws).bit_errors;
+// Thread CPU seconds (less disturbed by other processes on a shared
+// machine than wall time).
+double CpuSeconds() {
+  timespec ts{};
+  clock_gettime(CLOCK_THREAD_CPUTIME_ID, &ts);
+  return static_cast<double>(ts.tv_sec) + 1e-9 * static_cast<double>(ts.tv_nsec);
+}
+
+// One round: `units` units of each chain at 12 dB, alternating unit by unit
+// so that machine noise hits every chain alike; CPU seconds per chain.
+std::vector<double> Round(const std::vector<const Chain*>& chains, int units, int round,
+                          std::uint64_t& sink) {
+  std::vector<std::unique_ptr<const Channel>> channels;
+  std::vector<ChainWorkspace> ws;
+  for (const Chain* c : chains) {
+    channels.push_back(c->MakePointChannel(12.0));
+    ws.push_back(c->MakeWorkspace());
+    sink += c->RunUnit(*channels.back(), 0, 0, ws.back()).bit_errors;  // warm-up
   }
-  return std::chrono::duration<double>(Clock::now() - t0).count();
+  std::vector<double> t(chains.size(), 0.0);
+  for (int u = 0; u < units; ++u) {
+    for (std::size_t c = 0; c < chains.size(); ++c) {
+      const double t0 = CpuSeconds();
+      sink += chains[c]
+                  ->RunUnit(*channels[c], 1, static_cast<std::uint32_t>(round * units + u), ws[c])
+                  .bit_errors;
+      t[c] += CpuSeconds() - t0;
+    }
+  }
+  return t;
 }
 
 }  // namespace
@@ -74,11 +95,12 @@ int main(int argc, char** argv) {
     const Chain ray2 = Chain::Create(Scheme(FadingLaw::kRayleigh, 2, method), 1).value();
     std::vector<double> t_awgn, t_ray1, t_ray2, r1, r2;
     for (int r = 0; r < repeats; ++r) {
-      t_awgn.push_back(Time(awgn, units, sink));
-      t_ray1.push_back(Time(ray1, units, sink));
-      t_ray2.push_back(Time(ray2, units, sink));
-      r1.push_back(t_ray1.back() / t_awgn.back());
-      r2.push_back(t_ray2.back() / t_awgn.back());
+      const std::vector<double> t = Round({&awgn, &ray1, &ray2}, units, r, sink);
+      t_awgn.push_back(t[0]);
+      t_ray1.push_back(t[1]);
+      t_ray2.push_back(t[2]);
+      r1.push_back(t[1] / t[0]);
+      r2.push_back(t[2] / t[0]);
     }
     const double bits = static_cast<double>(awgn.unit_bits()) * units;
     std::printf("16qam %s: awgn %.1f Mbit/s, rayleigh fast %.1f Mbit/s (time ratio %.2f), "
