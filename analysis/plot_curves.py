@@ -423,6 +423,18 @@ def _draw_fer_gap(ax, s, colour, y):
                           alpha=0.8))
 
 
+def _draw_target_line(ax, t, rate_word):
+    """The horizontal target line with its label at the left end: at low
+    Eb/N0 every curve is still above the target, so that corner is free."""
+    ax.axhline(t, color="#222222", linewidth=0.9, zorder=2.5)
+    ax.annotate(f"target {rate_word} {t:.0e}".replace("e-0", "e-"), xy=(0.0, t),
+                xycoords=("axes fraction", "data"), xytext=(4, 2.5),
+                textcoords="offset points", ha="left", va="bottom",
+                fontsize=8.5, color="#222222",
+                bbox=dict(boxstyle="square,pad=0.1", facecolor="white",
+                          edgecolor="none", alpha=0.8))
+
+
 def _draw_gap(ax, s, colour, y):
     """Arrow from the Shannon limit (fading schemes: the ergodic limit) to
     the Eb/N0 reached at target_ber.
@@ -547,15 +559,7 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
                                      linewidth=1.4, label=s.label()))
     if rate == "ber":
         for t in sorted({s.target_ber for s in schemes}):
-            ax.axhline(t, color="#222222", linewidth=0.9, zorder=2.5)
-            # Label at the left end: at low Eb/N0 every curve is still above
-            # the target, so that corner is free.
-            ax.annotate(f"target BER {t:.0e}".replace("e-0", "e-"), xy=(0.0, t),
-                        xycoords=("axes fraction", "data"), xytext=(4, 2.5),
-                        textcoords="offset points", ha="left", va="bottom",
-                        fontsize=8.5, color="#222222",
-                        bbox=dict(boxstyle="square,pad=0.1", facecolor="white",
-                                  edgecolor="none", alpha=0.8))
+            _draw_target_line(ax, t, "BER")
         # Stagger the gap arrows so several schemes stay legible: the first
         # sits on its target line, the others step down by 4.5 % of the axes
         # height each (the region left of the curves is empty there).
@@ -572,13 +576,7 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
         targets = sorted({s.target_fer for s in schemes if math.isfinite(s.target_fer)
                           and s.fl_ebno is not None})
         for t in targets:
-            ax.axhline(t, color="#222222", linewidth=0.9, zorder=2.5)
-            ax.annotate(f"target FER {t:.0e}".replace("e-0", "e-"), xy=(0.0, t),
-                        xycoords=("axes fraction", "data"), xytext=(4, 2.5),
-                        textcoords="offset points", ha="left", va="bottom",
-                        fontsize=8.5, color="#222222",
-                        bbox=dict(boxstyle="square,pad=0.1", facecolor="white",
-                                  edgecolor="none", alpha=0.8))
+            _draw_target_line(ax, t, "FER")
         step = 0.045 * math.log10(y_lim[1] / y_lim[0])
         per_target = {}
         for i, s in enumerate(schemes):
