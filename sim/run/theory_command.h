@@ -28,7 +28,7 @@ inline constexpr double kTheoryMaxBandwidthHz = 1e15;
 struct TheoryOptions {
   // Uncoded tables.
   std::optional<std::string> modulation;  // --modulation
-  std::optional<std::string> ebno_db;     // --ebno-db START:STEP:STOP or a list
+  std::optional<std::string> ebno_db;     // --ebno-db FROM to TO by STEP or a list
   std::optional<double> rate;             // --rate (default 1)
   bool csv = false;                       // --csv
   // Shannon-Hartley.

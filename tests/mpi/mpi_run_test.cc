@@ -65,9 +65,9 @@ RunOutput RunMpi(int np, const std::vector<std::string>& capgap_args, const fs::
 // mid-sweep: ci_resume.ini's first 6 points with 150x the errors per point
 // (about 4 s on one core here).
 std::vector<std::string> Heavy(std::vector<std::string> extra) {
-  std::vector<std::string> a = {"--set", "sweep.ebno_db=0:1:5", "--set",
-                                "sweep.target_errors=3000000", "--set",
-                                "sweep.max_bits=1000000000"};
+  std::vector<std::string> a = {"--set", "sweep.ebno_db=0 to 5 by 1", "--set",
+                                "sweep.stop_bit_errors=3000000", "--set",
+                                "sweep.stop_bits=1000000000"};
   a.insert(a.end(), extra.begin(), extra.end());
   return a;
 }
@@ -177,7 +177,7 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
 // target): 2 and 3 ranks write the counts of one process with one thread.
 TEST(MpiRun, FrameErrorStoppingGivesTheCountsOfOneThread) {
   const fs::path dir = TempDir("frames");
-  const std::vector<std::string> frames = {"--set", "sweep.target_errors=0", "--set",
+  const std::vector<std::string> frames = {"--set", "sweep.stop_bit_errors=0", "--set",
                                            "sweep.stop_frame_errors=150", "--quiet"};
   std::vector<std::string> one = frames;
   one.insert(one.end(), {"--threads", "1"});
@@ -267,8 +267,8 @@ TEST(MpiRun, SigtermToMpirunLeavesACheckpointASingleProcessResumes) {
 TEST(MpiRun, SigtermDuringALongUnitStopsEveryRankWithin2s) {
   const fs::path dir = TempDir("long_unit");
   const std::string config = (dir / "k9.ini").string();
-  std::ofstream(config) << "[sweep]\nebno_db = 2\ntarget_errors = 100000000\n"
-                           "max_bits = 1000000000\nseed = 1\ncheckpoint_seconds = 0.05\n"
+  std::ofstream(config) << "[sweep]\nebno_db = 2\nstop_bit_errors = 100000000\n"
+                           "stop_bits = 1000000000\nseed = 1\ncheckpoint_seconds = 0.05\n"
                            "[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\n"
                            "constraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\n"
                            "unit_frames = 2000\n";

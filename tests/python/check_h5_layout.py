@@ -102,7 +102,7 @@ except Exception:  # pragma: no cover - depends on the interpreter
 
 FORMAT_NAME = "capgap-curves"
 FORMAT_VERSION = 1
-STOP_REASONS = ("target_errors", "stop_frame_errors", "max_bits")
+STOP_REASONS = ("stop_bit_errors", "stop_frame_errors", "stop_bits")
 ROOT_STRING_ATTRS = ("format", "program_version", "git_revision", "created_utc",
                      "command_line", "config", "kernel_target")
 POINT_FLOAT = ("ebno_db", "esno_db", "ber", "ber_low", "ber_high", "fer",

@@ -45,7 +45,7 @@ import numpy as np
 ALPHA = 0.05  # 95 % two-sided interval.
 BITS_PER_FRAME = 1000
 TARGET_ERRORS = 200
-MAX_FRAMES = 20000  # max_bits = 2e7
+MAX_FRAMES = 20000  # stop_bits = 2e7
 TARGET_BER = 1e-5
 
 
@@ -188,10 +188,10 @@ def simulate_points(rng, ebno_grid, ber_fn):
         hit = np.nonzero(cum >= TARGET_ERRORS)[0]
         if hit.size:
             frames = int(hit[0]) + 1
-            reason = "target_errors"
+            reason = "stop_bit_errors"
         else:
             frames = MAX_FRAMES
-            reason = "max_bits"
+            reason = "stop_bits"
         used = per_frame[:frames]
         out["bits"].append(frames * BITS_PER_FRAME)
         out["bit_errors"].append(int(used.sum()))

@@ -49,15 +49,15 @@ fs::path TempDir() {
 TEST(Cli, BadConfigValueGivesOneLineAndNoFile) {
   const fs::path out = TempDir() / "bad.h5";
   const Output o = Capgap("run " + Config("ci_tiny.ini") + " -o " + out.string() +
-                          " --quiet --set sweep.target_errors=-5");
+                          " --quiet --set sweep.stop_bit_errors=-5");
   EXPECT_EQ(o.status, 1);
   EXPECT_EQ(o.text, "capgap: " + Config("ci_tiny.ini") +
-                        ": sweep.target_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
+                        ": sweep.stop_bit_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
   EXPECT_FALSE(fs::exists(out));
 }
 
 TEST(Cli, UnknownModulationListsValidWords) {
-  const Output o = Capgap("theory --modulation 12qam --ebno-db 0:1:2");
+  const Output o = Capgap("theory --modulation 12qam --ebno-db 0 to 2 by 1");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--modulation = '12qam'"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("256qam"), std::string::npos) << o.text;
@@ -65,6 +65,13 @@ TEST(Cli, UnknownModulationListsValidWords) {
 
 TEST(Cli, MalformedRangeAndUnknownCommandAreUsageErrors) {
   EXPECT_EQ(Capgap("theory --modulation qpsk --ebno-db 0:1").status, 2);
+  const Output colon = Capgap("theory --modulation qpsk --ebno-db 0:0.5:2");
+  EXPECT_EQ(colon.status, 2);
+  EXPECT_NE(colon.text.find("--ebno-db = '0:0.5:2': the START:STEP:STOP form is no longer "
+                            "accepted; write a range as FROM to TO by STEP (inclusive), here '0 "
+                            "to 2 by 0.5'"),
+            std::string::npos)
+      << colon.text;
   const Output o = Capgap("simulate x");
   EXPECT_EQ(o.status, 2);
   EXPECT_EQ(o.text, "capgap: unknown command 'simulate'; commands: run, theory, summary (capgap --help)\n");
@@ -120,7 +127,7 @@ TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
 // BPSK Pb = Q(sqrt(2 Eb/N0)) = 1.2501e-2 at 4 dB (Proakis & Salehi, Digital
 // Communications, 5th ed., ch. 4; evaluated with scipy.special.erfc).
 TEST(Cli, TheoryCsvIsMachineReadable) {
-  const Output o = Capgap("theory --modulation bpsk --ebno-db 0:2:4 --rate 0.5 --csv");
+  const Output o = Capgap("theory --modulation bpsk --ebno-db 0 to 4 by 2 --rate 0.5 --csv");
   ASSERT_EQ(o.status, 0) << o.text;
   EXPECT_NE(o.text.find("# info_bits_per_symbol = 0.5\n"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("# shannon_ebno_db = "), std::string::npos);
@@ -130,6 +137,25 @@ TEST(Cli, TheoryCsvIsMachineReadable) {
   ASSERT_NE(row, std::string::npos) << o.text;
   const double ber = std::strtod(o.text.c_str() + row + 5, nullptr);
   EXPECT_NEAR(ber, 1.2501e-2, 1e-6) << o.text;
+}
+
+// The range may be one quoted argument or separate words: same table.
+TEST(Cli, TheoryRangeQuotedOrAsWordsGivesTheSameTable) {
+  const Output words = Capgap("theory --modulation bpsk --ebno-db 0 to 4 by 2 --csv");
+  const Output quoted = Capgap("theory --modulation bpsk --ebno-db '0 to 4 by 2' --csv");
+  const Output list = Capgap("theory --modulation bpsk --ebno-db 0,2,4 --csv");
+  ASSERT_EQ(words.status, 0) << words.text;
+  EXPECT_EQ(words.text, quoted.text);
+  EXPECT_EQ(words.text, list.text);
+  EXPECT_NE(words.text.find("\n4,4,"), std::string::npos) << words.text;
+}
+
+TEST(Cli, RenamedKeyInSetNamesTheNewKey) {
+  const Output o = Capgap("run " + Config("ci_tiny.ini") + " --set sweep.max_bits=1000 -o /tmp/x.h5");
+  EXPECT_EQ(o.status, 1) << o.text;
+  EXPECT_NE(o.text.find("key '--set sweep.max_bits' was renamed: write 'sweep.stop_bits'"),
+            std::string::npos)
+      << o.text;
 }
 
 // Shannon-Hartley: B = 1 MHz at 20 dB gives 1e6 log2(101) = 6.658 Mbit/s (arithmetic).
@@ -184,14 +210,14 @@ TEST(Cli, TheoryRefusesNonFiniteOutOfRangeAndConflictingValues) {
   o = Capgap("theory --bandwidth 1e6 --snr-db 1e308");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--snr-db = 1e+308"), std::string::npos) << o.text;
-  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --rate 1e-300");
+  o = Capgap("theory --modulation qpsk --ebno-db 0 to 2 by 1 --rate 1e-300");
   EXPECT_EQ(o.status, 2);
   EXPECT_EQ(o.text, "capgap: theory: --rate = 1e-300: must be a number in [1e-06, 1] (code rate)\n");
   o = Capgap("theory --bandwidth=-1 --snr-db 3");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--bandwidth = -1: must be a number in (0, 1e+15] Hz"), std::string::npos)
       << o.text;
-  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --bandwidth 1e6 --snr-db 3");
+  o = Capgap("theory --modulation qpsk --ebno-db 0 to 2 by 1 --bandwidth 1e6 --snr-db 3");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--bandwidth/--snr-db"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("--modulation/--ebno-db"), std::string::npos) << o.text;

@@ -14,7 +14,7 @@ namespace {
 
 constexpr char kBase[] = R"(
 [sweep]
-ebno_db = 0:5:10
+ebno_db = 0 to 10 by 5
 
 [scheme.s]
 modulation = qpsk
