@@ -383,6 +383,7 @@ int Run(const RunOptions& o) {
   meta.command_line = o.command_line;
   meta.config_text = cfg.ResolvedText();
   meta.threads = nthreads;
+  meta.ranks = ranks;
   meta.seed = cfg.sweep.seed;
   meta.kernel_target = NoiseKernelTarget();
   meta.demap_kernel_target = DemapKernelTarget();

@@ -161,6 +161,15 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
     const RunOutput r = RunMpi(c.np, RunArgs(out, {"--threads", c.threads}), dir);
     ASSERT_EQ(r.status, 0) << r.log;
     EXPECT_EQ(ReadCounts(out), ReadCounts(ref)) << c.np << " ranks x " << c.threads << " threads";
+    // The file records the processes of the run (attribute "ranks") beside
+    // the threads of each; the single-process reference records 1.
+    auto stored = ReadCurvesFile(out);
+    ASSERT_TRUE(stored.ok()) << stored.status().message();
+    EXPECT_EQ(stored.value().ranks, c.np);
+    EXPECT_EQ(stored.value().threads, std::atoi(c.threads));
+    auto single = ReadCurvesFile(ref);
+    ASSERT_TRUE(single.ok()) << single.status().message();
+    EXPECT_EQ(single.value().ranks, 1);
     ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
     EXPECT_EQ(Count(r.log, "wrote " + out), 1u) << r.log;
     EXPECT_EQ(Count(r.log, "process(es) x"), 1u) << r.log;  // one banner

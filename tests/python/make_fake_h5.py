@@ -314,6 +314,7 @@ def main(argv):
         f.attrs["command_line"] = " ".join(["make_fake_h5.py"] + list(argv))
         f.attrs["config"] = CONFIG_TEXT.format(seed=args.seed)
         f.attrs["threads"] = np.int32(1)
+        f.attrs["ranks"] = np.int32(1)
         f.attrs["kernel_target"] = "synthetic"
         f.attrs["seed"] = np.uint64(args.seed)
         f.attrs["note"] = "SYNTHETIC TEST DATA: binomial draws at closed-form rates"

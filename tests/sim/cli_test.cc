@@ -107,6 +107,8 @@ TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
   ASSERT_EQ(ra.value().schemes.size(), 3u);
   EXPECT_EQ(ra.value().threads, 1);
   EXPECT_EQ(rb.value().threads, 2);
+  EXPECT_EQ(ra.value().ranks, 1);  // one process (attribute "ranks")
+  EXPECT_EQ(rb.value().ranks, 1);
   for (std::size_t i = 0; i < 3; ++i) {
     EXPECT_EQ(ra.value().schemes[i].bits, rb.value().schemes[i].bits);
     EXPECT_EQ(ra.value().schemes[i].bit_errors, rb.value().schemes[i].bit_errors);
