@@ -54,7 +54,7 @@ const char kMainHelp[] =
     "  mpirun -np N capgap run CONFIG ...     (built with -DCAPGAP_MPI=ON)\n"
     "  capgap theory --modulation NAME --ebno-db FROM to TO by STEP [--rate R] [--csv]\n"
     "  capgap theory --bandwidth HZ --snr-db X\n"
-    "  capgap summary FILE.h5\n"
+    "  capgap summary FILE.h5 [FILE2.h5 ...]   (several: side by side)\n"
     "  capgap COMMAND --help\n";
 
 std::string JoinArgs(int argc, char** argv) {
@@ -190,15 +190,15 @@ int CmdTheory(int argc, char** argv) {
 
 // ----------------------------------------------------------------- summary
 int CmdSummary(int argc, char** argv) {
-  po::options_description opts("capgap summary FILE.h5");
+  po::options_description opts("capgap summary FILE.h5 [FILE2.h5 ...]");
   opts.add_options()("help,h", "show this help");
   po::options_description hidden;
-  std::string path;
-  hidden.add_options()("file", po::value(&path));
+  std::vector<std::string> paths;
+  hidden.add_options()("file", po::value(&paths));
   po::options_description all;
   all.add(opts).add(hidden);
   po::positional_options_description pos;
-  pos.add("file", 1);
+  pos.add("file", -1);
   po::variables_map vm;
   try {
     po::store(po::command_line_parser(argc, argv).options(all).positional(pos).run(), vm);
@@ -207,11 +207,18 @@ int CmdSummary(int argc, char** argv) {
     return Fail(std::string("summary: ") + e.what(), kExitUsage);
   }
   if (vm.count("help")) {
-    std::cout << opts << "\nPrints the summary table of every scheme in a curves file.\n";
+    std::cout << opts
+              << "\nPrints the summary table of every scheme in a curves file. With several "
+                 "files, prints\ntheir schemes side by side (Eb/N0 at the target BER and FER and "
+                 "the gap to the Shannon\nlimit, with 95 % intervals) and flags differences "
+                 "whose intervals do not overlap.\n";
     return 0;
   }
-  if (path.empty()) return Fail("summary: missing FILE.h5", kExitUsage);
-  return RunSummary(path, std::cout, std::cerr);
+  if (paths.empty()) return Fail("summary: missing FILE.h5", kExitUsage);
+  for (const std::string& p : paths) {
+    if (p.empty()) return Fail("summary: empty file name", kExitUsage);
+  }
+  return RunSummaryComparison(paths, std::cout, std::cerr);
 }
 
 }  // namespace

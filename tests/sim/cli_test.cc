@@ -95,6 +95,45 @@ TEST(Cli, HelpWorksOnEveryCommand) {
   }
 }
 
+// Two real runs compared side by side. A run with another seed and more
+// errors lands within the intervals; swapping QPSK for 8-PSK moves the BER
+// 1e-3 point by about 3.2 dB (uncoded Gray 8-PSK needs ~10.0 dB, QPSK 6.8 dB
+// at BER 1e-3: Proakis & Salehi, 5th ed., ch. 4, curves; values from
+// memory, the flag only needs them far apart), far outside the intervals
+// of 100-error points (about +-0.15 dB here).
+TEST(Cli, SummaryComparesFilesAndFlagsNonOverlappingIntervals) {
+  const fs::path dir = TempDir();
+  const std::string a = (dir / "a.h5").string(), b = (dir / "b.h5").string(),
+                    c = (dir / "c.h5").string();
+  const std::string run = "run " + Config("ci_tiny.ini") + " --quiet --threads 1 -o ";
+  ASSERT_EQ(Capgap(run + a).status, 0);
+  ASSERT_EQ(Capgap(run + b + " --seed 2 --set sweep.stop_bit_errors=400").status, 0);
+  ASSERT_EQ(Capgap(run + c + " --set scheme.qpsk.modulation=8psk").status, 0);
+  const auto line_of = [](const std::string& text, const std::string& start) {
+    const auto at = text.find("\n" + start);
+    return at == std::string::npos ? std::string()
+                                   : text.substr(at + 1, text.find('\n', at + 1) - at - 1);
+  };
+  const Output same = Capgap("summary " + a + " " + b);
+  ASSERT_EQ(same.status, 0) << same.text;
+  EXPECT_NE(same.text.find("A = " + a), std::string::npos) << same.text;
+  EXPECT_NE(line_of(same.text, "qpsk           B").find("within the intervals"), std::string::npos)
+      << same.text;
+  EXPECT_NE(same.text.find("0 difference(s) flagged"), std::string::npos) << same.text;
+  const Output differ = Capgap("summary " + a + " " + c);
+  ASSERT_EQ(differ.status, 0) << differ.text;
+  const std::string qpsk_b = line_of(differ.text, "qpsk           B");
+  EXPECT_NE(qpsk_b.find("DIFFERS (BER: intervals do not overlap)"), std::string::npos) << differ.text;
+  EXPECT_NE(qpsk_b.find("+3."), std::string::npos) << differ.text;
+  EXPECT_NE(line_of(differ.text, "qpsk_rrc       B").find("within the intervals"), std::string::npos)
+      << differ.text;
+  // A missing or damaged file is named with status 1.
+  const Output missing = Capgap("summary " + a + " " + (dir / "none.h5").string());
+  EXPECT_EQ(missing.status, 1);
+  EXPECT_NE(missing.text.find("none.h5: cannot open curves file"), std::string::npos) << missing.text;
+  fs::remove_all(dir);
+}
+
 TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
   const fs::path dir = TempDir();
   const std::string a = (dir / "t1.h5").string(), b = (dir / "t2.h5").string();
