@@ -234,7 +234,7 @@ m_dir() { ldpc_ini l.ini "construction = file" "matrix_file = adir"; }
 setup=m_dir
 expect "matrix_file = directory" 1 "adir: is a directory, not a matrix file" -- run l.ini -o x.h5
 m_huge() {
-  printf 'ldpc-matrix n 1048576 m 524288\n0:\n' > h.txt
+  printf 'parity-check columns 1048576 rows 524288\n-\n' > h.txt
   ldpc_ini l.ini "construction = file" "matrix_file = h.txt"
 }
 setup=m_huge
@@ -246,8 +246,8 @@ m_valid_huge() {
   "$PY" -c "
 m = 524288
 with open('big.txt', 'w') as f:
-    f.write('ldpc-matrix n %d m %d\\n' % (2 * m, m))
-    f.writelines('2: %d %d\\n' % (2 * r, 2 * r + 1) for r in range(m))"
+    f.write('parity-check columns %d rows %d\\n' % (2 * m, m))
+    f.writelines('%d %d\\n' % (2 * r, 2 * r + 1) for r in range(m))"
   ldpc_ini l.ini "construction = file" "matrix_file = big.txt"
 }
 setup=m_valid_huge
