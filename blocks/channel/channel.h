@@ -11,6 +11,15 @@
 // per-symbol values into `storage`, which the caller sizes to the block's
 // symbols.
 //
+// Shaped chains (samples_per_symbol > 1): fading is flat and applied at the
+// symbol rate (fades_symbols()). The chain calls FadeSymbols on the symbols
+// of a block before the transmit filter (each symbol multiplied by its gain,
+// constant over its symbol interval; the gains recorded in storage.gain, in
+// transmission order), Apply on the samples (noise only), and, after the
+// matched filter and downsampling, EqualiseSymbols with the same gains
+// (perfect channel state at the receiver). Channels that do not fade keep
+// the defaults and are never asked.
+//
 // additive_only(): the channel is exactly additive white Gaussian noise of
 // level() on every sample (gain 1). The chain may then keep BPSK on the real
 // axis (ApplyReal, I noise only) and use its fused kernels (uncoded BPSK,
@@ -68,6 +77,21 @@ class Channel {
   virtual void Apply(std::span<cf32> samples, int samples_per_symbol, RngStream& noise,
                      RngStream& process, ChannelStateStorage storage,
                      ChannelStateView& state) const = 0;
+  // Symbol-rate fading of shaped chains (see the file comment).
+  virtual bool fades_symbols() const { return false; }
+  // Multiplies symbols[i] by the process's next gain, writes the gains to
+  // storage.gain[0 .. symbols.size()). REQUIRES fades_symbols().
+  virtual void FadeSymbols(std::span<cf32> symbols, RngStream& process,
+                           ChannelStateStorage storage) const {
+    (void)symbols, (void)process, (void)storage;
+  }
+  // In place: y_i -> h_i* y_i / |h_i|^2 with gains[i] = h_i (as FadeSymbols
+  // recorded them), per-symbol noise N0 / |h_i|^2 into n0_out; points `state`
+  // at it (gain 1). REQUIRES fades_symbols().
+  virtual void EqualiseSymbols(std::span<cf32> symbols, std::span<const cf32> gains,
+                               std::span<float> n0_out, ChannelStateView& state) const {
+    (void)symbols, (void)gains, (void)n0_out, (void)state;
+  }
   // Real-axis signal (BPSK): in-phase noise only. REQUIRES additive_only().
   virtual void ApplyReal(std::span<float> samples, RngStream& noise) const = 0;
 };

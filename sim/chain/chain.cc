@@ -219,18 +219,32 @@ void Chain::ApplyChannel(const Channel& channel, std::span<cf32> samples, Stream
 // whose outputs are discarded, so no filter start-up transient is ever
 // counted. Guard symbols come from their own substream, so the information
 // bits and their noise draw are the same whatever the guard length.
+//
+// A fading channel fades shaped chains at the symbol rate (channel.h): the
+// block's symbols take their gains before the transmit filter (frame, then
+// guard symbols, in transmission order), and the frame's matched-filter
+// outputs are equalised with the gains of the block's first n symbols.
 void Chain::ShapedFrame(const Channel& channel, Streams& s, ChainWorkspace& ws) const {
   const std::size_t n = ws.symbols.size();
   const auto guard = static_cast<std::size_t>(guard_symbols_);
   std::copy(ws.symbols.begin(), ws.symbols.end(), ws.block_symbols.begin());
   GenerateRandomBits(ws.guard_bits, s.guard);
   mapper_->Map(ws.guard_bits, std::span<cf32>(ws.block_symbols).subspan(n, guard));
+  const bool fade = channel.fades_symbols();
+  if (fade) {
+    channel.FadeSymbols(ws.block_symbols, s.process,
+                        ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
+  }
   tx_->Shape(ws.block_symbols, ws.samples, ws.tx);
   if (carrier_) carrier_->Apply(ws.samples, ws.carrier);
   ApplyChannel(channel, ws.samples, s, ws);
   rx_->Receive(ws.samples, ws.received, ws.rx);
   std::copy(ws.received.begin() + static_cast<std::ptrdiff_t>(guard), ws.received.end(),
             ws.symbols.begin());
+  if (fade) {
+    channel.EqualiseSymbols(ws.symbols, std::span<const cf32>(ws.state_gain.data(), n),
+                            std::span<float>(ws.state_n0.data(), n), ws.state);
+  }
 }
 
 // Shaped chains: one guard block (D symbols) whose outputs are discarded, so
@@ -247,6 +261,10 @@ void Chain::PrimeUnit(const Channel& channel, Streams& s, ChainWorkspace& ws) co
     const std::span<cf32> block(ws.block_symbols.data(), guard);
     GenerateRandomBits(ws.guard_bits, s.guard);
     mapper_->Map(ws.guard_bits, block);
+    if (channel.fades_symbols()) {
+      channel.FadeSymbols(block, s.process,
+                          ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
+    }
     const std::span<cf32> samples(ws.samples.data(),
                                   guard * static_cast<std::size_t>(scheme_.samples_per_symbol));
     tx_->Shape(block, samples, ws.tx);
