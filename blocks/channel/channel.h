@@ -36,6 +36,7 @@
 #include "blocks/core/energy.h"
 #include "blocks/core/rng_stream.h"
 #include "blocks/core/types.h"
+#include "blocks/kernels/channel_llr_kernels.h"
 
 namespace capgap {
 
@@ -91,6 +92,19 @@ class Channel {
   virtual void EqualiseSymbols(std::span<cf32> symbols, std::span<const cf32> gains,
                                std::span<float> n0_out, ChannelStateView& state) const {
     (void)symbols, (void)gains, (void)n0_out, (void)state;
+  }
+  // Uncoded Gray 16-QAM fused to the error count on a channel that is not
+  // additive-only: counts_qam16() says whether this channel has such a path
+  // (asked once per unit); CountQam16Errors then takes n_symbols symbols'
+  // bits (4 per symbol), draws from `noise` and `process` exactly what Apply
+  // would, and returns exactly the bit errors of Apply followed by the
+  // demapper (`d` made at N0 = 1: MakeQam16Decider) and hard decisions.
+  virtual bool counts_qam16() const { return false; }
+  virtual std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols,
+                                         const Qam16Decider& d, RngStream& noise,
+                                         RngStream& process, ChannelStateStorage storage) const {
+    (void)bits, (void)n_symbols, (void)d, (void)noise, (void)process, (void)storage;
+    return 0;
   }
   // Real-axis signal (BPSK): in-phase noise only. REQUIRES additive_only().
   virtual void ApplyReal(std::span<float> samples, RngStream& noise) const = 0;

@@ -25,6 +25,34 @@ void FadingChannel::ApplyReal(std::span<float> samples, RngStream& noise) const 
   AddRealNoise(samples, static_cast<float>(level_.sigma_per_dim), noise);
 }
 
+bool FadingChannel::counts_qam16() const {
+  const ChannelSpec& c = process_.spec();
+  return c.branches == 1 && c.time == FadingTime::kFast &&
+         (c.law == FadingLaw::kRayleigh || c.law == FadingLaw::kRician) && FadingQam16Fused();
+}
+
+std::uint64_t FadingChannel::CountQam16Errors(const Bit* bits, std::size_t n_symbols,
+                                              const Qam16Decider& d, RngStream& noise,
+                                              RngStream& process,
+                                              ChannelStateStorage storage) const {
+  CAPGAP_DCHECK(counts_qam16() && storage.process != nullptr);
+  ChannelProcessState& ps = *storage.process;
+  if (ps.gains.size() < n_symbols) ps.gains.resize(n_symbols);
+  if (ps.branch.size() < n_symbols) ps.branch.resize(n_symbols);
+  const std::span<float> g(reinterpret_cast<float*>(ps.gains.data()), 2 * n_symbols);
+  const std::span<float> z(reinterpret_cast<float*>(ps.branch.data()), 2 * n_symbols);
+  // The draws of Apply in its order: the gains' normals (FadingProcess's
+  // fast draw), then the noise's (AddComplexNoise takes the same normals).
+  FillStandardNormal(g, process);
+  ps.symbol += n_symbols;
+  FillStandardNormal(z, noise);
+  float a = 0, b = 0;
+  process_.GaussianGainAffine(a, b);
+  return FadingQam16Errors(bits, g.data(), z.data(), n_symbols, a, b,
+                           static_cast<float>(level_.sigma_per_dim),
+                           static_cast<float>(level_.n0), d);
+}
+
 void FadingChannel::FadeSymbols(std::span<cf32> symbols, RngStream& process,
                                 ChannelStateStorage storage) const {
   CAPGAP_DCHECK(process_.branches() == 1);

@@ -65,6 +65,13 @@ class FadingChannel final : public Channel {
                    ChannelStateStorage storage) const override;
   void EqualiseSymbols(std::span<cf32> symbols, std::span<const cf32> gains,
                        std::span<float> n0_out, ChannelStateView& state) const override;
+  // Fused uncoded 16-QAM count (channel.h): one branch, fast Rayleigh or
+  // Rician fading, a vector kernel target (FadingQam16Errors of
+  // fading_kernels.h); the same draws and counts as Apply + demapper.
+  bool counts_qam16() const override;
+  std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                                 RngStream& noise, RngStream& process,
+                                 ChannelStateStorage storage) const override;
   // Not additive: the chain never takes the real-axis path with it.
   void ApplyReal(std::span<float> samples, RngStream& noise) const override;
 

@@ -116,8 +116,8 @@ void FadingProcess::DrawIndependent(std::span<cf32> gains, RngStream& stream) co
       // std::complex<float> is array-compatible with float[2].
       FillStandardNormal(std::span<float>(reinterpret_cast<float*>(gains.data()), 2 * gains.size()),
                          stream);
-      const auto b = static_cast<float>(scatter_ * std::sqrt(0.5));
-      const auto a = static_cast<float>(los_);
+      float a = 0, b = 0;
+      GaussianGainAffine(a, b);
       for (cf32& h : gains) h = cf32(a + b * h.real(), b * h.imag());
       return;
     }

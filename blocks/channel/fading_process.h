@@ -61,6 +61,7 @@
 #ifndef CAPGAP_BLOCKS_CHANNEL_FADING_PROCESS_H_
 #define CAPGAP_BLOCKS_CHANNEL_FADING_PROCESS_H_
 
+#include <cmath>
 #include <cstddef>
 #include <span>
 
@@ -86,6 +87,14 @@ class FadingProcess {
 
   const ChannelSpec& spec() const { return spec_; }
   int branches() const { return spec_.branches; }
+
+  // Rayleigh and Rician independent gains are h = a + b (g0 + j g1) from a
+  // standard normal pair (g0 with the real part, a on the real part only):
+  // the float constants the fast draw uses.
+  void GaussianGainAffine(float& a, float& b) const {
+    b = static_cast<float>(scatter_ * std::sqrt(0.5));
+    a = static_cast<float>(los_);
+  }
 
   // Gains of the unit's next n symbols, branch-major: gains[l n + i] for
   // branch l, symbol i. Continues `state` (Reset() at the start of a unit).

@@ -389,10 +389,15 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
   // the demapper's decisions and the count in registers; the same counts and
   // stream use as the composed path.
   const bool fused_qam16 = qam16_fused_ && uncoded && !interleaver_ && channel.additive_only();
+  // The same over a fading channel that offers it (one-branch fast fading,
+  // Channel::counts_qam16): gains, noise, equaliser, decisions and count in
+  // one kernel, the decider at N0 = 1 (the demapper's per-symbol path).
+  const bool faded_qam16 = qam16_fused_ && uncoded && !interleaver_ && !shaped() &&
+                           !channel.additive_only() && channel.counts_qam16();
   Qam16Decider qam16{};
-  if (fused_qam16) {
+  if (fused_qam16 || faded_qam16) {
     qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
-                             channel.n0(), !hard);
+                             faded_qam16 ? 1.0f : channel.n0(), !hard);
   }
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
@@ -419,10 +424,14 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         continue;
       }
       FillSource(unit_index, f0 + b, s.bits, bits);
-      if (fused_qam16) {
+      if (fused_qam16 || faded_qam16) {
         const std::uint64_t errors =
-            CountQam16Errors(bits.data(), k / 4, qam16,
-                             static_cast<float>(channel.level().sigma_per_dim), s.noise);
+            fused_qam16
+                ? CountQam16Errors(bits.data(), k / 4, qam16,
+                                   static_cast<float>(channel.level().sigma_per_dim), s.noise)
+                : channel.CountQam16Errors(
+                      bits.data(), k / 4, qam16, s.noise, s.process,
+                      ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
         counts.bits += k;
         counts.bit_errors += errors;
         counts.frames += 1;
@@ -459,7 +468,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
       }
     }
-    if (fused || fused_qam16) continue;
+    if (fused || fused_qam16 || faded_qam16) continue;
     const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
     if (direct_hard) {
       std::fill(results.begin(), results.end(), FrameDecodeResult{});
