@@ -182,6 +182,53 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
   fs::remove_all(dir);
 }
 
+// Fading schemes (fading channels keep a per-unit process state, reset when
+// a unit starts, so a unit's gains depend only on its own kFading stream):
+// fast Rayleigh 16-QAM through the fused count, Nakagami block fading with
+// selection combining, Rician Doppler with MRC, Nakagami-m Doppler, a
+// coded scheme with the random interleaver over groups of frames, and a
+// pulse-shaped chain fading at the symbol rate. One process with one
+// thread, then 1, 2 and 3 ranks: identical counts.
+TEST(MpiRun, FadingSchemesGiveTheCountsOfOneThreadOnOneTwoAndThreeRanks) {
+  const fs::path dir = TempDir("fading");
+  const std::string cfg = (dir / "fading.ini").string();
+  {
+    std::ofstream f(cfg);
+    f << "[sweep]\nebno_db = 0:4:12\ntarget_errors = 200\nmax_bits = 400000\n"
+         "ber_floor = 1e-6\nseed = 5\n"
+         "[scheme.qam16_fast]\nmodulation = 16qam\ndemapper = maxlog\nframe_bits = 480\n"
+         "unit_frames = 4\nchannel = rayleigh\n"
+         "[scheme.qpsk_naka_block_sc]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = nakagami\nnakagami_m = 0.8\n"
+         "fading = block\ncoherence_symbols = 50\nbranches = 2\ncombining = selection\n"
+         "[scheme.psk8_rician_doppler_mrc]\nmodulation = 8psk\ndemapper = logmap\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = rician\nrician_k_db = 3\n"
+         "fading = doppler\ndoppler = 0.02\nbranches = 3\n"
+         "[scheme.bpsk_naka_doppler]\nmodulation = bpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = nakagami\nnakagami_m = 2.5\n"
+         "fading = doppler\ndoppler = 0.01\n"
+         "[scheme.qpsk_conv_random]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 240\nunit_frames = 4\ncode = conv\ngenerators = 5,7\n"
+         "constraint_length = 3\nchannel = rayleigh\nfading = block\n"
+         "coherence_symbols = 100\ninterleaver = random\ninterleaver_frames = 2\n"
+         "[scheme.qpsk_rrc_rayleigh]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nshaping = rrc\nrolloff = 0.35\nspan = 8\n"
+         "samples_per_symbol = 4\nchannel = rayleigh\n";
+  }
+  const std::string ref = (dir / "ref.h5").string();
+  const RunOutput r1 = RunCapgap({"run", cfg, "-o", ref, "--threads", "1", "--quiet"}, dir);
+  ASSERT_EQ(r1.status, 0) << r1.log;
+  const auto want = ReadCounts(ref);
+  ASSERT_EQ(want.schemes.size(), 6u);
+  for (const int np : {1, 2, 3}) {
+    const std::string out = (dir / ("np" + std::to_string(np) + ".h5")).string();
+    const RunOutput r = RunMpi(np, {"run", cfg, "-o", out, "--threads", "1", "--quiet"}, dir);
+    ASSERT_EQ(r.status, 0) << r.log;
+    EXPECT_EQ(ReadCounts(out), want) << np << " ranks";
+  }
+  fs::remove_all(dir);
+}
+
 // Points that stop on frame errors (sweep.stop_frame_errors, no bit-error
 // target): 2 and 3 ranks write the counts of one process with one thread.
 TEST(MpiRun, FrameErrorStoppingGivesTheCountsOfOneThread) {
