@@ -23,7 +23,7 @@ import matplotlib
 import numpy as np
 from matplotlib.figure import Figure
 
-from plot_style import PALETTE, STYLE, provenance
+from plot_style import STYLE, provenance
 
 
 def raised_cosine_spectrum(f, rolloff):
@@ -99,7 +99,7 @@ def _constellation_panel(ax, s, colour):
 
 def make_figure(path, schemes, meta, dpi):
     matplotlib.rcParams.update(STYLE)
-    colour = {s.name: PALETTE[i % len(PALETTE)] for i, s in enumerate(schemes)}
+    colour = {s.name: s.colour for s in schemes}  # the run's colour (assign_styles)
     shaped = [s for s in schemes if s.psd_f is not None and s.rolloff is not None
               and s.eye is not None and s.const_i is not None]
     plain = [s for s in schemes if s not in shaped and s.const_i is not None][:4]
