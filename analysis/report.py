@@ -364,9 +364,9 @@ scheme's <code>spectral_efficiency_basis</code> says.</li>
 
 CAUTION = ("<div class=\"caution\" id=\"caution\"><b>Caution.</b> These are results of a "
            "simulation of an idealised link. They show what a scheme can reach and how far it "
-           "sits from the limits; they do not replace measurement on hardware, where "
-           "synchronisation, channel estimation, phase noise, quantisation, non-linear "
-           "amplifiers and interference cost further dB.</div>")
+           "sits from the limits. A simulation does not replace measurement on hardware, "
+           "where synchronisation, channel estimation, phase noise, quantisation, "
+           "non-linear amplifiers and interference cost further dB.</div>")
 
 
 def build_html(path):

@@ -131,3 +131,23 @@ add_test(NAME python_figure_text_overlaps
   WORKING_DIRECTORY ${_capgap_py_work})
 set_tests_properties(python_figure_text_overlaps PROPERTIES LABELS python
   ENVIRONMENT "${_capgap_py_env}" TIMEOUT 300 FIXTURES_REQUIRED capgap_demo_h5)
+
+# (g) capgap report on the demo-like file: the HTML's tables hold the HDF5
+#     values, no script, nothing outside the file, one inline SVG per figure.
+add_test(NAME python_report_tables
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_report_browser.py
+          --capgap ${CMAKE_BINARY_DIR}/capgap --h5 ${_capgap_demo_h5}
+          --analysis ${CMAKE_SOURCE_DIR}/analysis --workdir ${_capgap_py_work}/report
+  WORKING_DIRECTORY ${_capgap_py_work})
+# (h) The same report in headless chromium (DevTools over a pipe): no console
+#     error, no request leaving the file, every figure drawn (screenshot not
+#     blank), the DOM's table cells equal to the HDF5 values. Skipped (77)
+#     without chromium, unless CAPGAP_REQUIRE_BROWSER=1 (set by .ci/run).
+add_test(NAME python_report_browser
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_report_browser.py --browser
+          --capgap ${CMAKE_BINARY_DIR}/capgap --h5 ${_capgap_demo_h5}
+          --analysis ${CMAKE_SOURCE_DIR}/analysis --workdir ${_capgap_py_work}/report_browser
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_report_tables python_report_browser PROPERTIES LABELS python
+  ENVIRONMENT "${_capgap_py_env}" TIMEOUT 300 FIXTURES_REQUIRED capgap_demo_h5
+  SKIP_RETURN_CODE 77)
