@@ -65,7 +65,8 @@ POINT_DATASETS = ("ebno_db", "bits", "bit_errors", "frames", "frame_errors",
                   "ber", "ber_low", "ber_high", "fer", "fer_low", "fer_high")
 BER_FLOOR = 1e-9
 
-from plot_style import GREY, MARKERS, PALETTE, STYLE, provenance  # noqa: E402,F401
+from plot_style import (GREY, MARKERS, PALETTE, STYLE, assign_styles,  # noqa: E402,F401
+                        provenance, split_groups)
 
 
 class FileFormatError(Exception):
@@ -260,7 +261,12 @@ def read_file(path, wanted):
             raise FileFormatError(f"format_version is {int(version)}; this script reads {FORMAT_VERSION}")
         meta = {k: _str(f.attrs[k]) for k in ("program_version", "git_revision", "created_utc",
                                               "kernel_target", "threads", "seed") if k in f.attrs}
+        run_order = _str(f.attrs["schemes"]).split(",") if "schemes" in f.attrs else []
         available = [n for n in f if isinstance(f[n], h5py.Group)]
+        # The run's order (root attribute `schemes`) when recorded; h5py
+        # lists groups by name.
+        available = [n for n in run_order if n in available] + \
+            [n for n in available if n not in run_order]
         if not available:
             raise FileFormatError("contains no scheme group")
         if wanted:
@@ -272,6 +278,8 @@ def read_file(path, wanted):
         else:
             names = available
         schemes = [Scheme(f[n]) for n in names]
+    # Colours and markers follow the run's order, whatever a figure draws.
+    assign_styles(schemes, available)
     if not wanted:  # left-to-right order of the curves, as the eye reads them
         schemes.sort(key=lambda s: (math.isnan(s.at_target), s.at_target, s.name))
     return schemes, meta
@@ -401,11 +409,10 @@ def _draw_finite_length(ax, s, colour):
 
 def _draw_fer_gap(ax, s, colour, y):
     """Arrow from the finite-length normal approximation at target_fer to the
-    Eb/N0 the simulated FER reaches there, labelled with the gap."""
+    Eb/N0 the simulated FER reaches there (its value: fer_gap_text, in the
+    legend)."""
     if not (math.isfinite(s.at_target_fer) and math.isfinite(s.fl_na_at_target)):
         return
-    gap = s.gap_finite_length if math.isfinite(s.gap_finite_length) \
-        else s.at_target_fer - s.fl_na_at_target
     if y < s.target_fer:
         ax.plot([s.at_target_fer, s.at_target_fer], [y, s.target_fer], color=colour,
                 linewidth=0.8, linestyle=(0, (1, 1.5)), zorder=5)
@@ -415,12 +422,33 @@ def _draw_fer_gap(ax, s, colour, y):
                 arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                 shrinkA=0, shrinkB=0, mutation_scale=9),
                 zorder=5)
-    mid = 0.5 * (s.fl_na_at_target + s.at_target_fer)
-    ax.annotate(f"gap to n = {s.fl_n} limit {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
-                textcoords="offset points", ha="center", va="bottom",
-                fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
-                bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
-                          alpha=0.8))
+
+
+def _short(x):
+    return f"{x:.0e}".replace("e-0", "e-")
+
+
+def ber_gap_text(s):
+    """The BER gap of a scheme as the legend beside the plot states it."""
+    if not math.isfinite(s.at_target):
+        return f"BER {_short(s.target_ber)} not reached in the sweep"
+    if s.fading() and math.isfinite(s.ergodic):
+        gap = s.gap_ergodic if math.isfinite(s.gap_ergodic) else s.at_target - s.ergodic
+        return f"{s.at_target:.2f} dB at BER {_short(s.target_ber)}, {gap:.2f} dB from ergodic limit"
+    if not math.isfinite(s.shannon):
+        return f"{s.at_target:.2f} dB at BER {_short(s.target_ber)}"
+    gap = s.gap_shannon if math.isfinite(s.gap_shannon) else s.at_target - s.shannon
+    return f"{s.at_target:.2f} dB at BER {_short(s.target_ber)}, {gap:.2f} dB from Shannon limit"
+
+
+def fer_gap_text(s):
+    """The FER gap to the finite-length limit, as the FER legend states it."""
+    if not (math.isfinite(s.at_target_fer) and math.isfinite(s.fl_na_at_target)):
+        return f"{s.name}: FER {_short(s.target_fer)} not reached"
+    gap = s.gap_finite_length if math.isfinite(s.gap_finite_length) \
+        else s.at_target_fer - s.fl_na_at_target
+    return (f"{s.name}: {s.at_target_fer:.2f} dB at FER {_short(s.target_fer)}, "
+            f"{gap:.2f} dB from n = {s.fl_n} limit")
 
 
 def _draw_target_line(ax, t, rate_word):
@@ -436,8 +464,8 @@ def _draw_target_line(ax, t, rate_word):
 
 
 def _draw_gap(ax, s, colour, y):
-    """Arrow from the Shannon limit (fading schemes: the ergodic limit) to
-    the Eb/N0 reached at target_ber.
+    """Arrow (no text) from the Shannon limit (fading schemes: the ergodic
+    limit) to the Eb/N0 reached at target_ber.
 
     Drawn at height y (the target itself for the first scheme, staggered
     below it for the others); a thin drop line joins the arrow's right end to
@@ -445,12 +473,10 @@ def _draw_gap(ax, s, colour, y):
     """
     if not (math.isfinite(s.at_target) and math.isfinite(s.shannon)):
         return
-    gap = s.gap_shannon if math.isfinite(s.gap_shannon) else s.at_target - s.shannon
-    limit, what = s.shannon, "gap"
+    limit = s.shannon
     if s.fading() and math.isfinite(s.ergodic):
         # A fading scheme is measured against its channel's ergodic limit.
-        limit, what = s.ergodic, "gap to ergodic"
-        gap = s.gap_ergodic if math.isfinite(s.gap_ergodic) else s.at_target - s.ergodic
+        limit = s.ergodic
     if y < s.target_ber:
         ax.plot([s.at_target, s.at_target], [y, s.target_ber], color=colour, linewidth=0.8,
                 linestyle=(0, (1, 1.5)), zorder=5)
@@ -460,14 +486,9 @@ def _draw_gap(ax, s, colour, y):
                 arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
                                 shrinkA=0, shrinkB=0, mutation_scale=9),
                 zorder=5)
-    # Label centred just above its own arrow: arrows are staggered by more
-    # than a text height, so labels of schemes with similar gaps never collide.
-    mid = 0.5 * (limit + s.at_target)
-    ax.annotate(f"{what} {gap:.2f} dB", xy=(mid, y), xytext=(0, 1.5),
-                textcoords="offset points", ha="center", va="bottom",
-                fontsize=8.5, color=colour, fontweight="semibold", zorder=6,
-                bbox=dict(boxstyle="round,pad=0.12", facecolor="white", edgecolor="none",
-                          alpha=0.8))
+    # The arrow carries no text: its value stands in the legend beside the
+    # plot (ber_gap_text), where labels cannot collide with curves or other
+    # labels however many schemes share the target.
 
 
 THRESHOLD_STYLE = (0, (10, 2, 2, 2, 2, 2))  # long dash, two dots
@@ -532,8 +553,8 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
     y_lim = _y_limits(schemes, rate)
     _style_axes(ax, x_lim, y_lim, ylabel)
     scheme_handles = []
-    for i, s in enumerate(schemes):
-        colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
+    for s in schemes:
+        colour, marker = s.colour, s.marker
         if rate == "ber" and s.theory_ebno is not None and not s.coded:
             ok = s.theory_ber > 0
             ax.plot(s.theory_ebno[ok], s.theory_ber[ok], color=colour, linestyle=(0, (5, 2.5)),
@@ -556,7 +577,9 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
         _draw_limits(ax, s, colour)
         scheme_handles.append(Line2D([], [], color=colour, marker=marker, markersize=5.5,
                                      markeredgecolor="white", markeredgewidth=0.6,
-                                     linewidth=1.4, label=s.label()))
+                                     linewidth=1.4,
+                                     label=s.label() + ("\n" + ber_gap_text(s) if rate == "ber"
+                                                        else "")))
     if rate == "ber":
         for t in sorted({s.target_ber for s in schemes}):
             _draw_target_line(ax, t, "BER")
@@ -565,13 +588,13 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
         # height each (the region left of the curves is empty there).
         step = 0.045 * math.log10(y_lim[1] / y_lim[0])
         per_target = {}
-        for i, s in enumerate(schemes):
+        for s in schemes:
             k = per_target.get(s.target_ber, 0)
             per_target[s.target_ber] = k + 1
             y = s.target_ber * 10.0 ** (-step * k)
             if y < y_lim[0]:
                 continue
-            _draw_gap(ax, s, PALETTE[i % len(PALETTE)], y)
+            _draw_gap(ax, s, s.colour, y)
     if rate == "fer":
         targets = sorted({s.target_fer for s in schemes if math.isfinite(s.target_fer)
                           and s.fl_ebno is not None})
@@ -579,25 +602,31 @@ def draw_panel(ax, schemes, rate, x_lim, scheme_legend, key_handles):
             _draw_target_line(ax, t, "FER")
         step = 0.045 * math.log10(y_lim[1] / y_lim[0])
         per_target = {}
-        for i, s in enumerate(schemes):
+        for s in schemes:
             if s.fl_ebno is None or not math.isfinite(s.target_fer):
                 continue
             k = per_target.get(s.target_fer, 0)
             per_target[s.target_fer] = k + 1
             y = s.target_fer * 10.0 ** (-step * k)
             if y >= y_lim[0]:
-                _draw_fer_gap(ax, s, PALETTE[i % len(PALETTE)], y)
+                _draw_fer_gap(ax, s, s.colour, y)
+            # The FER panel's legend opens with the gaps, one line a scheme.
+            scheme_handles.append(Line2D([], [], color=s.colour, marker=s.marker,
+                                         markersize=5.5, markeredgecolor="white",
+                                         linewidth=1.4, label=fer_gap_text(s)))
     # One legend outside the axes on the right (constrained layout reserves
     # room for an axes legend): schemes first, then the line-style key. Inside
     # the axes it would cover the gap annotations or the curves.
-    handles = list(scheme_handles) if scheme_legend else []
+    handles = list(scheme_handles) if scheme_legend or rate == "fer" else []
     if key_handles:
         if handles:
             handles.append(Line2D([], [], linestyle="none", label=" "))
         handles.extend(key_handles)
     if handles:
         ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.01, 1.0),
-                  title="Scheme" if scheme_legend else None, alignment="left",
+                  title="Scheme" if scheme_legend else
+                  "At the target FER" if rate == "fer" and scheme_handles else None,
+                  alignment="left",
                   borderaxespad=0.0, fontsize=8.5, handlelength=2.6)
 
 
@@ -632,8 +661,9 @@ def make_figure(path, schemes, meta, title, fer_mode, dpi):
                "also": "Bit and frame error rates versus $E_b/N_0$",
                "only": "Frame error rate versus $E_b/N_0$"}[fer_mode]
     fig.suptitle(title if title is not None else default, fontsize=13.5, fontweight="semibold")
-    fig.text(0.01, 0.004, provenance(path, meta), ha="left", va="bottom", fontsize=7,
-             color="#808080")
+    # supxlabel: the constrained layout reserves room under the x label
+    # (a free fig.text there overprinted it).
+    fig.supxlabel(provenance(path, meta), x=0.01, ha="left", fontsize=7, color="#808080")
     fig.get_layout_engine().set(h_pad=0.12, w_pad=0.08)
     return fig
 
@@ -661,6 +691,42 @@ def parse_args(argv):
     return ap.parse_args(argv)
 
 
+def fer_mode_for(schemes, args_mode):
+    """'also' / 'only' / 'none' for a figure of `schemes`: the user's choice,
+    else the FER panel when a scheme carries finite-length limits (coded
+    schemes are judged by their FER)."""
+    if args_mode is not None:
+        return args_mode
+    return "also" if any(s.fl_ebno is not None for s in schemes) else "none"
+
+
+def build_figures(path, schemes, meta, title=None, fer_mode=None, dpi=150, plane=True,
+                  signal=True, grouped=True):
+    """Every figure of a run as [(suffix, title, Figure)]; suffix "" is the
+    single BER/FER figure, "-<group>" a group's figure (more than
+    GROUP_THRESHOLD schemes in several groups: uncoded, coded, shaped,
+    fading), "-plane" the power-bandwidth chart, "-signal" the signal views.
+    Used by main() and by analysis/report.py."""
+    out = []
+    groups = split_groups(schemes) if grouped else [(None, list(schemes))]
+    for group, members in groups:
+        mode = fer_mode_for(members, fer_mode)
+        t = title
+        if t is None and group is not None:
+            t = {"none": "Bit error rate", "also": "Bit and frame error rates",
+                 "only": "Frame error rate"}[mode] + f" versus $E_b/N_0$: {group} schemes"
+        fig = make_figure(path, members, meta, t, mode, dpi)
+        what = "BER/FER" if mode == "also" else "FER" if mode == "only" else "BER"
+        out.append(("" if group is None else f"-{group}",
+                    f"{what} versus Eb/N0" + ("" if group is None else f", {group} schemes"), fig))
+    if plane:
+        out.append(("-plane", "Power-bandwidth plane",
+                    plot_plane.make_figure(path, schemes, meta, dpi)))
+    if signal and any(s.const_i is not None for s in schemes):
+        out.append(("-signal", "Signal views", plot_signal.make_figure(path, schemes, meta, dpi)))
+    return out
+
+
 def main(argv):
     args = parse_args(argv)
     prog = "plot_curves.py"
@@ -675,27 +741,18 @@ def main(argv):
     except FileFormatError as e:
         print(f"{prog}: error: {args.file}: {e}", file=sys.stderr)
         return 1
-    # Coded schemes with finite-length limits are judged by their FER: the
-    # FER panel is then on by default.
-    default = "also" if any(s.fl_ebno is not None for s in schemes) else "none"
-    fer_mode = "only" if args.fer_only else "also" if args.fer \
-        else "none" if args.ber_only else default
-    fig = make_figure(args.file, schemes, meta, args.title, fer_mode, args.dpi)
+    fer_mode = "only" if args.fer_only else "also" if args.fer else "none" if args.ber_only \
+        else None
+    # A run of many schemes in several groups gets one figure per group
+    # (OUT-uncoded.png, OUT-coded.png, ...) instead of OUT.png; --schemes
+    # (an explicit choice) always gives the single figure.
+    figures = build_figures(args.file, schemes, meta, args.title, fer_mode, args.dpi,
+                            plane=not args.no_plane, signal=not args.no_signal,
+                            grouped=wanted is None)
     png.parent.mkdir(parents=True, exist_ok=True)
-    fig.savefig(png, dpi=args.dpi, metadata={"Software": "capgap analysis/plot_curves.py"})
-    written = [str(png)]
-    if not args.no_svg:
-        svg = png.with_suffix(".svg")
-        fig.savefig(svg, metadata={"Date": None, "Creator": "capgap analysis/plot_curves.py"})
-        written.append(str(svg))
-    # Companion figures next to the BER figure: OUT-plane.png, OUT-signal.png.
-    extra = []
-    if not args.no_plane:
-        extra.append(("plane", plot_plane.make_figure(args.file, schemes, meta, args.dpi)))
-    if not args.no_signal and any(s.const_i is not None for s in schemes):
-        extra.append(("signal", plot_signal.make_figure(args.file, schemes, meta, args.dpi)))
-    for suffix, figure in extra:
-        out = png.with_name(f"{png.stem}-{suffix}.png")
+    written = []
+    for suffix, _, figure in figures:
+        out = png.with_name(f"{png.stem}{suffix}.png")
         figure.savefig(out, dpi=args.dpi, metadata={"Software": "capgap analysis/plot_curves.py"})
         written.append(str(out))
         if not args.no_svg:

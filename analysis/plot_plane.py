@@ -9,8 +9,10 @@ BER, spectral efficiency eta) on one plane, against
     the run, as the C++ side computed it (/<scheme>/limits/
     constrained_curve_rho and constrained_curve_ebno_db, ideal Nyquist
     signalling: eta = rho);
-  * a horizontal arrow from the bound to each point, labelled with the
-    distance in dB (the scheme's gap_to_shannon_db).
+  * a horizontal arrow from the bound to each point; the distance in dB
+    (the scheme's gap_to_shannon_db) stands in the legend beside the plot,
+    and the scheme names beside the points are placed clear of every other
+    text (plot_style.place_labels).
 Called by analysis/plot_curves.py, which writes OUT-plane.png beside OUT.png;
 reads the Scheme objects plot_curves.py built.
 """
@@ -22,7 +24,7 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.ticker import MultipleLocator
 
-from plot_style import GREY, MARKERS, PALETTE, STYLE, provenance
+from plot_style import STYLE, place_labels, provenance
 
 import matplotlib
 
@@ -58,6 +60,7 @@ def make_figure(path, schemes, meta, dpi):
                linewidth=0.9, zorder=2)
     ax.text(-1.3, y_max * 0.93, "unreachable at any\nerror rate (Shannon)", fontsize=8.5,
             color="#666666", ha="left", va="top")
+    curve_labels = []  # placed last, clear of every other text
 
     # Constrained-capacity curves, one per constellation in the run.
     seen = set()
@@ -70,8 +73,8 @@ def make_figure(path, schemes, meta, dpi):
             continue
         x, y = s.curve_ebno[ok], s.curve_rho[ok]
         ax.plot(x, y, color="#8c8c8c", linewidth=1.1, linestyle="-.", zorder=2)
-        ax.annotate(_modulation_label(s.modulation), xy=(x[-1], y[-1]), xytext=(4, 0),
-                    textcoords="offset points", fontsize=8, color="#6f6f6f", va="center")
+        curve_labels.append(dict(text=_modulation_label(s.modulation), xy=(x[-1], y[-1]),
+                                 fontsize=8, colour="#6f6f6f"))
 
     # Ergodic Gaussian-input bound of every fading channel in the run (the
     # C++ side's /<scheme>/limits/ergodic_curve_*; eta = rho, receiver knows h).
@@ -85,37 +88,28 @@ def make_figure(path, schemes, meta, dpi):
             continue
         x, y = s.ergodic_ebno[ok], s.ergodic_rho[ok]
         ax.plot(x, y, color="#444444", linewidth=1.3, linestyle=(0, (6, 2, 1, 2)), zorder=3)
-        ax.annotate("ergodic" + s.channel_label(), xy=(x[-1], y[-1]), xytext=(4, 0),
-                    textcoords="offset points", fontsize=8, color="#444444", va="center")
+        curve_labels.append(dict(text="ergodic" + s.channel_label(), xy=(x[-1], y[-1]),
+                                 fontsize=8, colour="#444444"))
 
-    # Schemes: point, name, and the horizontal distance to the bound (for a
-    # fading scheme: to its channel's ergodic bound at its rho). Schemes
-    # at the same eta share an arrow line: the first labels above it, the
-    # next ones below, so the labels never sit on each other.
-    per_eta = {}
-    for i, s in enumerate(schemes):
+    # Schemes: point, and a horizontal arrow to the bound (for a fading
+    # scheme: to its channel's ergodic bound at its rho). The distance is
+    # written in the legend; the name is placed beside the point.
+    name_labels, points, gaps = [], [], {}
+    for s in schemes:
         if not math.isfinite(s.at_target):
             continue
-        colour, marker = PALETTE[i % len(PALETTE)], MARKERS[i % len(MARKERS)]
         limit = float(shannon_ebno_db(s.eta)) if s.eta > 0 else s.shannon
         if s.fading() and math.isfinite(s.ergodic):
             limit = s.ergodic
         ax.annotate("", xy=(s.at_target, s.eta), xytext=(limit, s.eta),
-                    arrowprops=dict(arrowstyle="<|-|>", color=colour, linewidth=1.1,
+                    arrowprops=dict(arrowstyle="<|-|>", color=s.colour, linewidth=1.1,
                                     shrinkA=0, shrinkB=4, mutation_scale=9), zorder=4)
-        ax.plot([s.at_target], [s.eta], marker=marker, color=colour, markersize=8,
+        ax.plot([s.at_target], [s.eta], marker=s.marker, color=s.colour, markersize=8,
                 markeredgecolor="white", markeredgewidth=0.8, linestyle="none", zorder=5)
-        gap = s.at_target - limit
-        k = per_eta.get(round(s.eta, 2), 0)
-        per_eta[round(s.eta, 2)] = k + 1
-        dy, va = (2, "bottom") if k == 0 else (-3 - 11 * (k - 1), "top")
-        ax.annotate(f"{gap:.2f} dB", xy=(0.5 * (limit + s.at_target), s.eta), xytext=(0, dy),
-                    textcoords="offset points", ha="center", va=va, fontsize=8.5,
-                    color=colour, fontweight="semibold", zorder=6,
-                    bbox=dict(boxstyle="round,pad=0.1", facecolor="white", edgecolor="none",
-                              alpha=0.8))
-        ax.annotate(s.name, xy=(s.at_target, s.eta), xytext=(7, -3), textcoords="offset points",
-                    ha="left", va="top", fontsize=8.5, color=colour, zorder=6)
+        gaps[s.name] = s.at_target - limit
+        points.append((s.at_target, s.eta))
+        name_labels.append(dict(text=s.name, xy=(s.at_target, s.eta), colour=s.colour,
+                                fontsize=8.5))
 
     ax.set_xlim(x_lo, x_hi)
     ax.set_ylim(0, y_max)
@@ -143,11 +137,12 @@ def make_figure(path, schemes, meta, dpi):
                               linestyle=(0, (6, 2, 1, 2)),
                               label="ergodic capacity, Gaussian input, receiver knows h "
                                     "(\u03b7 = \u03c1, Eb/N0 per branch)"))
-    for i, s in enumerate(schemes):
+    for s in schemes:
         if math.isfinite(s.at_target):
-            handles.append(Line2D([], [], color=PALETTE[i % len(PALETTE)],
-                                  marker=MARKERS[i % len(MARKERS)], linestyle="none",
-                                  markersize=7, markeredgecolor="white", label=s.label()))
+            handles.append(Line2D([], [], color=s.colour, marker=s.marker, linestyle="none",
+                                  markersize=7, markeredgecolor="white",
+                                  label=f"{s.label()}\n{s.at_target:.2f} dB, "
+                                        f"{gaps[s.name]:.2f} dB from the bound"))
     missing = [s.name for s in schemes if not math.isfinite(s.at_target)]
     if missing:
         handles.append(Line2D([], [], linestyle="none",
@@ -158,6 +153,9 @@ def make_figure(path, schemes, meta, dpi):
                     + ("\n(fading schemes: to their ergodic bound)" if seen_channels else ""))
     fig.suptitle(f"Power\u2013bandwidth plane at target BER {target_text}", fontsize=13.5,
                  fontweight="semibold")
-    ax.text(1.01, 0.0, provenance(path, meta).replace("  \u00b7  ", "\n"), transform=ax.transAxes,
-            ha="left", va="bottom", fontsize=7, color="#808080")
+    # supxlabel: the constrained layout reserves room, so nothing overlaps it.
+    fig.supxlabel(provenance(path, meta), x=0.01, ha="left", fontsize=7, color="#808080")
+    # Names beside their points, then the curve labels, each clear of every
+    # text drawn so far (this freezes the layout).
+    place_labels(fig, ax, name_labels + curve_labels, obstacles=points)
     return fig

@@ -23,7 +23,7 @@ import matplotlib
 import numpy as np
 from matplotlib.figure import Figure
 
-from plot_style import PALETTE, STYLE, provenance
+from plot_style import STYLE, provenance
 
 
 def raised_cosine_spectrum(f, rolloff):
@@ -71,7 +71,9 @@ def _spectrum_panel(ax, s, colour):
 def _eye_panel(ax, s, colour):
     t = s.eye_time
     for row in s.eye[:200]:
-        ax.plot(t, row, color=colour, linewidth=0.5, alpha=0.25)
+        # Rasterized in the SVG (an embedded image): 200 traces as vectors
+        # made the report's signal figure most of its size.
+        ax.plot(t, row, color=colour, linewidth=0.5, alpha=0.25, rasterized=True)
     ax.axvline(0.0, color="#222222", linewidth=0.8, linestyle="--", label="ideal instant")
     if s.timing_offset:
         ax.axvline(s.timing_offset, color="#D55E00", linewidth=1.0,
@@ -84,7 +86,7 @@ def _eye_panel(ax, s, colour):
 
 
 def _constellation_panel(ax, s, colour):
-    ax.plot(s.const_i, s.const_q, ".", color=colour, markersize=1.6, alpha=0.5)
+    ax.plot(s.const_i, s.const_q, ".", color=colour, markersize=1.6, alpha=0.5, rasterized=True)
     lim = 1.25 * max(1.0, float(np.percentile(np.abs(np.concatenate([s.const_i, s.const_q])),
                                               99.5)))
     ax.set_xlim(-lim, lim)
@@ -99,7 +101,7 @@ def _constellation_panel(ax, s, colour):
 
 def make_figure(path, schemes, meta, dpi):
     matplotlib.rcParams.update(STYLE)
-    colour = {s.name: PALETTE[i % len(PALETTE)] for i, s in enumerate(schemes)}
+    colour = {s.name: s.colour for s in schemes}  # the run's colour (assign_styles)
     shaped = [s for s in schemes if s.psd_f is not None and s.rolloff is not None
               and s.eye is not None and s.const_i is not None]
     plain = [s for s in schemes if s not in shaped and s.const_i is not None][:4]

@@ -103,3 +103,51 @@ set_tests_properties(python_checker_rejects_broken_files python_plot_fake_file
   PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 120)
 set_tests_properties(python_h5_layout_of_real_run
   PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 600)
+
+# (e) A demo-like file: configs/demo.ini (every scheme group: uncoded, coded,
+#     shaped, fading) cut short with the --set limits below (about a minute
+#     on 2 cores). Fixture of the figure and report tests.
+set(_capgap_demo_h5 ${_capgap_py_work}/demo/demo.h5)
+file(MAKE_DIRECTORY ${_capgap_py_work}/demo)
+add_test(NAME python_demo_file
+  COMMAND ${CMAKE_BINARY_DIR}/capgap run ${CMAKE_SOURCE_DIR}/configs/demo.ini
+          -o ${_capgap_demo_h5} -q --threads 2
+          --set sweep.stop_bit_errors=30 --set sweep.stop_bits=200000
+          --set sweep.target_ber=1e-3 --set sweep.ber_floor=1e-4
+          --set sweep.target_fer=1e-2 --set sweep.stop_frame_errors=20
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_demo_file PROPERTIES LABELS python TIMEOUT 600
+  FIXTURES_SETUP capgap_demo_h5)
+
+# (f) The demo's figures (and a synthetic four-scheme file's single figure):
+#     no two drawn texts overlap (matplotlib's renderer extents), one figure
+#     per scheme group, one colour per scheme; the checker first proves it
+#     catches a deliberate overlap.
+add_test(NAME python_figure_text_overlaps
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_figure_overlaps.py
+          --analysis ${CMAKE_SOURCE_DIR}/analysis --h5 ${_capgap_demo_h5}
+          --fake-maker ${_capgap_py_dir}/make_fake_h5.py
+          --workdir ${_capgap_py_work}/overlaps
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_figure_text_overlaps PROPERTIES LABELS python
+  ENVIRONMENT "${_capgap_py_env}" TIMEOUT 300 FIXTURES_REQUIRED capgap_demo_h5)
+
+# (g) capgap report on the demo-like file: the HTML's tables hold the HDF5
+#     values, no script, nothing outside the file, one inline SVG per figure.
+add_test(NAME python_report_tables
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_report_browser.py
+          --capgap ${CMAKE_BINARY_DIR}/capgap --h5 ${_capgap_demo_h5}
+          --analysis ${CMAKE_SOURCE_DIR}/analysis --workdir ${_capgap_py_work}/report
+  WORKING_DIRECTORY ${_capgap_py_work})
+# (h) The same report in headless chromium (DevTools over a pipe): no console
+#     error, no request leaving the file, every figure drawn (screenshot not
+#     blank), the DOM's table cells equal to the HDF5 values. Skipped (77)
+#     without chromium, unless CAPGAP_REQUIRE_BROWSER=1 (set by .ci/run).
+add_test(NAME python_report_browser
+  COMMAND ${CAPGAP_PYTHON} -B ${_capgap_py_dir}/check_report_browser.py --browser
+          --capgap ${CMAKE_BINARY_DIR}/capgap --h5 ${_capgap_demo_h5}
+          --analysis ${CMAKE_SOURCE_DIR}/analysis --workdir ${_capgap_py_work}/report_browser
+  WORKING_DIRECTORY ${_capgap_py_work})
+set_tests_properties(python_report_tables python_report_browser PROPERTIES LABELS python
+  ENVIRONMENT "${_capgap_py_env}" TIMEOUT 300 FIXTURES_REQUIRED capgap_demo_h5
+  SKIP_RETURN_CODE 77)

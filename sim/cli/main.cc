@@ -1,8 +1,9 @@
 // capgap command-line entry: parses the arguments of `run` (simulate a scheme
 // file, checkpointed and resumable, across MPI ranks when built with
 // CAPGAP_MPI and started by an MPI launcher), `theory` (closed-form tables
-// and limits) and `summary` (table of a curves file), installs the signal
-// handlers and calls Run / RunTheory / RunSummary (sim/run/), which do the work and
+// and limits), `summary` (table of a curves file) and `report` (HTML report of a
+// curves file), installs the signal handlers and calls Run / RunTheory /
+// RunSummary / RunReport (sim/run/), which do the work and
 // own every check and message. Exit statuses: sim/run/run.h and the README.
 #include <atomic>
 #include <boost/program_options.hpp>
@@ -14,6 +15,7 @@
 
 #include "sim/config/config.h"
 #include "sim/io/build_info.h"
+#include "sim/run/report_command.h"
 #include "sim/run/run.h"
 #include "sim/run/theory_command.h"
 #if CAPGAP_MPI
@@ -55,6 +57,7 @@ const char kMainHelp[] =
     "  capgap theory --modulation NAME --ebno-db FROM to TO by STEP [--rate R] [--csv]\n"
     "  capgap theory --bandwidth HZ --snr-db X\n"
     "  capgap summary FILE.h5 [FILE2.h5 ...]   (several: side by side)\n"
+    "  capgap report FILE.h5 [-o FILE.html]\n"
     "  capgap COMMAND --help\n";
 
 std::string JoinArgs(int argc, char** argv) {
@@ -221,6 +224,37 @@ int CmdSummary(int argc, char** argv) {
   return RunSummaryComparison(paths, std::cout, std::cerr);
 }
 
+// ------------------------------------------------------------------ report
+int CmdReport(int argc, char** argv) {
+  po::options_description opts("capgap report FILE.h5 [-o FILE.html]");
+  ReportOptions report;
+  opts.add_options()("help,h", "show this help")(
+      "output,o", po::value(&report.output),
+      "HTML file to write, in an existing directory (default: FILE with .html)");
+  po::options_description hidden;
+  hidden.add_options()("file", po::value(&report.input));
+  po::options_description all;
+  all.add(opts).add(hidden);
+  po::positional_options_description pos;
+  pos.add("file", 1);
+  po::variables_map vm;
+  try {
+    po::store(po::command_line_parser(argc, argv).options(all).positional(pos).run(), vm);
+    po::notify(vm);
+  } catch (const std::exception& e) {
+    return Fail(std::string("report: ") + e.what() + " (see capgap report --help)", kExitUsage);
+  }
+  if (vm.count("help")) {
+    std::cout << opts
+              << "\nWrites one self-contained HTML file (inline SVG figures and styles, no\n"
+                 "script, nothing fetched from a network): provenance, summary tables, every\n"
+                 "figure, per-scheme details with counts, intervals and stop reasons, and the\n"
+                 "assumptions behind the numbers. Runs analysis/report.py with Python 3.\n";
+    return 0;
+  }
+  return RunReport(report);
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -242,6 +276,7 @@ int main(int argc, char** argv) {
   if (cmd == "run") return CmdRun(argc - 1, argv + 1, command_line);
   if (cmd == "theory") return CmdTheory(argc - 1, argv + 1);
   if (cmd == "summary") return CmdSummary(argc - 1, argv + 1);
-  return Fail("unknown command '" + cmd + "'; commands: run, theory, summary (capgap --help)",
+  if (cmd == "report") return CmdReport(argc - 1, argv + 1);
+  return Fail("unknown command '" + cmd + "'; commands: run, theory, summary, report (capgap --help)",
               kExitUsage);
 }

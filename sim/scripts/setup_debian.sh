@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Installs the Debian 12 packages capgap needs to build, test and plot, and
 # says which ones it installs. Safe to re-run: present packages are skipped.
-# Usage: bash sim/scripts/setup_debian.sh [--mpi | --fuzz]
+# Usage: bash sim/scripts/setup_debian.sh [--mpi | --fuzz | --browser]
 set -euo pipefail
 
 packages=(
@@ -17,6 +17,12 @@ fi
 # The fuzz targets (tests/fuzz): clang with libFuzzer and the sanitizer runtimes.
 if [[ "${1:-}" == "--fuzz" ]]; then
   packages+=(clang-14 libclang-rt-14-dev)
+fi
+
+# The browser test of `capgap report` (tests/python/check_report_browser.py):
+# Debian's chromium, run headless.
+if [[ "${1:-}" == "--browser" ]]; then
+  packages+=(chromium)
 fi
 
 missing=()

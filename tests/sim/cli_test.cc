@@ -74,8 +74,29 @@ TEST(Cli, MalformedRangeAndUnknownCommandAreUsageErrors) {
       << colon.text;
   const Output o = Capgap("simulate x");
   EXPECT_EQ(o.status, 2);
-  EXPECT_EQ(o.text, "capgap: unknown command 'simulate'; commands: run, theory, summary (capgap --help)\n");
+  EXPECT_EQ(o.text, "capgap: unknown command 'simulate'; commands: run, theory, summary, report (capgap --help)\n");
   EXPECT_EQ(Capgap("run").status, 2);
+}
+
+TEST(Cli, ReportRefusesBadPathsBeforeStartingPython) {
+  const fs::path dir = TempDir();
+  Output o = Capgap("report /nonexistent/x.h5");
+  EXPECT_EQ(o.status, 1);
+  EXPECT_EQ(o.text, "capgap: report: /nonexistent/x.h5: no such file\n");
+  o = Capgap("report " + Config("ci_tiny.ini") + " -o " + (dir / "r.txt").string());
+  EXPECT_EQ(o.status, 2);
+  EXPECT_EQ(o.text, "capgap: report: -o " + (dir / "r.txt").string() +
+                        ": the report must end in .html\n");
+  o = Capgap("report " + Config("ci_tiny.ini") + " -o /nonexistent/r.html");
+  EXPECT_EQ(o.status, 1);
+  EXPECT_EQ(o.text, "capgap: report: -o /nonexistent/r.html: directory /nonexistent does not exist\n");
+  EXPECT_EQ(Capgap("report").status, 2);
+  // Not an HDF5 file: the script refuses it, naming the file, and writes nothing.
+  o = Capgap("report " + Config("ci_tiny.ini") + " -o " + (dir / "r.html").string());
+  EXPECT_EQ(o.status, 1);
+  EXPECT_NE(o.text.find(Config("ci_tiny.ini") + ": cannot open as HDF5"), std::string::npos)
+      << o.text;
+  EXPECT_FALSE(fs::exists(dir / "r.html"));
 }
 
 TEST(Cli, UnreadableFilesAreReported) {
