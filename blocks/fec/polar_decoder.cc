@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstring>
+#include <limits>
 #include <string>
 
 #include "blocks/fec/polar_encoder.h"
@@ -42,10 +43,20 @@ PolarScDecoder::PolarScDecoder(const PolarCode& code, bool fast_nodes)
         k = kRate1;
       } else if (frozen == size - 1 && !frozen_[Sz(leaf + size - 1)]) {
         k = kRepetition;
+      } else if (frozen == 1 && frozen_[Sz(leaf)]) {
+        k = kSpc;
       }
       kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)] = k;
     }
   }
+}
+
+int PolarScDecoder::spc_nodes() const {
+  int count = 0;
+  for (std::size_t i = 2; i < kind_.size(); ++i) {
+    count += kind_[i] == kSpc && kind_[i / 2] != kSpc;
+  }
+  return count;
 }
 
 PolarScDecoder::Workspace PolarScDecoder::MakeWorkspace() const {
@@ -91,6 +102,33 @@ void PolarScDecoder::Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat
       std::memset(out, u, Sz(size));
       std::memset(u_hat + leaf, 0, Sz(size - 1));
       u_hat[leaf + size - 1] = u;
+      return;
+    }
+    case kSpc: {
+      // Wagner's rule: hard decisions, and if their parity is odd the least
+      // reliable one flipped. Taken only when no LLR is 0 and, with odd
+      // parity, the smallest |LLR| is unique; otherwise the recursion.
+      Bit parity = 0;
+      bool zero = false;
+      int arg = 0, ties = 0;
+      float least = std::numeric_limits<float>::infinity();
+      for (int i = 0; i < size; ++i) {
+        const float a = std::abs(in[i]);
+        zero |= a == 0.0f;
+        parity ^= HardDecision(in[i]);
+        if (a < least) {
+          least = a;
+          arg = i;
+          ties = 0;
+        } else if (a == least) {
+          ++ties;
+        }
+      }
+      if (zero || (parity && ties > 0)) break;
+      for (int i = 0; i < size; ++i) out[i] = HardDecision(in[i]);
+      out[arg] ^= parity;
+      std::memcpy(u_hat + leaf, out, Sz(size));
+      PolarTransform(std::span<Bit>(u_hat + leaf, Sz(size)));
       return;
     }
     default:

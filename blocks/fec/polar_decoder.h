@@ -47,9 +47,14 @@ namespace capgap {
 // decoders: algorithm and implementation", IEEE J. Sel. Areas Commun. 32(5),
 // 2014) decides the sign of the sum of its LLRs, summed in the tree order of
 // the recursion (pairwise by halves), so the float result is the last
-// leaf's LLR bit for bit. Decisions are therefore identical to plain SC
-// (tested on random LLRs, zeros included). SPC nodes are not taken: their ML
-// decision can differ from SC's.
+// leaf's LLR bit for bit. A single-parity-check node (only its first leaf
+// frozen, size >= 4; Sarkis et al. 2014) takes Wagner's rule: the hard
+// decisions, and with odd parity the least reliable one flipped (the ML
+// decision, which min-sum SC reaches on such a subtree); it falls back to
+// the recursion when an LLR is 0 or, with odd parity, the smallest |LLR| is
+// not unique (ties that SC breaks by its own order). Decisions are
+// therefore identical to plain SC (tested on random LLRs with +-0, on
+// whole-number LLRs full of ties, and on punctured and shortened codes).
 class PolarScDecoder {
  public:
   explicit PolarScDecoder(const PolarCode& code, bool fast_nodes = true);
@@ -65,8 +70,11 @@ class PolarScDecoder {
   void Decode(std::span<const float> llr, std::span<Bit> u_hat, std::span<Bit> x_hat,
               Workspace& ws) const;
 
+  // Number of SPC nodes the decoder takes (outermost ones; for tests).
+  int spc_nodes() const;
+
  private:
-  enum NodeKind : std::uint8_t { kPlain, kRate0, kRate1, kRepetition };
+  enum NodeKind : std::uint8_t { kPlain, kRate0, kRate1, kRepetition, kSpc };
   void Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat, Workspace& ws) const;
   int m_;
   std::vector<std::uint8_t> frozen_;

@@ -154,16 +154,21 @@ TEST(PolarDecoders, SclWithListOneEqualsScOnRandomLlrs) {
 }
 
 TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
-  // Rate-0, rate-1 and repetition nodes against the plain recursion, on
+  // Rate-0, rate-1, repetition and single-parity-check nodes against the
+  // plain recursion, on
   // random LLRs with exact zeros (+0 and -0), punctured (LLR 0) and
   // shortened (1e20) positions, at several rates and constructions: u_hat
   // and x_hat identical bit for bit (K from 1 to N, so every node kind
   // occurs).
+  // Half the frames carry small whole-number LLRs (exact float sums), so
+  // equal magnitudes and sums that cancel to 0 occur often: the ties on
+  // which an SPC node must fall back to the recursion.
   std::mt19937 rng(9);
   std::normal_distribution<float> noise(0.0f, 2.0f);
   int frames = 0;
+  int spc_nodes = 0;
   for (int e : {16, 100, 256, 1000, 4096}) {
-    for (int k : {1, e / 8, e / 2, 7 * e / 8, e}) {
+    for (int k : {1, e / 8, e / 2, 7 * e / 8, 15 * e / 16, e - 1, e}) {
       for (PolarConstruction c : {PolarConstruction::kGa, PolarConstruction::kBeta}) {
         const PolarCode code = MakeCode(e, k, c);
         PolarScDecoder fast(code, true), plain(code, false);
@@ -172,8 +177,12 @@ TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
         const auto n = static_cast<std::size_t>(code.mother_length);
         std::vector<Bit> u1(n), x1(n), u2(n), x2(n);
         std::vector<float> llr(n);
+        spc_nodes += fast.spc_nodes();
         for (int trial = 0; trial < 20; ++trial) {
           for (auto& l : llr) l = 1.0f + noise(rng);
+          if (trial % 2) {
+            for (auto& l : llr) l = std::round(l);
+          }
           for (std::size_t j = 0; j < n; ++j) {
             const unsigned r = rng() % 16;
             if (r == 0) llr[j] = 0.0f;
@@ -194,7 +203,8 @@ TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
       }
     }
   }
-  EXPECT_EQ(frames, 5 * 5 * 2 * 20);
+  EXPECT_EQ(frames, 5 * 7 * 2 * 20);
+  EXPECT_GT(spc_nodes, 20);  // the SPC node is exercised
 }
 
 TEST(PolarDecoders, Rate1AndRepetitionNodesDecideAsTheirClosedForms) {
