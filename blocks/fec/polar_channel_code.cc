@@ -95,7 +95,13 @@ void PolarChannelCode::Decode(std::span<const float> llrs, std::span<Bit> info,
     (void)n;
     if (!scl_) {
       sc_.Decode(ws.llr, ws.u_hat, ws.mother, ws.sc);
-      encoder_.Message(ws.mother, ws.scratch, ws.message);
+      if (options_.systematic) {
+        encoder_.Message(ws.mother, ws.scratch, ws.message);
+      } else {  // u itself: no transform of x back to u
+        for (std::size_t i = 0; i < ws.message.size(); ++i) {
+          ws.message[i] = ws.u_hat[static_cast<std::size_t>(c.info_positions[i])];
+        }
+      }
     } else {
       scl_->Decode(ws.llr, ws.scl);
       const int paths = ws.scl.paths();

@@ -4,6 +4,7 @@
 #include "blocks/fec/polar_decoder.h"
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
 #include <cstring>
 #include <limits>
@@ -18,7 +19,12 @@ inline float F(float a, float b) {
   const float m = std::min(std::abs(a), std::abs(b));
   return ((a < 0) != (b < 0)) ? -m : m;
 }
-inline float G(float a, float b, Bit u) { return u ? b - a : b + a; }
+// b + (1 - 2u) a with the sign of a flipped by u (branchless; b + (-a) is
+// b - a exactly in IEEE arithmetic, so the result is the same bit for bit).
+inline float G(float a, float b, Bit u) {
+  return b + std::bit_cast<float>(std::bit_cast<std::uint32_t>(a) ^
+                                  (static_cast<std::uint32_t>(u) << 31));
+}
 inline Bit HardDecision(float l) { return l < 0 ? Bit{1} : Bit{0}; }
 
 std::size_t Sz(int x) { return static_cast<std::size_t>(x); }
