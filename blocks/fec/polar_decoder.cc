@@ -248,15 +248,52 @@ std::span<const Bit> PolarSclDecoder::Workspace::Codeword(int rank) const {
 
 float PolarSclDecoder::Workspace::Metric(int rank) const { return metric_[Sz(rank_[Sz(rank)])]; }
 
-PolarSclDecoder::PolarSclDecoder(const PolarCode& code, int list_size)
-    : m_(code.m), list_(list_size), frozen_(code.frozen) {}
+PolarSclDecoder::PolarSclDecoder(const PolarCode& code, int list_size, bool fast_nodes)
+    : m_(code.m), list_(list_size), frozen_(code.frozen), kind_(Sz(2) << code.m, 0) {
+  if (!fast_nodes) return;
+  const int n = 1 << m_;
+  for (int s = 1; s <= m_; ++s) {
+    const int size = 1 << s;
+    for (int leaf = 0; leaf < n; leaf += size) {
+      int frozen = 0;
+      for (int i = leaf; i < leaf + size; ++i) frozen += frozen_[Sz(i)];
+      std::uint8_t k = 0;
+      if (frozen == size) {
+        k = 1;
+      } else if (frozen == size - 1 && !frozen_[Sz(leaf + size - 1)]) {
+        k = 2;
+      }
+      kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)] = k;
+    }
+  }
+}
 
-Result<PolarSclDecoder> PolarSclDecoder::Create(const PolarCode& code, int list_size) {
+Result<PolarSclDecoder> PolarSclDecoder::Create(const PolarCode& code, int list_size,
+                                                bool fast_nodes) {
   if (list_size < 1 || list_size > kMaxListSize) {
     return Status::Error("list size " + std::to_string(list_size) + ": must be in [1, 32]");
   }
-  return PolarSclDecoder(code, list_size);
+  return PolarSclDecoder(code, list_size, fast_nodes);
 }
+
+namespace {
+
+// Leaf LLRs of a subtree of `size` inputs when every decision in it is 0:
+// left half f, right half g(a, b, 0) = b + a, recursively (the operations of
+// the SC recursion). scratch: `size` floats.
+void ZeroDecisionLeaves(const float* in, int size, float* leaves, float* scratch) {
+  if (size == 1) {
+    leaves[0] = in[0];
+    return;
+  }
+  const int h = size / 2;
+  for (int i = 0; i < h; ++i) scratch[i] = F(in[i], in[i + h]);
+  ZeroDecisionLeaves(scratch, h, leaves, scratch + h);
+  for (int i = 0; i < h; ++i) scratch[i] = G(in[i], in[i + h], 0);
+  ZeroDecisionLeaves(scratch, h, leaves + h, scratch + h);
+}
+
+}  // namespace
 
 PolarSclDecoder::Workspace PolarSclDecoder::MakeWorkspace() const {
   Workspace w;
@@ -281,6 +318,7 @@ PolarSclDecoder::Workspace PolarSclDecoder::MakeWorkspace() const {
   w.keep_.assign(2 * l, 0);
   w.next_active_.assign(l, 0);
   w.rank_.assign(l, 0);
+  w.zero_scratch_.assign(2 * n, 0.0f);
   return w;
 }
 
@@ -354,6 +392,34 @@ void PolarSclDecoder::Node(int s, int leaf, const float* channel, Workspace& w) 
   auto in = [&](int p) -> const float* {
     return s == m_ ? channel : LlrArray(w, s, LlrIdx(w, p, s));
   };
+  const std::uint8_t kind = kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)];
+  if (kind != 0) {
+    const int size = 2 * h;
+    float* leaves = w.zero_scratch_.data();
+    float* scratch = leaves + size;
+    for (int k = 0; k < w.active_count_; ++k) {
+      const int p = w.active_[Sz(k)];
+      ZeroDecisionLeaves(in(p), size, leaves, scratch);
+      const int frozen = kind == 1 ? size : size - 1;
+      float& metric = w.metric_[Sz(p)];
+      for (int i = 0; i < frozen; ++i) {
+        if (leaves[i] < 0) metric -= leaves[i];
+      }
+      if (kind == 1) {
+        std::memset(WriteBeta(w, p, s, false), 0, Sz(size));
+      } else {
+        WriteLlr(w, p, 0)[0] = leaves[size - 1];
+      }
+    }
+    if (kind == 1) return;
+    Leaf(leaf + size - 1, w);  // may clone and drop paths
+    for (int k = 0; k < w.active_count_; ++k) {
+      const int p = w.active_[Sz(k)];
+      const Bit u = BetaArray(w, 0, BetaIdx(w, p, 0))[0];
+      std::memset(WriteBeta(w, p, s, false), u, Sz(size));
+    }
+    return;
+  }
   for (int k = 0; k < w.active_count_; ++k) {
     const int p = w.active_[Sz(k)];
     const float* a = in(p);

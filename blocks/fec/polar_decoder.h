@@ -23,6 +23,17 @@
 // metric (ties: list order); CRC selection is the caller's
 // (polar_channel_code.h).
 //
+// SCL simplified nodes (fast_nodes = true): in a rate-0 subtree, and in the
+// frozen leaves of a repetition subtree, every earlier decision inside the
+// subtree is 0, so each path's leaf LLRs follow from one local pass of f and
+// g(., ., 0) over the subtree's input; the metric takes their penalties in
+// leaf order (the same float operations as leaf by leaf) and a repetition
+// node then splits paths once, on its last leaf's LLR. Rate-1 and SPC nodes
+// are not simplified in SCL: the usual limited-candidate enumeration
+// (Hashemi et al. 2017) ranks candidates by approximations whose decisions
+// can differ from leaf-by-leaf SCL, so only the exactly equivalent nodes
+// are kept (tested: metrics and codewords of every path identical).
+//
 // Both decoders allocate nothing per frame; the workspace holds all state.
 #ifndef CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
 #define CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
@@ -86,7 +97,10 @@ class PolarScDecoder {
 class PolarSclDecoder {
  public:
   static constexpr int kMaxListSize = 32;
-  static Result<PolarSclDecoder> Create(const PolarCode& code, int list_size);  // 1..32
+  // fast_nodes: rate-0 and repetition subtrees in one step per path (see
+  // below); decisions and metrics identical to the leaf-by-leaf recursion.
+  static Result<PolarSclDecoder> Create(const PolarCode& code, int list_size,  // 1..32
+                                        bool fast_nodes = true);
 
   int list_size() const { return list_; }
 
@@ -116,6 +130,7 @@ class PolarSclDecoder {
     std::vector<std::uint8_t> keep_;
     std::vector<int> next_active_;
     std::vector<int> rank_;  // after Decode: slots by rank
+    std::vector<float> zero_scratch_;  // fast nodes: 2^{m+1} floats
   };
   Workspace MakeWorkspace() const;
 
@@ -123,12 +138,15 @@ class PolarSclDecoder {
   void Decode(std::span<const float> llr, Workspace& ws) const;
 
  private:
-  PolarSclDecoder(const PolarCode& code, int list_size);
+  PolarSclDecoder(const PolarCode& code, int list_size, bool fast_nodes);
   void Node(int s, int leaf, const float* channel, Workspace& ws) const;
   void Leaf(int leaf, Workspace& ws) const;
   int m_;
   int list_;
   std::vector<std::uint8_t> frozen_;
+  // Per node (heap order as in PolarScDecoder): 0 plain, 1 rate-0,
+  // 2 repetition.
+  std::vector<std::uint8_t> kind_;
 };
 
 }  // namespace capgap
