@@ -345,16 +345,18 @@ void PolarSclDecoder::Leaf(int leaf, Workspace& w) const {
   if (c <= list_) {
     std::fill_n(w.keep_.begin(), c, std::uint8_t{1});
   } else {
-    for (int i = 0; i < c; ++i) w.order_[Sz(i)] = i;
-    const auto first = w.order_.begin();
     // The L smallest under the strict total order (metric, candidate
-    // index) form a unique set; nth_element finds it in linear time.
-    std::nth_element(first, first + (list_ - 1), first + c, [&](int a, int b) {
-      const float ma = w.cand_metric_[Sz(a)], mb = w.cand_metric_[Sz(b)];
-      return ma < mb || (ma == mb && a < b);
-    });
-    std::fill_n(w.keep_.begin(), c, std::uint8_t{0});
-    for (int i = 0; i < list_; ++i) w.keep_[Sz(w.order_[Sz(i)])] = 1;
+    // index) form a unique set: a candidate is kept when fewer than L
+    // candidates precede it. Counting is branch-free and, for c <= 64,
+    // cheaper than a selection algorithm.
+    const float* cm = w.cand_metric_.data();
+    for (int a = 0; a < c; ++a) {
+      const float ma = cm[a];
+      int before = 0;
+      for (int b = 0; b < a; ++b) before += cm[b] <= ma;
+      for (int b = a + 1; b < c; ++b) before += cm[b] < ma;
+      w.keep_[Sz(a)] = before < list_;
+    }
   }
   for (int k = 0; k < n; ++k) {
     if (!w.keep_[Sz(2 * k)] && !w.keep_[Sz(2 * k + 1)]) Kill(w, w.active_[Sz(k)]);
