@@ -45,6 +45,7 @@
 #include "blocks/core/status.h"
 #include "blocks/core/types.h"
 #include "blocks/fec/polar_construction.h"
+#include "blocks/kernels/polar_sc_kernels.h"
 
 namespace capgap {
 
@@ -84,8 +85,18 @@ class PolarScDecoder {
   // Number of SPC nodes the decoder takes (outermost ones; for tests).
   int spc_nodes() const;
 
+  // The node kinds and frozen flags, for the frames-across-lanes kernel
+  // (polar_sc_kernels.h), whose scalar oracle this decoder is.
+  PolarScTree tree() const { return {m_, kind_.data(), frozen_.data()}; }
+
  private:
-  enum NodeKind : std::uint8_t { kPlain, kRate0, kRate1, kRepetition, kSpc };
+  enum NodeKind : std::uint8_t {  // the values of PolarNodeKind
+    kPlain = kPolarNodePlain,
+    kRate0 = kPolarNodeRate0,
+    kRate1 = kPolarNodeRate1,
+    kRepetition = kPolarNodeRepetition,
+    kSpc = kPolarNodeSpc,
+  };
   void Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat, Workspace& ws) const;
   int m_;
   std::vector<std::uint8_t> frozen_;

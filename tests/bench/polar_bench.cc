@@ -15,13 +15,16 @@
 #include "blocks/core/rng_stream.h"
 #include "blocks/fec/polar_channel_code.h"
 #include "blocks/kernels/awgn_kernels.h"
+#include "blocks/kernels/dispatch.h"
+#include "blocks/kernels/polar_sc_kernels.h"
 
 namespace capgap {
 namespace {
 
 constexpr std::size_t kFrames = 64;
 
-void Run(benchmark::State& state, PolarDecoderKind kind, int list_size) {
+void Run(benchmark::State& state, PolarDecoderKind kind, int list_size, bool scalar = false) {
+  const bool was_forced = ForceScalarKernels(scalar);
   PolarCodeOptions o;
   o.info_bits = 512;
   o.length = 1024;
@@ -31,7 +34,8 @@ void Run(benchmark::State& state, PolarDecoderKind kind, int list_size) {
   o.decoder = kind;
   o.list_size = list_size;
   const auto code = PolarChannelCode::Create(o).value();
-  auto ws = code->MakeWorkspace(1);
+  const std::size_t batch = code->batch_frames(kFrames);  // 16 for SC on SIMD, else 1
+  auto ws = code->MakeWorkspace(static_cast<std::uint32_t>(batch));
   std::mt19937_64 rng(1);
   std::vector<Bit> info(kFrames * 512), coded(kFrames * 1024), out(info.size());
   for (auto& b : info) b = static_cast<Bit>(rng() & 1u);
@@ -45,11 +49,11 @@ void Run(benchmark::State& state, PolarDecoderKind kind, int list_size) {
   RngStream stream(DeriveKey(1, "polar_bench"), 0, 0, Substream::kNoise);
   AddRealNoise(y, static_cast<float>(std::sqrt(n0 / 2)), stream);
   for (auto& v : y) v = static_cast<float>(4.0 * v / n0);
-  std::vector<FrameDecodeResult> res(1);
+  std::vector<FrameDecodeResult> res(batch);
   for (auto _ : state) {
-    for (std::size_t f = 0; f < kFrames; ++f) {
-      code->Decode(std::span<const float>(y).subspan(f * 1024, 1024),
-                   std::span<Bit>(out).subspan(f * 512, 512), res, *ws);
+    for (std::size_t f = 0; f < kFrames; f += batch) {
+      code->Decode(std::span<const float>(y).subspan(f * 1024, batch * 1024),
+                   std::span<Bit>(out).subspan(f * 512, batch * 512), res, *ws);
     }
     benchmark::DoNotOptimize(out.data());
     benchmark::ClobberMemory();
@@ -57,13 +61,17 @@ void Run(benchmark::State& state, PolarDecoderKind kind, int list_size) {
   state.counters["info_bits_per_s"] = benchmark::Counter(
       static_cast<double>(state.iterations()) * static_cast<double>(out.size()),
       benchmark::Counter::kIsRate);
+  state.SetLabel(kind == PolarDecoderKind::kSc ? PolarScKernelTarget() : "scalar");
+  ForceScalarKernels(was_forced);
 }
 
 void BM_Sc(benchmark::State& s) { Run(s, PolarDecoderKind::kSc, 1); }
+void BM_ScScalar(benchmark::State& s) { Run(s, PolarDecoderKind::kSc, 1, true); }
 void BM_CaScl(benchmark::State& s) {
   Run(s, PolarDecoderKind::kScl, static_cast<int>(s.range(0)));
 }
 BENCHMARK(BM_Sc)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_ScScalar)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_CaScl)->Arg(1)->Arg(2)->Arg(4)->Arg(8)->Arg(32)->Unit(benchmark::kMillisecond);
 
 }  // namespace

@@ -1,0 +1,208 @@
+// Per-target body of the SC polar decoder with frames across lanes
+// (polar_sc_kernels.h), included once per instruction set by
+// polar_sc_kernels.cc and by the per-target test.
+//
+// Layout: element i of a node holds one float (LLR) or one uint32 (decision)
+// per frame, W = Lanes(float) frames side by side, so every node update of
+// the recursion is one vector operation per element whatever the node size
+// (the small nodes near the leaves, which dominate scalar SC, are as wide as
+// the big ones). Decisions are stored as the float sign bit (0 or
+// 0x80000000): g(a, b, u) = b + (a with its sign flipped by u) is one XOR and
+// one add, partial sums are XORs.
+//
+// Arithmetic is the scalar decoder's (polar_decoder.cc) operation by
+// operation: f = min(|a|, |b|) negated when exactly one of a < 0, b < 0
+// holds; g as above; leaf decision 1 iff L < 0; the repetition node's sum in
+// the recursion's order. The fast nodes decide per lane as the scalar ones
+// do; where the scalar decoder would fall back to the recursion in some lane
+// (a rate-1 or SPC node input with an LLR 0, an SPC tie), all lanes take the
+// recursion, whose decisions equal the fast node's in the other lanes. So
+// the decisions are those of plain SC in every lane, bit for bit.
+
+// Per-target include guard (Highway's toggle idiom).
+#if defined(CAPGAP_BLOCKS_KERNELS_POLAR_SC_KERNELS_INL_H_) == defined(HWY_TARGET_TOGGLE)
+#ifdef CAPGAP_BLOCKS_KERNELS_POLAR_SC_KERNELS_INL_H_
+#undef CAPGAP_BLOCKS_KERNELS_POLAR_SC_KERNELS_INL_H_
+#else
+#define CAPGAP_BLOCKS_KERNELS_POLAR_SC_KERNELS_INL_H_
+#endif
+
+#include <cstddef>
+#include <cstdint>
+#include <cstring>
+
+#include "blocks/kernels/polar_sc_kernels.h"
+#include "hwy/highway.h"
+
+HWY_BEFORE_NAMESPACE();
+namespace capgap::HWY_NAMESPACE {
+namespace hn = hwy::HWY_NAMESPACE;
+
+class PolarScLanes {
+ public:
+  using D = hn::ScalableTag<float>;
+  using DU = hn::RebindToUnsigned<D>;
+  using DI = hn::RebindToSigned<D>;
+  using V = hn::Vec<D>;
+  using VU = hn::Vec<DU>;
+
+  PolarScLanes(const PolarScTree& tree, float* llr, std::uint32_t* beta, std::uint32_t* u)
+      : t_(tree), w_(hn::Lanes(D())), llr_(llr), beta_(beta), u_(u) {}
+
+  std::size_t lanes() const { return w_; }
+
+  // in: N * W interleaved LLRs; x: N * W decisions (sign bits).
+  void Decode(const float* in, std::uint32_t* x) { Node(t_.m, 0, in, x); }
+
+ private:
+  V Load(const float* p, std::size_t i) const { return hn::LoadU(d_, p + i * w_); }
+  VU LoadB(const std::uint32_t* p, std::size_t i) const { return hn::LoadU(du_, p + i * w_); }
+  void Store(V v, float* p, std::size_t i) const { hn::StoreU(v, d_, p + i * w_); }
+  void StoreB(VU v, std::uint32_t* p, std::size_t i) const { hn::StoreU(v, du_, p + i * w_); }
+  VU Hard(V l) const {
+    return hn::And(hn::BitCast(du_, hn::VecFromMask(d_, hn::Lt(l, hn::Zero(d_)))),
+                   hn::Set(du_, 0x80000000u));
+  }
+  // u = x G on a block of `size` elements (involution), by vector XORs.
+  void Transform(std::uint32_t* p, std::size_t size) const {
+    for (std::size_t h = 1; h < size; h *= 2) {
+      for (std::size_t b = 0; b < size; b += 2 * h) {
+        for (std::size_t i = b; i < b + h; ++i) {
+          StoreB(hn::Xor(LoadB(p, i), LoadB(p, i + h)), p, i);
+        }
+      }
+    }
+  }
+
+  void Node(int s, std::size_t leaf, const float* in, std::uint32_t* out) {
+    if (s == 0) {
+      const VU b = t_.frozen[leaf] ? hn::Zero(du_) : Hard(Load(in, 0));
+      StoreB(b, out, 0);
+      StoreB(b, u_, leaf);
+      return;
+    }
+    const std::size_t size = std::size_t{1} << s;
+    const std::size_t h = size / 2;
+    const std::uint8_t kind = t_.kind[(std::size_t{1} << (t_.m - s)) + (leaf >> s)];
+    if (kind == kPolarNodeRate0) {
+      std::memset(out, 0, size * w_ * sizeof(std::uint32_t));
+      std::memset(u_ + leaf * w_, 0, size * w_ * sizeof(std::uint32_t));
+      return;
+    }
+    if (kind == kPolarNodeRate1 || kind == kPolarNodeSpc) {
+      auto zero = hn::Eq(Load(in, 0), hn::Zero(d_));
+      auto least = hn::Abs(Load(in, 0));
+      VU parity = Hard(Load(in, 0));
+      for (std::size_t i = 1; i < size; ++i) {
+        const V l = Load(in, i);
+        zero = hn::Or(zero, hn::Eq(l, hn::Zero(d_)));
+        least = hn::Min(least, hn::Abs(l));
+        parity = hn::Xor(parity, Hard(l));
+      }
+      bool fast = hn::AllFalse(d_, zero);
+      if (fast && kind == kPolarNodeSpc) {
+        // Lanes with odd parity need a unique least |L|.
+        auto ties = hn::Zero(di_);
+        for (std::size_t i = 0; i < size; ++i) {
+          const auto eq = hn::VecFromMask(d_, hn::Eq(hn::Abs(Load(in, i)), least));
+          ties = hn::Sub(ties, hn::BitCast(di_, eq));  // eq lanes are -1
+        }
+        const auto odd = hn::RebindMask(di_, hn::Ne(parity, hn::Zero(du_)));
+        fast = hn::AllFalse(di_, hn::And(odd, hn::Gt(ties, hn::Set(di_, 1))));
+      }
+      if (fast) {
+        for (std::size_t i = 0; i < size; ++i) {
+          const V l = Load(in, i);
+          VU b = Hard(l);
+          if (kind == kPolarNodeSpc) {
+            const VU flip = hn::BitCast(du_, hn::VecFromMask(d_, hn::Eq(hn::Abs(l), least)));
+            b = hn::Xor(b, hn::And(flip, parity));
+          }
+          StoreB(b, out, i);
+        }
+        std::memcpy(u_ + leaf * w_, out, size * w_ * sizeof(std::uint32_t));
+        Transform(u_ + leaf * w_, size);
+        return;
+      }
+    } else if (kind == kPolarNodeRepetition) {
+      float* t = llr_ + h * w_;  // level s - 1 scratch
+      for (std::size_t i = 0; i < h; ++i) Store(hn::Add(Load(in, i + h), Load(in, i)), t, i);
+      for (std::size_t q = h / 2; q >= 1; q /= 2) {
+        for (std::size_t i = 0; i < q; ++i) Store(hn::Add(Load(t, i + q), Load(t, i)), t, i);
+      }
+      const VU b = Hard(Load(t, 0));
+      for (std::size_t i = 0; i < size; ++i) StoreB(b, out, i);
+      std::memset(u_ + leaf * w_, 0, (size - 1) * w_ * sizeof(std::uint32_t));
+      StoreB(b, u_, leaf + size - 1);
+      return;
+    }
+    float* child = llr_ + h * w_;
+    std::uint32_t* child_beta = beta_ + h * w_;
+    for (std::size_t i = 0; i < h; ++i) {
+      const V a = Load(in, i), b = Load(in, i + h);
+      const V m = hn::Min(hn::Abs(a), hn::Abs(b));
+      const auto neg = hn::Xor(hn::Lt(a, hn::Zero(d_)), hn::Lt(b, hn::Zero(d_)));
+      Store(hn::IfThenElse(neg, hn::Neg(m), m), child, i);
+    }
+    Node(s - 1, leaf, child, child_beta);
+    std::memcpy(out, child_beta, h * w_ * sizeof(std::uint32_t));
+    for (std::size_t i = 0; i < h; ++i) {
+      const V a = Load(in, i), b = Load(in, i + h);
+      Store(hn::Add(b, hn::BitCast(d_, hn::Xor(hn::BitCast(du_, a), LoadB(out, i)))), child, i);
+    }
+    Node(s - 1, leaf + h, child, child_beta);
+    for (std::size_t i = 0; i < h; ++i) {
+      const VU r = LoadB(child_beta, i);
+      StoreB(hn::Xor(LoadB(out, i), r), out, i);
+      StoreB(r, out, i + h);
+    }
+  }
+
+  D d_;
+  DU du_;
+  DI di_;
+  PolarScTree t_;
+  std::size_t w_;
+  float* llr_;
+  std::uint32_t* beta_;
+  std::uint32_t* u_;
+};
+
+inline std::size_t PolarScLanesKernel() { return hn::Lanes(hn::ScalableTag<float>()); }
+
+// Decodes `frames` frames (frame-major LLRs, N each) in groups of W lanes;
+// x_hat and u_hat frame-major, one bit per byte. scratch: PolarScScratch
+// floats (polar_sc_kernels.h).
+inline void PolarScDecodeKernel(const PolarScTree& tree, const float* llr, std::size_t frames,
+                                Bit* x_hat, Bit* u_hat, float* scratch) {
+  const std::size_t n = std::size_t{1} << tree.m;
+  const std::size_t w = PolarScLanesKernel();
+  float* in = scratch;
+  float* levels = in + n * w;
+  auto* beta = reinterpret_cast<std::uint32_t*>(levels + n * w);
+  std::uint32_t* x = beta + n * w;
+  std::uint32_t* u = x + n * w;
+  PolarScLanes dec(tree, levels, beta, u);
+  for (std::size_t f0 = 0; f0 < frames; f0 += w) {
+    const std::size_t count = frames - f0 < w ? frames - f0 : w;
+    for (std::size_t lane = 0; lane < w; ++lane) {
+      // Unused lanes repeat the group's first frame (any valid LLRs do).
+      const float* src = llr + (f0 + (lane < count ? lane : 0)) * n;
+      for (std::size_t i = 0; i < n; ++i) in[i * w + lane] = src[i];
+    }
+    dec.Decode(in, x);
+    for (std::size_t lane = 0; lane < count; ++lane) {
+      Bit* xo = x_hat + (f0 + lane) * n;
+      Bit* uo = u_hat + (f0 + lane) * n;
+      for (std::size_t i = 0; i < n; ++i) {
+        xo[i] = static_cast<Bit>(x[i * w + lane] >> 31);
+        uo[i] = static_cast<Bit>(u[i * w + lane] >> 31);
+      }
+    }
+  }
+}
+
+}  // namespace capgap::HWY_NAMESPACE
+HWY_AFTER_NAMESPACE();
+
+#endif  // per-target include guard
