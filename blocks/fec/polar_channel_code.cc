@@ -17,7 +17,7 @@ class PolarWorkspace final : public ChannelCode::Workspace {
   std::vector<float> llr;
   // SC kernel: a batch's mother LLRs, decisions and the kernel's scratch.
   std::vector<float> batch_llr, kernel_scratch;
-  std::vector<Bit> batch_x, batch_u;
+  std::vector<Bit> batch_msg;
   PolarScDecoder::Workspace sc;
   PolarSclDecoder::Workspace scl;
 };
@@ -72,8 +72,7 @@ std::unique_ptr<ChannelCode::Workspace> PolarChannelCode::MakeWorkspace(
   if (!scl_ && PolarScKernelActive()) {
     const std::size_t frames = std::max<std::uint32_t>(max_frames, 1);
     ws->batch_llr.assign(frames * n, 0.0f);
-    ws->batch_x.assign(frames * n, 0);
-    ws->batch_u.assign(frames * n, 0);
+    ws->batch_msg.assign(frames * info_bits(), 0);
     ws->kernel_scratch.assign(PolarScScratch(code().m), 0.0f);
   }
   ws->message.assign(static_cast<std::size_t>(code().message_bits), 0);
@@ -118,22 +117,13 @@ void PolarChannelCode::Decode(std::span<const float> llrs, std::span<Bit> info,
         std::fill(dst, dst + n, fill);
         std::copy_n(llrs.begin() + static_cast<std::ptrdiff_t>((f0 + f) * e), e, dst + first);
       }
-      PolarScDecodeFrames(sc_.tree(), ws.batch_llr.data(), count, ws.batch_x.data(),
-                          ws.batch_u.data(), ws.kernel_scratch.data());
-      for (std::size_t f = 0; f < count; ++f) {
-        if (options_.systematic) {
-          encoder_.Message(std::span<const Bit>(ws.batch_x).subspan(f * n, n), ws.scratch,
-                           ws.message);
-        } else {
-          const Bit* u = ws.batch_u.data() + f * n;
-          for (std::size_t i = 0; i < ws.message.size(); ++i) {
-            ws.message[i] = u[static_cast<std::size_t>(c.info_positions[i])];
-          }
-        }
-        std::copy_n(ws.message.begin(), k,
-                    info.begin() + static_cast<std::ptrdiff_t>((f0 + f) * k));
-        results[f0 + f] = FrameDecodeResult{};
-      }
+      // The message bits (the first k of them are the information bits;
+      // the CRC is not checked by SC) straight out of the kernel.
+      PolarScDecodeFrames(sc_.tree(), ws.batch_llr.data(), count, c.info_positions.data(), k,
+                          options_.systematic, ws.batch_msg.data(), ws.kernel_scratch.data());
+      std::copy_n(ws.batch_msg.begin(), count * k,
+                  info.begin() + static_cast<std::ptrdiff_t>(f0 * k));
+      for (std::size_t f = 0; f < count; ++f) results[f0 + f] = FrameDecodeResult{};
     }
     return;
   }

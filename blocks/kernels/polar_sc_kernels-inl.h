@@ -170,11 +170,15 @@ class PolarScLanes {
 
 inline std::size_t PolarScLanesKernel() { return hn::Lanes(hn::ScalableTag<float>()); }
 
-// Decodes `frames` frames (frame-major LLRs, N each) in groups of W lanes;
-// x_hat and u_hat frame-major, one bit per byte. scratch: PolarScScratch
-// floats (polar_sc_kernels.h).
+// Decodes `frames` frames (frame-major LLRs, N each) in groups of W lanes
+// and writes, frame-major, the decisions at `count` positions: out[f * count
+// + j] = (from_x ? x : u)[positions[j]] of frame f, one bit per byte (the
+// message of a polar code is u or x at its information positions; only
+// those leave the lane layout). scratch: PolarScScratch floats
+// (polar_sc_kernels.h).
 inline void PolarScDecodeKernel(const PolarScTree& tree, const float* llr, std::size_t frames,
-                                Bit* x_hat, Bit* u_hat, float* scratch) {
+                                const int* positions, std::size_t count, bool from_x,
+                                Bit* out, float* scratch) {
   const std::size_t n = std::size_t{1} << tree.m;
   const std::size_t w = PolarScLanesKernel();
   float* in = scratch;
@@ -183,20 +187,27 @@ inline void PolarScDecodeKernel(const PolarScTree& tree, const float* llr, std::
   std::uint32_t* x = beta + n * w;
   std::uint32_t* u = x + n * w;
   PolarScLanes dec(tree, levels, beta, u);
+  const std::uint32_t* src_bits = from_x ? x : u;
   for (std::size_t f0 = 0; f0 < frames; f0 += w) {
-    const std::size_t count = frames - f0 < w ? frames - f0 : w;
-    for (std::size_t lane = 0; lane < w; ++lane) {
-      // Unused lanes repeat the group's first frame (any valid LLRs do).
-      const float* src = llr + (f0 + (lane < count ? lane : 0)) * n;
-      for (std::size_t i = 0; i < n; ++i) in[i * w + lane] = src[i];
+    const std::size_t group = frames - f0 < w ? frames - f0 : w;
+    // Transpose in tiles of 8 positions: each frame is read in runs of 8.
+    constexpr std::size_t kTile = 8;
+    for (std::size_t i0 = 0; i0 < n; i0 += kTile) {
+      const std::size_t i1 = i0 + kTile < n ? i0 + kTile : n;
+      for (std::size_t lane = 0; lane < w; ++lane) {
+        // Unused lanes repeat the group's first frame (any valid LLRs do).
+        const float* src = llr + (f0 + (lane < group ? lane : 0)) * n;
+        for (std::size_t i = i0; i < i1; ++i) in[i * w + lane] = src[i];
+      }
     }
     dec.Decode(in, x);
-    for (std::size_t lane = 0; lane < count; ++lane) {
-      Bit* xo = x_hat + (f0 + lane) * n;
-      Bit* uo = u_hat + (f0 + lane) * n;
-      for (std::size_t i = 0; i < n; ++i) {
-        xo[i] = static_cast<Bit>(x[i * w + lane] >> 31);
-        uo[i] = static_cast<Bit>(u[i * w + lane] >> 31);
+    for (std::size_t j0 = 0; j0 < count; j0 += kTile) {
+      const std::size_t j1 = j0 + kTile < count ? j0 + kTile : count;
+      for (std::size_t lane = 0; lane < group; ++lane) {
+        Bit* o = out + (f0 + lane) * count;
+        for (std::size_t j = j0; j < j1; ++j) {
+          o[j] = static_cast<Bit>(src_bits[static_cast<std::size_t>(positions[j]) * w + lane] >> 31);
+        }
       }
     }
   }

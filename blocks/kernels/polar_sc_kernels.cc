@@ -5,6 +5,7 @@
 #include "blocks/kernels/polar_sc_kernels.h"
 
 #include <cstddef>
+#include <cstdint>
 
 #include "blocks/kernels/dispatch.h"
 
@@ -21,9 +22,10 @@
 HWY_BEFORE_NAMESPACE();
 namespace capgap::HWY_NAMESPACE {
 
-void PolarScDecodeEntry(const PolarScTree& tree, const float* llr, std::size_t frames, Bit* x_hat,
-                        Bit* u_hat, float* scratch) {
-  PolarScDecodeKernel(tree, llr, frames, x_hat, u_hat, scratch);
+void PolarScDecodeEntry(const PolarScTree& tree, const float* llr, std::size_t frames,
+                        const int* positions, std::size_t count, bool from_x, Bit* out,
+                        float* scratch) {
+  PolarScDecodeKernel(tree, llr, frames, positions, count, from_x, out, scratch);
 }
 std::size_t PolarScLanesEntry() { return PolarScLanesKernel(); }
 
@@ -35,7 +37,8 @@ HWY_AFTER_NAMESPACE();
 namespace capgap {
 
 struct PolarScTable {
-  void (*decode)(const PolarScTree&, const float*, std::size_t, Bit*, Bit*, float*);
+  void (*decode)(const PolarScTree&, const float*, std::size_t, const int*, std::size_t,
+                 bool, Bit*, float*);
   std::size_t (*lanes)();
   static PolarScTable Resolve();
 };
@@ -69,11 +72,13 @@ std::size_t PolarScScratch(int m) {
 }
 
 void PolarScDecodeFrames(const PolarScTree& tree, const float* llr, std::size_t frames,
-                         Bit* x_hat, Bit* u_hat, float* scratch) {
+                         const int* positions, std::size_t count, bool from_x, Bit* out,
+                         float* scratch) {
 #ifndef CAPGAP_FORCE_SCALAR
-  Chosen().decode(tree, llr, frames, x_hat, u_hat, scratch);
+  Chosen().decode(tree, llr, frames, positions, count, from_x, out, scratch);
 #else
-  (void)tree, (void)llr, (void)frames, (void)x_hat, (void)u_hat, (void)scratch;
+  (void)tree, (void)llr, (void)frames, (void)positions, (void)count, (void)from_x, (void)out,
+      (void)scratch;
 #endif
 }
 

@@ -45,10 +45,15 @@ std::size_t PolarScKernelLanes();
 // chosen target (fixed for the process).
 std::size_t PolarScScratch(int m);
 
-// REQUIRES: PolarScKernelActive(); llr: frames * N; x_hat, u_hat: frames * N
-// bits; scratch: PolarScScratch(tree.m) floats.
+// Decodes `frames` frames and writes the decisions at `count` positions of
+// u (from_x false) or x (from_x true): out[f * count + j] = bit
+// positions[j] of frame f (a polar code's message is u, or x when
+// systematic, at its information positions; all N positions give u_hat or
+// x_hat). REQUIRES: PolarScKernelActive(); llr: frames * N; positions in
+// [0, N); out: frames * count bits; scratch: PolarScScratch(tree.m) floats.
 void PolarScDecodeFrames(const PolarScTree& tree, const float* llr, std::size_t frames,
-                         Bit* x_hat, Bit* u_hat, float* scratch);
+                         const int* positions, std::size_t count, bool from_x, Bit* out,
+                         float* scratch);
 
 // Target the kernel runs ("AVX3", ..., or the scalar name when forced).
 const char* PolarScKernelTarget();

@@ -1,7 +1,7 @@
 // SC polar decoding with frames across lanes, on every compiled target,
 // against the scalar decoder (PolarScDecoder with fast nodes, itself tested
-// equal to plain SC in polar_codec_test.cc): u_hat and x_hat identical bit
-// for bit, for batch sizes 1, 3, W - 1, W, W + 1 and 37 (W the target's
+// equal to plain SC in polar_codec_test.cc): u_hat and x_hat (all N
+// positions) identical bit for bit, for batch sizes 1, 3, W - 1, W, W + 1 and 37 (W the target's
 // float lanes), on codes of every node mix (K from 1 to N, GA and beta
 // orders, punctured and shortened), with random LLRs holding +-0, whole
 // numbers (exact ties for the SPC fallback) and shortened positions at 1e20.
@@ -19,9 +19,10 @@
 
 HWY_BEFORE_NAMESPACE();
 namespace capgap::HWY_NAMESPACE {
-void DecodeUnderTest(const PolarScTree& tree, const float* llr, std::size_t frames, Bit* x,
-                     Bit* u, float* scratch) {
-  PolarScDecodeKernel(tree, llr, frames, x, u, scratch);
+void DecodeUnderTest(const PolarScTree& tree, const float* llr, std::size_t frames,
+                     const int* positions, std::size_t count, bool from_x, Bit* out,
+                     float* scratch) {
+  PolarScDecodeKernel(tree, llr, frames, positions, count, from_x, out, scratch);
 }
 std::size_t LanesUnderTest() { return PolarScLanesKernel(); }
 }  // namespace capgap::HWY_NAMESPACE
@@ -81,8 +82,12 @@ TEST_P(PolarScKernelPerTarget, DecisionsEqualTheScalarDecoder) {
             }
           }
           std::vector<Bit> x(frames * n, 7), u(frames * n, 7), xs(n), us(n);
-          HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(scalar.tree(), llr.data(), frames, x.data(),
-                                                u.data(), scratch.data());
+          std::vector<int> all(n);
+          for (std::size_t j = 0; j < n; ++j) all[j] = static_cast<int>(j);
+          HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(scalar.tree(), llr.data(), frames, all.data(), n,
+                                                true, x.data(), scratch.data());
+          HWY_DYNAMIC_DISPATCH(DecodeUnderTest)(scalar.tree(), llr.data(), frames, all.data(), n,
+                                                false, u.data(), scratch.data());
           for (std::size_t f = 0; f < frames; ++f) {
             scalar.Decode(std::span<const float>(llr).subspan(f * n, n), us, xs, sws);
             const std::string label = "E " + std::to_string(e) + " K " + std::to_string(k) +
@@ -113,11 +118,16 @@ TEST(PolarScKernel, EntryPointMatchesScalarDecoderAndReportsItsTarget) {
   const std::size_t frames = 20, n = 1024;
   std::vector<float> llr(frames * n), scratch(PolarScScratch(code.m));
   for (auto& l : llr) l = noise(rng);
-  std::vector<Bit> x(frames * n), u(frames * n), xs(n), us(n);
-  PolarScDecodeFrames(scalar.tree(), llr.data(), frames, x.data(), u.data(), scratch.data());
+  // The information positions only, from u (non-systematic message).
+  const std::size_t k = code.info_positions.size();
+  std::vector<Bit> msg(frames * k, 7), xs(n), us(n);
+  PolarScDecodeFrames(scalar.tree(), llr.data(), frames, code.info_positions.data(), k, false,
+                      msg.data(), scratch.data());
   for (std::size_t f = 0; f < frames; ++f) {
     scalar.Decode(std::span<const float>(llr).subspan(f * n, n), us, xs, sws);
-    ASSERT_TRUE(std::equal(us.begin(), us.end(), u.begin() + static_cast<long>(f * n))) << f;
+    for (std::size_t j = 0; j < k; ++j) {
+      ASSERT_EQ(msg[f * k + j], us[static_cast<std::size_t>(code.info_positions[j])]) << f;
+    }
   }
   EXPECT_STRNE(PolarScKernelTarget(), kernel_dispatch::ScalarTargetName());
   EXPECT_GE(PolarScKernelLanes(), 1u);
