@@ -46,8 +46,8 @@ class PolarScLanes {
   using V = hn::Vec<D>;
   using VU = hn::Vec<DU>;
 
-  PolarScLanes(const PolarScTree& tree, float* llr, std::uint32_t* beta, std::uint32_t* u)
-      : t_(tree), w_(hn::Lanes(D())), llr_(llr), beta_(beta), u_(u) {}
+  PolarScLanes(const PolarScTree& tree, float* llr, std::uint32_t* u)
+      : t_(tree), w_(hn::Lanes(D())), llr_(llr), u_(u) {}
 
   std::size_t lanes() const { return w_; }
 
@@ -136,26 +136,23 @@ class PolarScLanes {
       StoreB(b, u_, leaf + size - 1);
       return;
     }
+    // The children write their decisions straight into the two halves of
+    // `out`, which are then combined in place (no copies).
     float* child = llr_ + h * w_;
-    std::uint32_t* child_beta = beta_ + h * w_;
     for (std::size_t i = 0; i < h; ++i) {
       const V a = Load(in, i), b = Load(in, i + h);
       const V m = hn::Min(hn::Abs(a), hn::Abs(b));
       const auto neg = hn::Xor(hn::Lt(a, hn::Zero(d_)), hn::Lt(b, hn::Zero(d_)));
       Store(hn::IfThenElse(neg, hn::Neg(m), m), child, i);
     }
-    Node(s - 1, leaf, child, child_beta);
-    std::memcpy(out, child_beta, h * w_ * sizeof(std::uint32_t));
+    Node(s - 1, leaf, child, out);
     for (std::size_t i = 0; i < h; ++i) {
       const V a = Load(in, i), b = Load(in, i + h);
       Store(hn::Add(b, hn::BitCast(d_, hn::Xor(hn::BitCast(du_, a), LoadB(out, i)))), child, i);
     }
-    Node(s - 1, leaf + h, child, child_beta);
-    for (std::size_t i = 0; i < h; ++i) {
-      const VU r = LoadB(child_beta, i);
-      StoreB(hn::Xor(LoadB(out, i), r), out, i);
-      StoreB(r, out, i + h);
-    }
+    std::uint32_t* right = out + h * w_;
+    Node(s - 1, leaf + h, child, right);
+    for (std::size_t i = 0; i < h; ++i) StoreB(hn::Xor(LoadB(out, i), LoadB(right, i)), out, i);
   }
 
   D d_;
@@ -164,7 +161,6 @@ class PolarScLanes {
   PolarScTree t_;
   std::size_t w_;
   float* llr_;
-  std::uint32_t* beta_;
   std::uint32_t* u_;
 };
 
@@ -183,24 +179,23 @@ inline void PolarScDecodeKernel(const PolarScTree& tree, const float* llr, std::
   const std::size_t w = PolarScLanesKernel();
   float* in = scratch;
   float* levels = in + n * w;
-  auto* beta = reinterpret_cast<std::uint32_t*>(levels + n * w);
-  std::uint32_t* x = beta + n * w;
+  auto* x = reinterpret_cast<std::uint32_t*>(levels + n * w);
   std::uint32_t* u = x + n * w;
-  PolarScLanes dec(tree, levels, beta, u);
+  PolarScLanes dec(tree, levels, u);
   const std::uint32_t* src_bits = from_x ? x : u;
   for (std::size_t f0 = 0; f0 < frames; f0 += w) {
     const std::size_t group = frames - f0 < w ? frames - f0 : w;
-    // Transpose in tiles of 8 positions: each frame is read in runs of 8.
-    constexpr std::size_t kTile = 8;
-    for (std::size_t i0 = 0; i0 < n; i0 += kTile) {
-      const std::size_t i1 = i0 + kTile < n ? i0 + kTile : n;
-      for (std::size_t lane = 0; lane < w; ++lane) {
-        // Unused lanes repeat the group's first frame (any valid LLRs do).
-        const float* src = llr + (f0 + (lane < group ? lane : 0)) * n;
-        for (std::size_t i = i0; i < i1; ++i) in[i * w + lane] = src[i];
-      }
-    }
+    // Into the lane layout by gathers: lane l reads frame f0 + l (unused
+    // lanes repeat the group's first frame; any valid LLRs do).
+    const hn::ScalableTag<float> d;
+    const hn::RebindToSigned<decltype(d)> di;
+    const auto lane_index = hn::Iota(di, 0);
+    const auto offsets = hn::IfThenElseZero(hn::Lt(lane_index, hn::Set(di, static_cast<std::int32_t>(group))),
+                                            hn::Mul(lane_index, hn::Set(di, static_cast<std::int32_t>(n))));
+    const float* base = llr + f0 * n;
+    for (std::size_t i = 0; i < n; ++i) hn::StoreU(hn::GatherIndex(d, base + i, offsets), d, in + i * w);
     dec.Decode(in, x);
+    constexpr std::size_t kTile = 8;
     for (std::size_t j0 = 0; j0 < count; j0 += kTile) {
       const std::size_t j1 = j0 + kTile < count ? j0 + kTile : count;
       for (std::size_t lane = 0; lane < group; ++lane) {

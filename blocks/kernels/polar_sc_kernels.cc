@@ -67,8 +67,8 @@ std::size_t PolarScKernelLanes() {
 }
 
 std::size_t PolarScScratch(int m) {
-  // Input, tree levels, partial sums, x and u: 5 N values per lane.
-  return 5 * (std::size_t{1} << m) * PolarScKernelLanes();
+  // Input, tree levels, x and u: 4 N values per lane.
+  return 4 * (std::size_t{1} << m) * PolarScKernelLanes();
 }
 
 void PolarScDecodeFrames(const PolarScTree& tree, const float* llr, std::size_t frames,

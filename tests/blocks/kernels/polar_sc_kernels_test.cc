@@ -59,7 +59,7 @@ TEST_P(PolarScKernelPerTarget, DecisionsEqualTheScalarDecoder) {
         const PolarScDecoder scalar(code, true);
         auto sws = scalar.MakeWorkspace();
         const auto n = static_cast<std::size_t>(code.mother_length);
-        std::vector<float> scratch(5 * n * w);
+        std::vector<float> scratch(4 * n * w + 1);
         for (std::size_t frames : {std::size_t{1}, std::size_t{3}, w - 1 + (w == 1), w, w + 1,
                                    std::size_t{37}}) {
           std::vector<float> llr(frames * n);
