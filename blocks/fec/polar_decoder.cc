@@ -15,9 +15,16 @@
 namespace capgap {
 namespace {
 
+// min(|a|, |b|) with the sign bit of a XOR b (the form the SIMD kernel
+// computes too). It differs from "negate when exactly one is < 0" only in
+// the sign of a zero result (a or b is +-0), which no decision reads: L < 0
+// is false for both zeros, |.| and == 0 ignore the sign, and a signed zero
+// added to a nonzero value leaves it unchanged.
 inline float F(float a, float b) {
   const float m = std::min(std::abs(a), std::abs(b));
-  return ((a < 0) != (b < 0)) ? -m : m;
+  const std::uint32_t sign =
+      (std::bit_cast<std::uint32_t>(a) ^ std::bit_cast<std::uint32_t>(b)) & 0x80000000u;
+  return std::bit_cast<float>(std::bit_cast<std::uint32_t>(m) | sign);
 }
 // b + (1 - 2u) a with the sign of a flipped by u (branchless; b + (-a) is
 // b - a exactly in IEEE arithmetic, so the result is the same bit for bit).

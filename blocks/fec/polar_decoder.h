@@ -5,7 +5,9 @@
 //
 // LLR convention: L = ln P(b=0|y) / P(b=1|y), L > 0 favours 0. Node updates
 // in float, min-sum form (common practice): f(a, b) = sign(a) sign(b)
-// min(|a|, |b|), g(a, b, u) = b + (1 - 2u) a, where a, b are the first and
+// min(|a|, |b|) (formed as min(|a|, |b|) with the sign bit of a XOR b; a -0
+// input can only flip the sign of a zero result, which no decision reads),
+// g(a, b, u) = b + (1 - 2u) a, where a, b are the first and
 // second halves of a node's LLRs (x_left = v_left + v_right, x_right =
 // v_right). A leaf decides 0 when frozen, else 1 iff L < 0.
 //

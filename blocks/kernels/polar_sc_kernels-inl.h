@@ -11,8 +11,7 @@
 // one add, partial sums are XORs.
 //
 // Arithmetic is the scalar decoder's (polar_decoder.cc) operation by
-// operation: f = min(|a|, |b|) negated when exactly one of a < 0, b < 0
-// holds; g as above; leaf decision 1 iff L < 0; the repetition node's sum in
+// operation: f = min(|a|, |b|) with the sign bit of a XOR b; g as above; leaf decision 1 iff L < 0; the repetition node's sum in
 // the recursion's order. The fast nodes decide per lane as the scalar ones
 // do; where the scalar decoder would fall back to the recursion in some lane
 // (a rate-1 or SPC node input with an LLR 0, an SPC tie), all lanes take the
@@ -142,8 +141,8 @@ class PolarScLanes {
     for (std::size_t i = 0; i < h; ++i) {
       const V a = Load(in, i), b = Load(in, i + h);
       const V m = hn::Min(hn::Abs(a), hn::Abs(b));
-      const auto neg = hn::Xor(hn::Lt(a, hn::Zero(d_)), hn::Lt(b, hn::Zero(d_)));
-      Store(hn::IfThenElse(neg, hn::Neg(m), m), child, i);
+      Store(hn::Or(m, hn::And(hn::Xor(a, b), hn::BitCast(d_, hn::Set(du_, 0x80000000u)))), child,
+            i);
     }
     Node(s - 1, leaf, child, out);
     for (std::size_t i = 0; i < h; ++i) {
