@@ -194,15 +194,20 @@ inline void PolarScDecodeKernel(const PolarScTree& tree, const float* llr, std::
     const float* base = llr + f0 * n;
     for (std::size_t i = 0; i < n; ++i) hn::StoreU(hn::GatherIndex(d, base + i, offsets), d, in + i * w);
     dec.Decode(in, x);
-    constexpr std::size_t kTile = 8;
-    for (std::size_t j0 = 0; j0 < count; j0 += kTile) {
-      const std::size_t j1 = j0 + kTile < count ? j0 + kTile : count;
-      for (std::size_t lane = 0; lane < group; ++lane) {
-        Bit* o = out + (f0 + lane) * count;
-        for (std::size_t j = j0; j < j1; ++j) {
-          o[j] = static_cast<Bit>(src_bits[static_cast<std::size_t>(positions[j]) * w + lane] >> 31);
-        }
-      }
+    // Out of the lane layout: one lane bit mask per wanted position (w <=
+    // 64), stored over the input and level areas (2 N w floats >= 8 count
+    // bytes, both dead now), then each frame's bits read sequentially.
+    auto* masks = reinterpret_cast<std::uint64_t*>(in);
+    for (std::size_t j = 0; j < count; ++j) {
+      const auto v = hn::BitCast(di, hn::LoadU(hn::RebindToUnsigned<decltype(d)>(),
+                                              src_bits + static_cast<std::size_t>(positions[j]) * w));
+      std::uint64_t bits = 0;
+      hn::StoreMaskBits(di, hn::Lt(v, hn::Zero(di)), reinterpret_cast<std::uint8_t*>(&bits));
+      masks[j] = bits;
+    }
+    for (std::size_t lane = 0; lane < group; ++lane) {
+      Bit* o = out + (f0 + lane) * count;
+      for (std::size_t j = 0; j < count; ++j) o[j] = static_cast<Bit>((masks[j] >> lane) & 1u);
     }
   }
 }
