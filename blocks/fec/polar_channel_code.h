@@ -2,7 +2,9 @@
 // (polar_construction.h) rate-matched to E transmitted bits, an optional CRC
 // (crc.h) appended to the information bits, non-systematic or systematic
 // encoding (polar_encoder.h), SC or CRC-aided SCL decoding
-// (polar_decoder.h). A frame is one codeword: info_bits() = k information
+// (polar_decoder.h; SC runs the frames-across-lanes kernel of
+// polar_sc_kernels.h unless the scalar kernels are forced, same decisions).
+// A frame is one codeword: info_bits() = k information
 // bits, coded_bits() = E, rate() = k / E (the CRC counts against the rate).
 //
 // Message layout: the k information bits, then the CRC parity of them
@@ -62,6 +64,8 @@ class PolarChannelCode final : public ChannelCode {
   double rate() const override {
     return static_cast<double>(options_.info_bits) / static_cast<double>(options_.length);
   }
+  // SC takes whole batches (frames across SIMD lanes, polar_sc_kernels.h).
+  std::uint32_t batch_frames(std::uint32_t unit_frames) const override;
   std::unique_ptr<Workspace> MakeWorkspace(std::uint32_t max_frames) const override;
   void Encode(std::span<const Bit> info, std::span<Bit> coded, Workspace& ws) const override;
   void Decode(std::span<const float> llrs, std::span<Bit> info,

@@ -4,8 +4,10 @@
 #include "blocks/fec/polar_decoder.h"
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
 #include <cstring>
+#include <limits>
 #include <string>
 
 #include "blocks/fec/polar_encoder.h"
@@ -13,11 +15,23 @@
 namespace capgap {
 namespace {
 
+// min(|a|, |b|) with the sign bit of a XOR b (the form the SIMD kernel
+// computes too). It differs from "negate when exactly one is < 0" only in
+// the sign of a zero result (a or b is +-0), which no decision reads: L < 0
+// is false for both zeros, |.| and == 0 ignore the sign, and a signed zero
+// added to a nonzero value leaves it unchanged.
 inline float F(float a, float b) {
   const float m = std::min(std::abs(a), std::abs(b));
-  return ((a < 0) != (b < 0)) ? -m : m;
+  const std::uint32_t sign =
+      (std::bit_cast<std::uint32_t>(a) ^ std::bit_cast<std::uint32_t>(b)) & 0x80000000u;
+  return std::bit_cast<float>(std::bit_cast<std::uint32_t>(m) | sign);
 }
-inline float G(float a, float b, Bit u) { return u ? b - a : b + a; }
+// b + (1 - 2u) a with the sign of a flipped by u (branchless; b + (-a) is
+// b - a exactly in IEEE arithmetic, so the result is the same bit for bit).
+inline float G(float a, float b, Bit u) {
+  return b + std::bit_cast<float>(std::bit_cast<std::uint32_t>(a) ^
+                                  (static_cast<std::uint32_t>(u) << 31));
+}
 inline Bit HardDecision(float l) { return l < 0 ? Bit{1} : Bit{0}; }
 
 std::size_t Sz(int x) { return static_cast<std::size_t>(x); }
@@ -42,10 +56,20 @@ PolarScDecoder::PolarScDecoder(const PolarCode& code, bool fast_nodes)
         k = kRate1;
       } else if (frozen == size - 1 && !frozen_[Sz(leaf + size - 1)]) {
         k = kRepetition;
+      } else if (frozen == 1 && frozen_[Sz(leaf)]) {
+        k = kSpc;
       }
       kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)] = k;
     }
   }
+}
+
+int PolarScDecoder::spc_nodes() const {
+  int count = 0;
+  for (std::size_t i = 2; i < kind_.size(); ++i) {
+    count += kind_[i] == kSpc && kind_[i / 2] != kSpc;
+  }
+  return count;
 }
 
 PolarScDecoder::Workspace PolarScDecoder::MakeWorkspace() const {
@@ -91,6 +115,33 @@ void PolarScDecoder::Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat
       std::memset(out, u, Sz(size));
       std::memset(u_hat + leaf, 0, Sz(size - 1));
       u_hat[leaf + size - 1] = u;
+      return;
+    }
+    case kSpc: {
+      // Wagner's rule: hard decisions, and if their parity is odd the least
+      // reliable one flipped. Taken only when no LLR is 0 and, with odd
+      // parity, the smallest |LLR| is unique; otherwise the recursion.
+      Bit parity = 0;
+      bool zero = false;
+      int arg = 0, ties = 0;
+      float least = std::numeric_limits<float>::infinity();
+      for (int i = 0; i < size; ++i) {
+        const float a = std::abs(in[i]);
+        zero |= a == 0.0f;
+        parity ^= HardDecision(in[i]);
+        if (a < least) {
+          least = a;
+          arg = i;
+          ties = 0;
+        } else if (a == least) {
+          ++ties;
+        }
+      }
+      if (zero || (parity && ties > 0)) break;
+      for (int i = 0; i < size; ++i) out[i] = HardDecision(in[i]);
+      out[arg] ^= parity;
+      std::memcpy(u_hat + leaf, out, Sz(size));
+      PolarTransform(std::span<Bit>(u_hat + leaf, Sz(size)));
       return;
     }
     default:
@@ -204,15 +255,52 @@ std::span<const Bit> PolarSclDecoder::Workspace::Codeword(int rank) const {
 
 float PolarSclDecoder::Workspace::Metric(int rank) const { return metric_[Sz(rank_[Sz(rank)])]; }
 
-PolarSclDecoder::PolarSclDecoder(const PolarCode& code, int list_size)
-    : m_(code.m), list_(list_size), frozen_(code.frozen) {}
+PolarSclDecoder::PolarSclDecoder(const PolarCode& code, int list_size, bool fast_nodes)
+    : m_(code.m), list_(list_size), frozen_(code.frozen), kind_(Sz(2) << code.m, 0) {
+  if (!fast_nodes) return;
+  const int n = 1 << m_;
+  for (int s = 1; s <= m_; ++s) {
+    const int size = 1 << s;
+    for (int leaf = 0; leaf < n; leaf += size) {
+      int frozen = 0;
+      for (int i = leaf; i < leaf + size; ++i) frozen += frozen_[Sz(i)];
+      std::uint8_t k = 0;
+      if (frozen == size) {
+        k = 1;
+      } else if (frozen == size - 1 && !frozen_[Sz(leaf + size - 1)]) {
+        k = 2;
+      }
+      kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)] = k;
+    }
+  }
+}
 
-Result<PolarSclDecoder> PolarSclDecoder::Create(const PolarCode& code, int list_size) {
+Result<PolarSclDecoder> PolarSclDecoder::Create(const PolarCode& code, int list_size,
+                                                bool fast_nodes) {
   if (list_size < 1 || list_size > kMaxListSize) {
     return Status::Error("list size " + std::to_string(list_size) + ": must be in [1, 32]");
   }
-  return PolarSclDecoder(code, list_size);
+  return PolarSclDecoder(code, list_size, fast_nodes);
 }
+
+namespace {
+
+// Leaf LLRs of a subtree of `size` inputs when every decision in it is 0:
+// left half f, right half g(a, b, 0) = b + a, recursively (the operations of
+// the SC recursion). scratch: `size` floats.
+void ZeroDecisionLeaves(const float* in, int size, float* leaves, float* scratch) {
+  if (size == 1) {
+    leaves[0] = in[0];
+    return;
+  }
+  const int h = size / 2;
+  for (int i = 0; i < h; ++i) scratch[i] = F(in[i], in[i + h]);
+  ZeroDecisionLeaves(scratch, h, leaves, scratch + h);
+  for (int i = 0; i < h; ++i) scratch[i] = G(in[i], in[i + h], 0);
+  ZeroDecisionLeaves(scratch, h, leaves + h, scratch + h);
+}
+
+}  // namespace
 
 PolarSclDecoder::Workspace PolarSclDecoder::MakeWorkspace() const {
   Workspace w;
@@ -237,6 +325,7 @@ PolarSclDecoder::Workspace PolarSclDecoder::MakeWorkspace() const {
   w.keep_.assign(2 * l, 0);
   w.next_active_.assign(l, 0);
   w.rank_.assign(l, 0);
+  w.zero_scratch_.assign(2 * n, 0.0f);
   return w;
 }
 
@@ -263,16 +352,18 @@ void PolarSclDecoder::Leaf(int leaf, Workspace& w) const {
   if (c <= list_) {
     std::fill_n(w.keep_.begin(), c, std::uint8_t{1});
   } else {
-    for (int i = 0; i < c; ++i) w.order_[Sz(i)] = i;
-    const auto first = w.order_.begin();
     // The L smallest under the strict total order (metric, candidate
-    // index) form a unique set; nth_element finds it in linear time.
-    std::nth_element(first, first + (list_ - 1), first + c, [&](int a, int b) {
-      const float ma = w.cand_metric_[Sz(a)], mb = w.cand_metric_[Sz(b)];
-      return ma < mb || (ma == mb && a < b);
-    });
-    std::fill_n(w.keep_.begin(), c, std::uint8_t{0});
-    for (int i = 0; i < list_; ++i) w.keep_[Sz(w.order_[Sz(i)])] = 1;
+    // index) form a unique set: a candidate is kept when fewer than L
+    // candidates precede it. Counting is branch-free and, for c <= 64,
+    // cheaper than a selection algorithm.
+    const float* cm = w.cand_metric_.data();
+    for (int a = 0; a < c; ++a) {
+      const float ma = cm[a];
+      int before = 0;
+      for (int b = 0; b < a; ++b) before += cm[b] <= ma;
+      for (int b = a + 1; b < c; ++b) before += cm[b] < ma;
+      w.keep_[Sz(a)] = before < list_;
+    }
   }
   for (int k = 0; k < n; ++k) {
     if (!w.keep_[Sz(2 * k)] && !w.keep_[Sz(2 * k + 1)]) Kill(w, w.active_[Sz(k)]);
@@ -310,6 +401,34 @@ void PolarSclDecoder::Node(int s, int leaf, const float* channel, Workspace& w) 
   auto in = [&](int p) -> const float* {
     return s == m_ ? channel : LlrArray(w, s, LlrIdx(w, p, s));
   };
+  const std::uint8_t kind = kind_[(Sz(1) << (m_ - s)) + Sz(leaf >> s)];
+  if (kind != 0) {
+    const int size = 2 * h;
+    float* leaves = w.zero_scratch_.data();
+    float* scratch = leaves + size;
+    for (int k = 0; k < w.active_count_; ++k) {
+      const int p = w.active_[Sz(k)];
+      ZeroDecisionLeaves(in(p), size, leaves, scratch);
+      const int frozen = kind == 1 ? size : size - 1;
+      float& metric = w.metric_[Sz(p)];
+      for (int i = 0; i < frozen; ++i) {
+        if (leaves[i] < 0) metric -= leaves[i];
+      }
+      if (kind == 1) {
+        std::memset(WriteBeta(w, p, s, false), 0, Sz(size));
+      } else {
+        WriteLlr(w, p, 0)[0] = leaves[size - 1];
+      }
+    }
+    if (kind == 1) return;
+    Leaf(leaf + size - 1, w);  // may clone and drop paths
+    for (int k = 0; k < w.active_count_; ++k) {
+      const int p = w.active_[Sz(k)];
+      const Bit u = BetaArray(w, 0, BetaIdx(w, p, 0))[0];
+      std::memset(WriteBeta(w, p, s, false), u, Sz(size));
+    }
+    return;
+  }
   for (int k = 0; k < w.active_count_; ++k) {
     const int p = w.active_[Sz(k)];
     const float* a = in(p);

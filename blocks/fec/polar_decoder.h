@@ -5,7 +5,9 @@
 //
 // LLR convention: L = ln P(b=0|y) / P(b=1|y), L > 0 favours 0. Node updates
 // in float, min-sum form (common practice): f(a, b) = sign(a) sign(b)
-// min(|a|, |b|), g(a, b, u) = b + (1 - 2u) a, where a, b are the first and
+// min(|a|, |b|) (formed as min(|a|, |b|) with the sign bit of a XOR b; a -0
+// input can only flip the sign of a zero result, which no decision reads),
+// g(a, b, u) = b + (1 - 2u) a, where a, b are the first and
 // second halves of a node's LLRs (x_left = v_left + v_right, x_right =
 // v_right). A leaf decides 0 when frozen, else 1 iff L < 0.
 //
@@ -23,6 +25,17 @@
 // metric (ties: list order); CRC selection is the caller's
 // (polar_channel_code.h).
 //
+// SCL simplified nodes (fast_nodes = true): in a rate-0 subtree, and in the
+// frozen leaves of a repetition subtree, every earlier decision inside the
+// subtree is 0, so each path's leaf LLRs follow from one local pass of f and
+// g(., ., 0) over the subtree's input; the metric takes their penalties in
+// leaf order (the same float operations as leaf by leaf) and a repetition
+// node then splits paths once, on its last leaf's LLR. Rate-1 and SPC nodes
+// are not simplified in SCL: the usual limited-candidate enumeration
+// (Hashemi et al. 2017) ranks candidates by approximations whose decisions
+// can differ from leaf-by-leaf SCL, so only the exactly equivalent nodes
+// are kept (tested: metrics and codewords of every path identical).
+//
 // Both decoders allocate nothing per frame; the workspace holds all state.
 #ifndef CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
 #define CAPGAP_BLOCKS_FEC_POLAR_DECODER_H_
@@ -34,6 +47,7 @@
 #include "blocks/core/status.h"
 #include "blocks/core/types.h"
 #include "blocks/fec/polar_construction.h"
+#include "blocks/kernels/polar_sc_kernels.h"
 
 namespace capgap {
 
@@ -47,9 +61,14 @@ namespace capgap {
 // decoders: algorithm and implementation", IEEE J. Sel. Areas Commun. 32(5),
 // 2014) decides the sign of the sum of its LLRs, summed in the tree order of
 // the recursion (pairwise by halves), so the float result is the last
-// leaf's LLR bit for bit. Decisions are therefore identical to plain SC
-// (tested on random LLRs, zeros included). SPC nodes are not taken: their ML
-// decision can differ from SC's.
+// leaf's LLR bit for bit. A single-parity-check node (only its first leaf
+// frozen, size >= 4; Sarkis et al. 2014) takes Wagner's rule: the hard
+// decisions, and with odd parity the least reliable one flipped (the ML
+// decision, which min-sum SC reaches on such a subtree); it falls back to
+// the recursion when an LLR is 0 or, with odd parity, the smallest |LLR| is
+// not unique (ties that SC breaks by its own order). Decisions are
+// therefore identical to plain SC (tested on random LLRs with +-0, on
+// whole-number LLRs full of ties, and on punctured and shortened codes).
 class PolarScDecoder {
  public:
   explicit PolarScDecoder(const PolarCode& code, bool fast_nodes = true);
@@ -65,8 +84,21 @@ class PolarScDecoder {
   void Decode(std::span<const float> llr, std::span<Bit> u_hat, std::span<Bit> x_hat,
               Workspace& ws) const;
 
+  // Number of SPC nodes the decoder takes (outermost ones; for tests).
+  int spc_nodes() const;
+
+  // The node kinds and frozen flags, for the frames-across-lanes kernel
+  // (polar_sc_kernels.h), whose scalar oracle this decoder is.
+  PolarScTree tree() const { return {m_, kind_.data(), frozen_.data()}; }
+
  private:
-  enum NodeKind : std::uint8_t { kPlain, kRate0, kRate1, kRepetition };
+  enum NodeKind : std::uint8_t {  // the values of PolarNodeKind
+    kPlain = kPolarNodePlain,
+    kRate0 = kPolarNodeRate0,
+    kRate1 = kPolarNodeRate1,
+    kRepetition = kPolarNodeRepetition,
+    kSpc = kPolarNodeSpc,
+  };
   void Node(int s, int leaf, const float* in, Bit* out, Bit* u_hat, Workspace& ws) const;
   int m_;
   std::vector<std::uint8_t> frozen_;
@@ -78,7 +110,10 @@ class PolarScDecoder {
 class PolarSclDecoder {
  public:
   static constexpr int kMaxListSize = 32;
-  static Result<PolarSclDecoder> Create(const PolarCode& code, int list_size);  // 1..32
+  // fast_nodes: rate-0 and repetition subtrees in one step per path (see
+  // below); decisions and metrics identical to the leaf-by-leaf recursion.
+  static Result<PolarSclDecoder> Create(const PolarCode& code, int list_size,  // 1..32
+                                        bool fast_nodes = true);
 
   int list_size() const { return list_; }
 
@@ -108,6 +143,7 @@ class PolarSclDecoder {
     std::vector<std::uint8_t> keep_;
     std::vector<int> next_active_;
     std::vector<int> rank_;  // after Decode: slots by rank
+    std::vector<float> zero_scratch_;  // fast nodes: 2^{m+1} floats
   };
   Workspace MakeWorkspace() const;
 
@@ -115,12 +151,15 @@ class PolarSclDecoder {
   void Decode(std::span<const float> llr, Workspace& ws) const;
 
  private:
-  PolarSclDecoder(const PolarCode& code, int list_size);
+  PolarSclDecoder(const PolarCode& code, int list_size, bool fast_nodes);
   void Node(int s, int leaf, const float* channel, Workspace& ws) const;
   void Leaf(int leaf, Workspace& ws) const;
   int m_;
   int list_;
   std::vector<std::uint8_t> frozen_;
+  // Per node (heap order as in PolarScDecoder): 0 plain, 1 rate-0,
+  // 2 repetition.
+  std::vector<std::uint8_t> kind_;
 };
 
 }  // namespace capgap

@@ -14,6 +14,8 @@
 
 #include "blocks/core/text.h"
 #include "blocks/fec/polar_channel_code.h"
+#include "blocks/kernels/dispatch.h"
+#include "blocks/kernels/polar_sc_kernels.h"
 #include "sim/chain/scheme_result.h"
 #include "sim/config/key_table.h"
 
@@ -174,6 +176,10 @@ void AnalysePolar(const ChannelCode& channel_code, const SchemeConfig& /*scheme*
   if (o.crc_bits > 0) out.Add("crc_polynomial", Hex(o.crc_polynomial));
   out.Add("decoder", std::string(o.decoder == PolarDecoderKind::kSc ? "sc" : "scl"));
   if (o.decoder == PolarDecoderKind::kScl) out.Add("list_size", o.list_size);
+  // SC runs the frames-across-lanes kernel; SCL is scalar.
+  out.Add("kernel_target", std::string(o.decoder == PolarDecoderKind::kSc
+                                           ? PolarScKernelTarget()
+                                           : kernel_dispatch::ScalarTargetName()));
   out.Add("systematic", std::string(o.systematic ? "yes" : "no"));
   out.Add("bit_order",
           std::string("x = u F^(x)m, F = [[1,0],[1,1]], no bit reversal; punctured: first "

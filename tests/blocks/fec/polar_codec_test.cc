@@ -5,6 +5,8 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <bit>
+#include <cstdint>
 #include <cmath>
 #include <random>
 #include <vector>
@@ -154,16 +156,21 @@ TEST(PolarDecoders, SclWithListOneEqualsScOnRandomLlrs) {
 }
 
 TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
-  // Rate-0, rate-1 and repetition nodes against the plain recursion, on
+  // Rate-0, rate-1, repetition and single-parity-check nodes against the
+  // plain recursion, on
   // random LLRs with exact zeros (+0 and -0), punctured (LLR 0) and
   // shortened (1e20) positions, at several rates and constructions: u_hat
   // and x_hat identical bit for bit (K from 1 to N, so every node kind
   // occurs).
+  // Half the frames carry small whole-number LLRs (exact float sums), so
+  // equal magnitudes and sums that cancel to 0 occur often: the ties on
+  // which an SPC node must fall back to the recursion.
   std::mt19937 rng(9);
   std::normal_distribution<float> noise(0.0f, 2.0f);
   int frames = 0;
+  int spc_nodes = 0;
   for (int e : {16, 100, 256, 1000, 4096}) {
-    for (int k : {1, e / 8, e / 2, 7 * e / 8, e}) {
+    for (int k : {1, e / 8, e / 2, 7 * e / 8, 15 * e / 16, e - 1, e}) {
       for (PolarConstruction c : {PolarConstruction::kGa, PolarConstruction::kBeta}) {
         const PolarCode code = MakeCode(e, k, c);
         PolarScDecoder fast(code, true), plain(code, false);
@@ -172,8 +179,12 @@ TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
         const auto n = static_cast<std::size_t>(code.mother_length);
         std::vector<Bit> u1(n), x1(n), u2(n), x2(n);
         std::vector<float> llr(n);
+        spc_nodes += fast.spc_nodes();
         for (int trial = 0; trial < 20; ++trial) {
           for (auto& l : llr) l = 1.0f + noise(rng);
+          if (trial % 2) {
+            for (auto& l : llr) l = std::round(l);
+          }
           for (std::size_t j = 0; j < n; ++j) {
             const unsigned r = rng() % 16;
             if (r == 0) llr[j] = 0.0f;
@@ -194,7 +205,60 @@ TEST(PolarDecoders, FastNodesGiveTheDecisionsOfPlainSc) {
       }
     }
   }
-  EXPECT_EQ(frames, 5 * 5 * 2 * 20);
+  EXPECT_EQ(frames, 5 * 7 * 2 * 20);
+  EXPECT_GT(spc_nodes, 20);  // the SPC node is exercised
+}
+
+TEST(PolarDecoders, SclFastNodesGiveThePathsOfPlainScl) {
+  // Rate-0 and repetition nodes in SCL against the leaf-by-leaf list
+  // decoder: the same surviving paths, in the same rank order, with the
+  // same codewords and the same float metrics bit for bit. Random LLRs with
+  // +-0 and whole numbers (ties in metrics), punctured and shortened codes.
+  std::mt19937 rng(11);
+  std::normal_distribution<float> noise(0.0f, 2.0f);
+  int frames = 0;
+  for (int e : {16, 100, 256, 1000}) {
+    for (int k : {1, e / 8, e / 2, 7 * e / 8}) {
+      for (int list : {1, 2, 8, 32}) {
+        const PolarCode code = MakeCode(e, k, (frames & 1) ? PolarConstruction::kBeta
+                                                         : PolarConstruction::kGa);
+        auto fast = PolarSclDecoder::Create(code, list, true).value();
+        auto plain = PolarSclDecoder::Create(code, list, false).value();
+        auto fw = fast.MakeWorkspace();
+        auto pw = plain.MakeWorkspace();
+        const auto n = static_cast<std::size_t>(code.mother_length);
+        std::vector<float> llr(n);
+        for (int trial = 0; trial < 6; ++trial) {
+          for (auto& l : llr) l = 1.0f + noise(rng);
+          if (trial % 2) {
+            for (auto& l : llr) l = std::round(l);
+          }
+          for (std::size_t j = 0; j < n; ++j) {
+            const unsigned r = rng() % 16;
+            if (r == 0) llr[j] = 0.0f;
+            if (r == 1) llr[j] = -0.0f;
+          }
+          if (code.rate_matching == PolarRateMatching::kPuncture) {
+            for (int j = 0; j < code.first_transmitted(); ++j) llr[static_cast<std::size_t>(j)] = 0;
+          } else if (code.rate_matching == PolarRateMatching::kShorten) {
+            for (std::size_t j = static_cast<std::size_t>(e); j < n; ++j) llr[j] = 1e20f;
+          }
+          fast.Decode(llr, fw);
+          plain.Decode(llr, pw);
+          ASSERT_EQ(fw.paths(), pw.paths()) << e << " " << k << " " << list << " " << trial;
+          for (int r = 0; r < fw.paths(); ++r) {
+            const auto a = fw.Codeword(r), b = pw.Codeword(r);
+            ASSERT_TRUE(std::equal(a.begin(), a.end(), b.begin()))
+                << e << " " << k << " " << list << " " << trial << " rank " << r;
+            ASSERT_EQ(std::bit_cast<std::uint32_t>(fw.Metric(r)),
+                      std::bit_cast<std::uint32_t>(pw.Metric(r)));
+          }
+          ++frames;
+        }
+      }
+    }
+  }
+  EXPECT_EQ(frames, 4 * 4 * 4 * 6);
 }
 
 TEST(PolarDecoders, Rate1AndRepetitionNodesDecideAsTheirClosedForms) {
