@@ -18,6 +18,10 @@
 //    LLRs (b0 from Im, b1 from Re) are the noisy samples with the two lanes
 //    of each pair swapped (Reverse2), times the gain. Lanes is even on every
 //    target with vectors, so pairs never straddle vectors.
+//  * 64-/256-QAM error count: the p label bits of each axis sample are
+//    gathered into one u32 per lane by a scalar pass (p = 3 does not align
+//    with any vector layout), x is a select among the 2^p levels, and the
+//    decision repeats the demapper oracle's slicer or metrics lane by lane.
 // Tails: the last partial group goes through the same vector operations on a
 // zero-padded copy of its bits; only `count` outputs are written.
 
@@ -31,6 +35,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <span>
 
 #include "blocks/core/rng_stream.h"
@@ -218,6 +223,125 @@ inline HWY_NOINLINE std::uint64_t Qam16Loop(const Qam16Decider& d, const Bit* HW
   return sink.errors;
 }
 
+// 64-/256-QAM (p = 3, 4 bits per axis): the errors of `valid` axis samples
+// whose labels are in `labels` (one u32 per lane), noise z. The same float
+// operations per lane as reference::QamAxisDecision; labels and decisions
+// are integers in u32 lanes.
+template <int kP, class DF>
+HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d, const std::uint32_t* labels,
+                              hn::Vec<DF> z, hn::Vec<DF> sigma, std::size_t valid,
+                              hn::Vec<hn::RebindToUnsigned<DF>>& acc) {
+  constexpr int kLevels = 1 << kP;
+  const hn::RebindToUnsigned<DF> du;
+  const auto lab = hn::LoadU(du, labels);
+  auto x = hn::Set(df, d.levels[0]);
+  for (int l = 1; l < kLevels; ++l) {
+    x = hn::IfThenElse(hn::RebindMask(df, hn::Eq(lab, hn::Set(du, static_cast<std::uint32_t>(l)))),
+                       hn::Set(df, d.levels[l]), x);
+  }
+  const auto y = awgn_detail::NoisySample(sigma, z, x);
+  const auto zero = hn::Zero(df);
+  const auto one = hn::Set(du, 1u);
+  hn::Vec<decltype(du)> dec;
+  if (!d.maxlog) {
+    const auto u = hn::Mul(hn::Set(df, d.inv_s), y);
+    auto j = hn::Zero(du);
+    for (int i = 0; i < kLevels - 1; ++i) {
+      const auto below = hn::Lt(u, hn::Set(df, static_cast<float>(kLevels - 2 - 2 * i)));
+      j = hn::Add(j, hn::IfThenElseZero(hn::RebindMask(du, below), one));
+    }
+    dec = hn::Xor(j, hn::ShiftRight<1>(j));
+  } else {
+    const auto u2 = hn::Mul(hn::Set(df, d.two_inv_s), y);
+    hn::Vec<DF> e[kLevels];
+    for (int j = 0; j < kLevels; ++j) {
+      const auto c = static_cast<float>(kLevels - 1 - 2 * j);
+      e[j ^ (j >> 1)] = hn::Sub(hn::Set(df, c * c), hn::Mul(hn::Set(df, c), u2));
+    }
+    const auto scale = hn::Set(df, d.scale);
+    dec = hn::Zero(du);
+    for (int k = 0; k < kP; ++k) {
+      const auto inf = hn::Set(df, std::numeric_limits<float>::infinity());
+      auto m0 = inf, m1 = inf;
+      for (int l = 0; l < kLevels; ++l) {
+        if ((l >> (kP - 1 - k)) & 1) {
+          m1 = hn::Min(m1, e[l]);
+        } else {
+          m0 = hn::Min(m0, e[l]);
+        }
+      }
+      const auto neg = hn::Lt(hn::Mul(hn::Sub(m1, m0), scale), zero);
+      dec = hn::Add(hn::Add(dec, dec), hn::IfThenElseZero(hn::RebindMask(du, neg), one));
+    }
+  }
+  auto diff = hn::Xor(dec, lab);
+  auto count = hn::And(diff, one);
+  for (int k = 1; k < kP; ++k) {
+    diff = hn::ShiftRight<1>(diff);
+    count = hn::Add(count, hn::And(diff, one));
+  }
+  acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, hn::FirstN(df, valid)), count));
+}
+
+template <int kP, class DF>
+struct QamAxisSink {
+  DF df;
+  float sigma;
+  QamAxisDecider d;
+  const Bit* HWY_RESTRICT bits;
+  std::uint64_t errors = 0;
+
+  // Labels of axis samples i .. i + count - 1 (p bits each, MSB first).
+  HWY_INLINE void Labels(std::size_t i, std::size_t count, std::uint32_t* out) const {
+    const Bit* HWY_RESTRICT b = bits + kP * i;
+    for (std::size_t t = 0; t < count; ++t) {
+      std::uint32_t l = 0;
+      for (int k = 0; k < kP; ++k) l = 2 * l + (b[kP * t + static_cast<std::size_t>(k)] & 1u);
+      out[t] = l;
+    }
+  }
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    HWY_ALIGN std::uint32_t labels[4 * hn::MaxLanes(DF())];
+    Labels(i, 4 * lanes, labels);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    QamAxisErrors<kP>(df, d, labels, s0, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, labels + lanes, s1, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, labels + 2 * lanes, s2, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, labels + 3 * lanes, s3, vs, lanes, acc);
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    HWY_ALIGN std::uint32_t labels[4 * hn::MaxLanes(DF())] = {};
+    Labels(i, count, labels);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    const hn::Vec<DF> s[4] = {s0, s1, s2, s3};
+    for (std::size_t v = 0; v < 4 && v * lanes < count; ++v) {
+      const std::size_t left = count - v * lanes;
+      QamAxisErrors<kP>(df, d, labels + v * lanes, s[v], vs, left < lanes ? left : lanes, acc);
+    }
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+};
+
+template <int kP>
+HWY_NOINLINE std::uint64_t QamAxisLoop(const QamAxisDecider& d, const Bit* HWY_RESTRICT bits,
+                                       std::size_t n_symbols, float sigma, PhiloxKey key,
+                                       const PhiloxCounter& counter) {
+  using DF = hn::ScalableTag<float>;
+  const DF df;
+  QamAxisSink<kP, DF> sink{df, sigma, d, bits};
+  awgn_detail::ForEachNormalGroup(df, 2 * n_symbols, key, counter, sink);
+  return sink.errors;
+}
+
 }  // namespace channel_llr_detail
 
 #endif  // HWY_TARGET != HWY_SCALAR
@@ -236,6 +360,26 @@ HWY_MAYBE_UNUSED inline std::uint64_t CountQam16ErrorsKernel(const Bit* HWY_REST
   return reference::CountQam16Errors(bits, n_symbols, d, sigma, stream);
 #else
   return channel_llr_detail::Qam16Loop(d, bits, n_symbols, sigma, key, counter);
+#endif
+}
+
+// Uncoded 64-/256-QAM error count (channel_llr_kernels.h) at a stream
+// position; does not advance the stream (the caller advances it by n_symbols
+// blocks).
+HWY_MAYBE_UNUSED inline std::uint64_t CountQamAxisErrorsKernel(const Bit* HWY_RESTRICT bits,
+                                                               std::size_t n_symbols,
+                                                               const QamAxisDecider& d,
+                                                               float sigma, PhiloxKey key,
+                                                               const PhiloxCounter& counter) {
+  if (n_symbols == 0) return 0;
+#if HWY_TARGET == HWY_SCALAR
+  RngStream stream(key, counter[3], counter[2], static_cast<Substream>(counter[1]));
+  stream.Advance(counter[0]);
+  return reference::CountQamAxisErrors(bits, n_symbols, d, sigma, stream);
+#else
+  return d.axis_bits == 3
+             ? channel_llr_detail::QamAxisLoop<3>(d, bits, n_symbols, sigma, key, counter)
+             : channel_llr_detail::QamAxisLoop<4>(d, bits, n_symbols, sigma, key, counter);
 #endif
 }
 

@@ -67,6 +67,34 @@ Qam16Decider MakeQam16Decider(const float* levels, float level_scale, float n0, 
 std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
                                float sigma, RngStream& noise);
 
+// Uncoded Gray 64- and 256-QAM (p = 3 or 4 bits per axis) on an additive
+// channel, fused to the error count like CountQam16Errors: per axis sample t
+// (Re of symbol s at t = 2s, Im at 2s + 1) the p bits bits[p t .. p t + p - 1]
+// (MSB first) are the axis label, x = levels[label] (Mapper::pam_levels()),
+// y = x + sigma z_t as AddComplexNoise forms it, and the decisions are
+// exactly those of the demapper's oracle (demap_reference.h, kPam):
+//  * hard: u = (1 / s) y, j = #{u < L - 2 - 2i, i = 0..L-2}, label Gray(j);
+//  * max-log: u2 = (2 (1 / s)) y, metrics e[Gray(j)] = c c - c u2 with
+//    c = L - 1 - 2j, bit k decided as (min_{bit k = 1} e - min_{bit k = 0} e)
+//    scale < 0 with scale = s s (1 / N0) (the LLR's sign, LlrToBits);
+// constants formed as the demapper forms them (MakeQamAxisDecider). Ties
+// between equal metrics can change the sign of a zero LLR only, never a
+// decision. Advances the noise stream by n_symbols blocks, like
+// AddComplexNoise.
+struct QamAxisDecider {
+  int axis_bits = 3;  // p: 3 (64-QAM) or 4 (256-QAM)
+  float levels[16];   // by axis label, 2^p used
+  bool maxlog = false;
+  float inv_s = 1.0f;      // 1 / s
+  float two_inv_s = 2.0f;  // 2 (1 / s)
+  float scale = 1.0f;      // s s (1 / N0)
+};
+QamAxisDecider MakeQamAxisDecider(int axis_bits, const float* levels, float level_scale, float n0,
+                                  bool maxlog);
+// 2 p n_symbols bits, one per byte (0 or 1). REQUIRES: axis_bits 3 or 4.
+std::uint64_t CountQamAxisErrors(const Bit* bits, std::size_t n_symbols, const QamAxisDecider& d,
+                                 float sigma, RngStream& noise);
+
 // Name of the instruction set these kernels run (NoiseKernelTarget() unless
 // the scalar kernels are forced).
 const char* ChannelLlrKernelTarget();
