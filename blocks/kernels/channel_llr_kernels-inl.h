@@ -224,20 +224,26 @@ inline HWY_NOINLINE std::uint64_t Qam16Loop(const Qam16Decider& d, const Bit* HW
 }
 
 // 64-/256-QAM (p = 3, 4 bits per axis): the errors of `valid` axis samples
-// whose labels are in `labels` (one u32 per lane), noise z. The same float
-// operations per lane as reference::QamAxisDecision; labels and decisions
-// are integers in u32 lanes.
+// with labels `lab` (one per u32 lane), noise z. The same float operations
+// per lane as reference::QamAxisDecision; labels and decisions are integers
+// in u32 lanes. The level is one table lookup (a lane permute) when the 2^p
+// levels fit in a vector, else a select per level.
 template <int kP, class DF>
-HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d, const std::uint32_t* labels,
-                              hn::Vec<DF> z, hn::Vec<DF> sigma, std::size_t valid,
+HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d,
+                              hn::Vec<hn::RebindToUnsigned<DF>> lab, hn::Vec<DF> z,
+                              hn::Vec<DF> sigma, std::size_t valid,
                               hn::Vec<hn::RebindToUnsigned<DF>>& acc) {
   constexpr int kLevels = 1 << kP;
   const hn::RebindToUnsigned<DF> du;
-  const auto lab = hn::LoadU(du, labels);
-  auto x = hn::Set(df, d.levels[0]);
-  for (int l = 1; l < kLevels; ++l) {
-    x = hn::IfThenElse(hn::RebindMask(df, hn::Eq(lab, hn::Set(du, static_cast<std::uint32_t>(l)))),
-                       hn::Set(df, d.levels[l]), x);
+  hn::Vec<DF> x;
+  if constexpr (kLevels <= hn::MaxLanes(DF())) {
+    x = hn::TableLookupLanes(hn::LoadU(df, d.levels), hn::IndicesFromVec(df, lab));
+  } else {
+    x = hn::Set(df, d.levels[0]);
+    for (int l = 1; l < kLevels; ++l) {
+      const auto is_l = hn::Eq(lab, hn::Set(du, static_cast<std::uint32_t>(l)));
+      x = hn::IfThenElse(hn::RebindMask(df, is_l), hn::Set(df, d.levels[l]), x);
+    }
   }
   const auto y = awgn_detail::NoisySample(sigma, z, x);
   const auto zero = hn::Zero(df);
@@ -259,9 +265,9 @@ HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d, const std::uint32_
       e[j ^ (j >> 1)] = hn::Sub(hn::Set(df, c * c), hn::Mul(hn::Set(df, c), u2));
     }
     const auto scale = hn::Set(df, d.scale);
+    const auto inf = hn::Set(df, std::numeric_limits<float>::infinity());
     dec = hn::Zero(du);
     for (int k = 0; k < kP; ++k) {
-      const auto inf = hn::Set(df, std::numeric_limits<float>::infinity());
       auto m0 = inf, m1 = inf;
       for (int l = 0; l < kLevels; ++l) {
         if ((l >> (kP - 1 - k)) & 1) {
@@ -283,6 +289,36 @@ HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d, const std::uint32_
   acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, hn::FirstN(df, valid)), count));
 }
 
+// Labels of `count` consecutive axis samples whose bits start at b (p bytes
+// each, 0/1, MSB first) into out. p = 4 (count a multiple of Lanes): the four
+// bytes of a sample are one u32 lane (little-endian: the MSB bit in the low
+// byte), combined by shifts; p = 3 fits no vector layout: a scalar pass over
+// the whole group at once (one pass per vector measured a third slower).
+template <int kP, class DF>
+HWY_INLINE void QamAxisLabels(DF df, const Bit* HWY_RESTRICT b, std::size_t count,
+                              std::uint32_t* HWY_RESTRICT out) {
+  const hn::RebindToUnsigned<DF> du;
+  if constexpr (kP == 4) {
+    const hn::Repartition<std::uint8_t, decltype(du)> d8;
+    const std::size_t lanes = hn::Lanes(df);
+    const auto one = hn::Set(du, 1u);
+    for (std::size_t t = 0; t < count; t += lanes) {
+      const auto v = hn::BitCast(du, hn::LoadU(d8, b + 4 * t));
+      const auto b0 = hn::ShiftLeft<3>(hn::And(v, one));
+      const auto b1 = hn::ShiftLeft<2>(hn::And(hn::ShiftRight<8>(v), one));
+      const auto b2 = hn::ShiftLeft<1>(hn::And(hn::ShiftRight<16>(v), one));
+      const auto b3 = hn::And(hn::ShiftRight<24>(v), one);
+      hn::Store(hn::Or(hn::Or(b0, b1), hn::Or(b2, b3)), du, out + t);
+    }
+  } else {
+    for (std::size_t t = 0; t < count; ++t) {
+      std::uint32_t l = 0;
+      for (int k = 0; k < kP; ++k) l = 2 * l + (b[kP * t + static_cast<std::size_t>(k)] & 1u);
+      out[t] = l;
+    }
+  }
+}
+
 template <int kP, class DF>
 struct QamAxisSink {
   DF df;
@@ -291,41 +327,36 @@ struct QamAxisSink {
   const Bit* HWY_RESTRICT bits;
   std::uint64_t errors = 0;
 
-  // Labels of axis samples i .. i + count - 1 (p bits each, MSB first).
-  HWY_INLINE void Labels(std::size_t i, std::size_t count, std::uint32_t* out) const {
-    const Bit* HWY_RESTRICT b = bits + kP * i;
-    for (std::size_t t = 0; t < count; ++t) {
-      std::uint32_t l = 0;
-      for (int k = 0; k < kP; ++k) l = 2 * l + (b[kP * t + static_cast<std::size_t>(k)] & 1u);
-      out[t] = l;
-    }
-  }
   HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
                        hn::Vec<DF> s3) {
     const hn::RebindToUnsigned<DF> du;
     const std::size_t lanes = hn::Lanes(df);
-    HWY_ALIGN std::uint32_t labels[4 * hn::MaxLanes(DF())];
-    Labels(i, 4 * lanes, labels);
+    HWY_ALIGN std::uint32_t lab[4 * hn::MaxLanes(DF())];
+    QamAxisLabels<kP>(df, bits + kP * i, 4 * lanes, lab);
     const auto vs = hn::Set(df, sigma);
     auto acc = hn::Zero(du);
-    QamAxisErrors<kP>(df, d, labels, s0, vs, lanes, acc);
-    QamAxisErrors<kP>(df, d, labels + lanes, s1, vs, lanes, acc);
-    QamAxisErrors<kP>(df, d, labels + 2 * lanes, s2, vs, lanes, acc);
-    QamAxisErrors<kP>(df, d, labels + 3 * lanes, s3, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab), s0, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + lanes), s1, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + 2 * lanes), s2, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + 3 * lanes), s3, vs, lanes, acc);
     errors += hn::GetLane(hn::SumOfLanes(du, acc));
   }
   HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
                        hn::Vec<DF> s2, hn::Vec<DF> s3) {
     const hn::RebindToUnsigned<DF> du;
     const std::size_t lanes = hn::Lanes(df);
-    HWY_ALIGN std::uint32_t labels[4 * hn::MaxLanes(DF())] = {};
-    Labels(i, count, labels);
+    // Zero-padded copy of the group's bits, so that p = 4 reads whole vectors.
+    HWY_ALIGN Bit b[4 * kP * hn::MaxLanes(DF())] = {};
+    for (std::size_t k = 0; k < kP * count; ++k) b[k] = bits[kP * i + k];
+    HWY_ALIGN std::uint32_t lab[4 * hn::MaxLanes(DF())] = {};
+    QamAxisLabels<kP>(df, b, (count + lanes - 1) / lanes * lanes, lab);
     const auto vs = hn::Set(df, sigma);
     auto acc = hn::Zero(du);
     const hn::Vec<DF> s[4] = {s0, s1, s2, s3};
     for (std::size_t v = 0; v < 4 && v * lanes < count; ++v) {
       const std::size_t left = count - v * lanes;
-      QamAxisErrors<kP>(df, d, labels + v * lanes, s[v], vs, left < lanes ? left : lanes, acc);
+      QamAxisErrors<kP>(df, d, hn::Load(du, lab + v * lanes), s[v], vs,
+                        left < lanes ? left : lanes, acc);
     }
     errors += hn::GetLane(hn::SumOfLanes(du, acc));
   }
