@@ -95,6 +95,35 @@ QamAxisDecider MakeQamAxisDecider(int axis_bits, const float* levels, float leve
 std::uint64_t CountQamAxisErrors(const Bit* bits, std::size_t n_symbols, const QamAxisDecider& d,
                                  float sigma, RngStream& noise);
 
+// Uncoded Gray 8- and 16-PSK (b = 3 or 4 bits per symbol) on an additive
+// channel, fused to the error count: per symbol s the b bits
+// bits[b s .. b s + b - 1] (MSB first) are the label, x = points[label]
+// (Mapper::points()), Re/Im y = x + sigma z_{2s}, z_{2s+1} as AddComplexNoise
+// forms them, and the decisions are exactly those of the demapper's oracle
+// (demap_reference.h, kPsk):
+//  * hard: c = #{i < M/2: Im y cos_i - Re y sin_i >= 0} over the boundary
+//    lines, label Gray(c - 1) when Im y >= 0, else Gray(M - 1 - c);
+//  * max-log: metrics e_l = (-2 Re y) mre_l + (-2 Im y) mim_l over the
+//    demapper's points, bit k decided as (min_{bit k = 1} e -
+//    min_{bit k = 0} e) (1 / N0) < 0 (the LLR's sign, LlrToBits).
+// Advances the noise stream by n_symbols blocks, like AddComplexNoise.
+struct PskDecider {
+  int bits = 3;  // b: 3 (8-PSK) or 4 (16-PSK)
+  float point_re[16], point_im[16];    // transmitted points by label
+  float metric_re[16], metric_im[16];  // the demapper's points by label
+  float boundary_cos[8], boundary_sin[8];
+  bool maxlog = false;
+  float inv_n0 = 1.0f;
+};
+// points: the mapper's points by label (2^bits of them); metric_re/im and
+// boundary_cos/sin: the demapper's (DemapKernelArgs of the kPsk path).
+PskDecider MakePskDecider(int bits, const cf32* points, const float* metric_re,
+                          const float* metric_im, const float* boundary_cos,
+                          const float* boundary_sin, float n0, bool maxlog);
+// b n_symbols bits, one per byte (0 or 1). REQUIRES: bits 3 or 4.
+std::uint64_t CountPskErrors(const Bit* bits, std::size_t n_symbols, const PskDecider& d,
+                             float sigma, RngStream& noise);
+
 // Name of the instruction set these kernels run (NoiseKernelTarget() unless
 // the scalar kernels are forced).
 const char* ChannelLlrKernelTarget();

@@ -129,6 +129,61 @@ inline std::uint64_t CountQamAxisErrors(const Bit* bits, std::size_t n_symbols,
   return errors;
 }
 
+// The demapper oracle's decided label for one 8-/16-PSK symbol y = (yr, yi)
+// (demap_reference.h: HardLabel and DemapSoft of kPsk with LlrsFromMetrics,
+// written out; CountPskErrors of channel_llr_kernels.h).
+inline unsigned PskDecision(const PskDecider& d, float yr, float yi) {
+  const int b = d.bits;
+  const int order = 1 << b;
+  if (!d.maxlog) {
+    int c = 0;
+    for (int i = 0; i < order / 2; ++i) {
+      c += yi * d.boundary_cos[i] - yr * d.boundary_sin[i] >= 0.0f ? 1 : 0;
+    }
+    const int upper = yi >= 0.0f ? 1 : 0;
+    const int j = upper * (c - 1) + (1 - upper) * (order - 1 - c);
+    return static_cast<unsigned>(j ^ (j >> 1));
+  }
+  const float yr2 = -2.0f * yr;
+  const float yi2 = -2.0f * yi;
+  float e[16];
+  for (int l = 0; l < order; ++l) e[l] = yr2 * d.metric_re[l] + yi2 * d.metric_im[l];
+  unsigned label = 0;
+  for (int k = 0; k < b; ++k) {
+    float m0 = std::numeric_limits<float>::infinity(), m1 = m0;
+    for (int l = 0; l < order; ++l) {
+      if ((l >> (b - 1 - k)) & 1) {
+        m1 = e[l] < m1 ? e[l] : m1;
+      } else {
+        m0 = e[l] < m0 ? e[l] : m0;
+      }
+    }
+    label = 2 * label + ((m1 - m0) * d.inv_n0 < 0.0f ? 1u : 0u);
+  }
+  return label;
+}
+
+inline std::uint64_t CountPskErrors(const Bit* bits, std::size_t n_symbols, const PskDecider& d,
+                                    float sigma, RngStream& noise) {
+  const double s = sigma;
+  const auto b = static_cast<std::size_t>(d.bits);
+  std::uint64_t errors = 0;
+  unsigned label = 0;
+  float yr = 0.0f;
+  ForEachNormal(2 * n_symbols, noise, [&](std::size_t i, double z) {
+    const std::size_t sym = i / 2;
+    if (i % 2 == 0) {
+      label = 0;
+      for (std::size_t k = 0; k < b; ++k) label = 2 * label + (bits[b * sym + k] & 1u);
+      yr = NoisySample(d.point_re[label], s, z);
+      return;
+    }
+    const float yi = NoisySample(d.point_im[label], s, z);
+    errors += static_cast<std::uint64_t>(std::popcount(PskDecision(d, yr, yi) ^ label));
+  });
+  return errors;
+}
+
 }  // namespace capgap::reference
 
 #endif  // CAPGAP_BLOCKS_KERNELS_CHANNEL_LLR_REFERENCE_H_
