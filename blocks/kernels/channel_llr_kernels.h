@@ -1,6 +1,8 @@
 // Fused kernels of the soft BPSK and QPSK chains on an additive channel:
 // coded bits -> symbols -> AWGN -> channel LLRs in one pass, in registers,
-// with no symbol array. Plain interface (pointers and counts, no vector
+// with no symbol array; and of the uncoded 16-, 64-, 256-QAM and 8-, 16-PSK
+// chains with hard or max-log decisions, bits -> symbols -> AWGN ->
+// decisions -> error count. Plain interface (pointers and counts, no vector
 // types); channel_llr_kernels.cc is compiled for several instruction sets
 // (Google Highway dynamic dispatch, the target chosen once per process by
 // dispatch.h, the same as the noise kernels') and channel_llr_reference.h
