@@ -18,6 +18,10 @@
 //    LLRs (b0 from Im, b1 from Re) are the noisy samples with the two lanes
 //    of each pair swapped (Reverse2), times the gain. Lanes is even on every
 //    target with vectors, so pairs never straddle vectors.
+//  * 64-/256-QAM error count: the p label bits of each axis sample are
+//    gathered into one u32 per lane by a scalar pass (p = 3 does not align
+//    with any vector layout), x is a select among the 2^p levels, and the
+//    decision repeats the demapper oracle's slicer or metrics lane by lane.
 // Tails: the last partial group goes through the same vector operations on a
 // zero-padded copy of its bits; only `count` outputs are written.
 
@@ -31,6 +35,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <span>
 
 #include "blocks/core/rng_stream.h"
@@ -218,6 +223,294 @@ inline HWY_NOINLINE std::uint64_t Qam16Loop(const Qam16Decider& d, const Bit* HW
   return sink.errors;
 }
 
+// 64-/256-QAM (p = 3, 4 bits per axis): the errors of `valid` axis samples
+// with labels `lab` (one per u32 lane), noise z. The same float operations
+// per lane as reference::QamAxisDecision; labels and decisions are integers
+// in u32 lanes. The level is one table lookup (a lane permute) when the 2^p
+// levels fit in a vector, else a select per level.
+template <int kP, class DF>
+HWY_INLINE void QamAxisErrors(DF df, const QamAxisDecider& d,
+                              hn::Vec<hn::RebindToUnsigned<DF>> lab, hn::Vec<DF> z,
+                              hn::Vec<DF> sigma, std::size_t valid,
+                              hn::Vec<hn::RebindToUnsigned<DF>>& acc) {
+  constexpr int kLevels = 1 << kP;
+  const hn::RebindToUnsigned<DF> du;
+  hn::Vec<DF> x;
+  if constexpr (kLevels <= hn::MaxLanes(DF())) {
+    x = hn::TableLookupLanes(hn::LoadU(df, d.levels), hn::IndicesFromVec(df, lab));
+  } else {
+    x = hn::Set(df, d.levels[0]);
+    for (int l = 1; l < kLevels; ++l) {
+      const auto is_l = hn::Eq(lab, hn::Set(du, static_cast<std::uint32_t>(l)));
+      x = hn::IfThenElse(hn::RebindMask(df, is_l), hn::Set(df, d.levels[l]), x);
+    }
+  }
+  const auto y = awgn_detail::NoisySample(sigma, z, x);
+  const auto zero = hn::Zero(df);
+  const auto one = hn::Set(du, 1u);
+  hn::Vec<decltype(du)> dec;
+  if (!d.maxlog) {
+    const auto u = hn::Mul(hn::Set(df, d.inv_s), y);
+    auto j = hn::Zero(du);
+    for (int i = 0; i < kLevels - 1; ++i) {
+      const auto below = hn::Lt(u, hn::Set(df, static_cast<float>(kLevels - 2 - 2 * i)));
+      j = hn::Add(j, hn::IfThenElseZero(hn::RebindMask(du, below), one));
+    }
+    dec = hn::Xor(j, hn::ShiftRight<1>(j));
+  } else {
+    const auto u2 = hn::Mul(hn::Set(df, d.two_inv_s), y);
+    hn::Vec<DF> e[kLevels];
+    for (int j = 0; j < kLevels; ++j) {
+      const auto c = static_cast<float>(kLevels - 1 - 2 * j);
+      e[j ^ (j >> 1)] = hn::Sub(hn::Set(df, c * c), hn::Mul(hn::Set(df, c), u2));
+    }
+    const auto scale = hn::Set(df, d.scale);
+    const auto inf = hn::Set(df, std::numeric_limits<float>::infinity());
+    dec = hn::Zero(du);
+    for (int k = 0; k < kP; ++k) {
+      auto m0 = inf, m1 = inf;
+      for (int l = 0; l < kLevels; ++l) {
+        if ((l >> (kP - 1 - k)) & 1) {
+          m1 = hn::Min(m1, e[l]);
+        } else {
+          m0 = hn::Min(m0, e[l]);
+        }
+      }
+      const auto neg = hn::Lt(hn::Mul(hn::Sub(m1, m0), scale), zero);
+      dec = hn::Add(hn::Add(dec, dec), hn::IfThenElseZero(hn::RebindMask(du, neg), one));
+    }
+  }
+  auto diff = hn::Xor(dec, lab);
+  auto count = hn::And(diff, one);
+  for (int k = 1; k < kP; ++k) {
+    diff = hn::ShiftRight<1>(diff);
+    count = hn::Add(count, hn::And(diff, one));
+  }
+  acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, hn::FirstN(df, valid)), count));
+}
+
+// Labels of `count` consecutive axis samples whose bits start at b (p bytes
+// each, 0/1, MSB first) into out. p = 4 (count a multiple of Lanes): the four
+// bytes of a sample are one u32 lane (little-endian: the MSB bit in the low
+// byte), combined by shifts; p = 3 fits no vector layout: a scalar pass over
+// the whole group at once (one pass per vector measured a third slower).
+template <int kP, class DF>
+HWY_INLINE void QamAxisLabels(DF df, const Bit* HWY_RESTRICT b, std::size_t count,
+                              std::uint32_t* HWY_RESTRICT out) {
+  const hn::RebindToUnsigned<DF> du;
+  if constexpr (kP == 4) {
+    const hn::Repartition<std::uint8_t, decltype(du)> d8;
+    const std::size_t lanes = hn::Lanes(df);
+    const auto one = hn::Set(du, 1u);
+    for (std::size_t t = 0; t < count; t += lanes) {
+      const auto v = hn::BitCast(du, hn::LoadU(d8, b + 4 * t));
+      const auto b0 = hn::ShiftLeft<3>(hn::And(v, one));
+      const auto b1 = hn::ShiftLeft<2>(hn::And(hn::ShiftRight<8>(v), one));
+      const auto b2 = hn::ShiftLeft<1>(hn::And(hn::ShiftRight<16>(v), one));
+      const auto b3 = hn::And(hn::ShiftRight<24>(v), one);
+      hn::Store(hn::Or(hn::Or(b0, b1), hn::Or(b2, b3)), du, out + t);
+    }
+  } else {
+    for (std::size_t t = 0; t < count; ++t) {
+      std::uint32_t l = 0;
+      for (int k = 0; k < kP; ++k) l = 2 * l + (b[kP * t + static_cast<std::size_t>(k)] & 1u);
+      out[t] = l;
+    }
+  }
+}
+
+template <int kP, class DF>
+struct QamAxisSink {
+  DF df;
+  float sigma;
+  QamAxisDecider d;
+  const Bit* HWY_RESTRICT bits;
+  std::uint64_t errors = 0;
+
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    HWY_ALIGN std::uint32_t lab[4 * hn::MaxLanes(DF())];
+    QamAxisLabels<kP>(df, bits + kP * i, 4 * lanes, lab);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab), s0, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + lanes), s1, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + 2 * lanes), s2, vs, lanes, acc);
+    QamAxisErrors<kP>(df, d, hn::Load(du, lab + 3 * lanes), s3, vs, lanes, acc);
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    // Zero-padded copy of the group's bits, so that p = 4 reads whole vectors.
+    HWY_ALIGN Bit b[4 * kP * hn::MaxLanes(DF())] = {};
+    for (std::size_t k = 0; k < kP * count; ++k) b[k] = bits[kP * i + k];
+    HWY_ALIGN std::uint32_t lab[4 * hn::MaxLanes(DF())] = {};
+    QamAxisLabels<kP>(df, b, (count + lanes - 1) / lanes * lanes, lab);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    const hn::Vec<DF> s[4] = {s0, s1, s2, s3};
+    for (std::size_t v = 0; v < 4 && v * lanes < count; ++v) {
+      const std::size_t left = count - v * lanes;
+      QamAxisErrors<kP>(df, d, hn::Load(du, lab + v * lanes), s[v], vs,
+                        left < lanes ? left : lanes, acc);
+    }
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+};
+
+// 8-/16-PSK (b = 3, 4 bits per symbol): the errors of `valid` symbols with
+// labels `lab` (one per u32 lane) and noise zr (Re), zi (Im), the same float
+// operations per lane as reference::PskDecision.
+template <int kB, class DF>
+HWY_INLINE void PskErrors(DF df, const PskDecider& d, hn::Vec<hn::RebindToUnsigned<DF>> lab,
+                          hn::Vec<DF> zr, hn::Vec<DF> zi, hn::Vec<DF> sigma, std::size_t valid,
+                          hn::Vec<hn::RebindToUnsigned<DF>>& acc) {
+  constexpr int kOrder = 1 << kB;
+  const hn::RebindToUnsigned<DF> du;
+  const hn::RebindToSigned<DF> di;
+  hn::Vec<DF> xr, xi;
+  if constexpr (kOrder <= hn::MaxLanes(DF())) {
+    const auto idx = hn::IndicesFromVec(df, lab);
+    xr = hn::TableLookupLanes(hn::LoadU(df, d.point_re), idx);
+    xi = hn::TableLookupLanes(hn::LoadU(df, d.point_im), idx);
+  } else {
+    xr = hn::Set(df, d.point_re[0]);
+    xi = hn::Set(df, d.point_im[0]);
+    for (int l = 1; l < kOrder; ++l) {
+      const auto is_l = hn::RebindMask(df, hn::Eq(lab, hn::Set(du, static_cast<std::uint32_t>(l))));
+      xr = hn::IfThenElse(is_l, hn::Set(df, d.point_re[l]), xr);
+      xi = hn::IfThenElse(is_l, hn::Set(df, d.point_im[l]), xi);
+    }
+  }
+  const auto yr = awgn_detail::NoisySample(sigma, zr, xr);
+  const auto yi = awgn_detail::NoisySample(sigma, zi, xi);
+  const auto zero = hn::Zero(df);
+  const auto one = hn::Set(du, 1u);
+  hn::Vec<decltype(du)> dec;
+  if (!d.maxlog) {
+    auto c = hn::Zero(di);
+    for (int i = 0; i < kOrder / 2; ++i) {
+      const auto side = hn::Sub(hn::Mul(yi, hn::Set(df, d.boundary_cos[i])),
+                                hn::Mul(yr, hn::Set(df, d.boundary_sin[i])));
+      c = hn::Add(c, hn::IfThenElseZero(hn::RebindMask(di, hn::Ge(side, zero)), hn::Set(di, 1)));
+    }
+    const auto upper = hn::RebindMask(di, hn::Ge(yi, zero));
+    const auto j = hn::IfThenElse(upper, hn::Sub(c, hn::Set(di, 1)),
+                                  hn::Sub(hn::Set(di, kOrder - 1), c));
+    const auto ju = hn::BitCast(du, j);
+    dec = hn::Xor(ju, hn::ShiftRight<1>(ju));
+  } else {
+    const auto yr2 = hn::Mul(hn::Set(df, -2.0f), yr);
+    const auto yi2 = hn::Mul(hn::Set(df, -2.0f), yi);
+    hn::Vec<DF> e[kOrder];
+    for (int l = 0; l < kOrder; ++l) {
+      e[l] = hn::Add(hn::Mul(yr2, hn::Set(df, d.metric_re[l])),
+                     hn::Mul(yi2, hn::Set(df, d.metric_im[l])));
+    }
+    const auto scale = hn::Set(df, d.inv_n0);
+    const auto inf = hn::Set(df, std::numeric_limits<float>::infinity());
+    dec = hn::Zero(du);
+    for (int k = 0; k < kB; ++k) {
+      auto m0 = inf, m1 = inf;
+      for (int l = 0; l < kOrder; ++l) {
+        if ((l >> (kB - 1 - k)) & 1) {
+          m1 = hn::Min(m1, e[l]);
+        } else {
+          m0 = hn::Min(m0, e[l]);
+        }
+      }
+      const auto neg = hn::Lt(hn::Mul(hn::Sub(m1, m0), scale), zero);
+      dec = hn::Add(hn::Add(dec, dec), hn::IfThenElseZero(hn::RebindMask(du, neg), one));
+    }
+  }
+  auto diff = hn::Xor(dec, lab);
+  auto count = hn::And(diff, one);
+  for (int k = 1; k < kB; ++k) {
+    diff = hn::ShiftRight<1>(diff);
+    count = hn::Add(count, hn::And(diff, one));
+  }
+  acc = hn::Add(acc, hn::IfThenElseZero(hn::RebindMask(du, hn::FirstN(df, valid)), count));
+}
+
+// A group of 4 Lanes real samples is 2 Lanes symbols: (s0, s1) hold symbols
+// 0 .. Lanes-1 interleaved (Re, Im), (s2, s3) the next Lanes; ConcatEven /
+// ConcatOdd split them into Re and Im vectors (NoisySample is per sample, so
+// deinterleaving first changes nothing).
+template <int kB, class DF>
+struct PskSink {
+  DF df;
+  float sigma;
+  PskDecider d;
+  const Bit* HWY_RESTRICT bits;
+  std::uint64_t errors = 0;
+
+  HWY_INLINE void Labels(const Bit* HWY_RESTRICT b, std::size_t count,
+                         std::uint32_t* HWY_RESTRICT out) const {
+    for (std::size_t t = 0; t < count; ++t) {
+      std::uint32_t l = 0;
+      for (int k = 0; k < kB; ++k) l = 2 * l + (b[kB * t + static_cast<std::size_t>(k)] & 1u);
+      out[t] = l;
+    }
+  }
+  HWY_INLINE void Full(std::size_t i, hn::Vec<DF> s0, hn::Vec<DF> s1, hn::Vec<DF> s2,
+                       hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    HWY_ALIGN std::uint32_t lab[2 * hn::MaxLanes(DF())];
+    Labels(bits + kB * (i / 2), 2 * lanes, lab);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    PskErrors<kB>(df, d, hn::Load(du, lab), hn::ConcatEven(df, s1, s0), hn::ConcatOdd(df, s1, s0),
+                  vs, lanes, acc);
+    PskErrors<kB>(df, d, hn::Load(du, lab + lanes), hn::ConcatEven(df, s3, s2),
+                  hn::ConcatOdd(df, s3, s2), vs, lanes, acc);
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+  HWY_INLINE void Tail(std::size_t i, std::size_t count, hn::Vec<DF> s0, hn::Vec<DF> s1,
+                       hn::Vec<DF> s2, hn::Vec<DF> s3) {
+    const hn::RebindToUnsigned<DF> du;
+    const std::size_t lanes = hn::Lanes(df);
+    const std::size_t symbols = count / 2;  // count is even (2 per symbol)
+    HWY_ALIGN std::uint32_t lab[2 * hn::MaxLanes(DF())] = {};
+    Labels(bits + kB * (i / 2), symbols, lab);
+    const auto vs = hn::Set(df, sigma);
+    auto acc = hn::Zero(du);
+    PskErrors<kB>(df, d, hn::Load(du, lab), hn::ConcatEven(df, s1, s0), hn::ConcatOdd(df, s1, s0),
+                  vs, symbols < lanes ? symbols : lanes, acc);
+    if (symbols > lanes) {
+      PskErrors<kB>(df, d, hn::Load(du, lab + lanes), hn::ConcatEven(df, s3, s2),
+                    hn::ConcatOdd(df, s3, s2), vs, symbols - lanes, acc);
+    }
+    errors += hn::GetLane(hn::SumOfLanes(du, acc));
+  }
+};
+
+template <int kB>
+HWY_NOINLINE std::uint64_t PskLoop(const PskDecider& d, const Bit* HWY_RESTRICT bits,
+                                   std::size_t n_symbols, float sigma, PhiloxKey key,
+                                   const PhiloxCounter& counter) {
+  using DF = hn::ScalableTag<float>;
+  const DF df;
+  PskSink<kB, DF> sink{df, sigma, d, bits};
+  awgn_detail::ForEachNormalGroup(df, 2 * n_symbols, key, counter, sink);
+  return sink.errors;
+}
+
+template <int kP>
+HWY_NOINLINE std::uint64_t QamAxisLoop(const QamAxisDecider& d, const Bit* HWY_RESTRICT bits,
+                                       std::size_t n_symbols, float sigma, PhiloxKey key,
+                                       const PhiloxCounter& counter) {
+  using DF = hn::ScalableTag<float>;
+  const DF df;
+  QamAxisSink<kP, DF> sink{df, sigma, d, bits};
+  awgn_detail::ForEachNormalGroup(df, 2 * n_symbols, key, counter, sink);
+  return sink.errors;
+}
+
 }  // namespace channel_llr_detail
 
 #endif  // HWY_TARGET != HWY_SCALAR
@@ -236,6 +529,44 @@ HWY_MAYBE_UNUSED inline std::uint64_t CountQam16ErrorsKernel(const Bit* HWY_REST
   return reference::CountQam16Errors(bits, n_symbols, d, sigma, stream);
 #else
   return channel_llr_detail::Qam16Loop(d, bits, n_symbols, sigma, key, counter);
+#endif
+}
+
+// Uncoded 64-/256-QAM error count (channel_llr_kernels.h) at a stream
+// position; does not advance the stream (the caller advances it by n_symbols
+// blocks).
+HWY_MAYBE_UNUSED inline std::uint64_t CountQamAxisErrorsKernel(const Bit* HWY_RESTRICT bits,
+                                                               std::size_t n_symbols,
+                                                               const QamAxisDecider& d,
+                                                               float sigma, PhiloxKey key,
+                                                               const PhiloxCounter& counter) {
+  if (n_symbols == 0) return 0;
+#if HWY_TARGET == HWY_SCALAR
+  RngStream stream(key, counter[3], counter[2], static_cast<Substream>(counter[1]));
+  stream.Advance(counter[0]);
+  return reference::CountQamAxisErrors(bits, n_symbols, d, sigma, stream);
+#else
+  return d.axis_bits == 3
+             ? channel_llr_detail::QamAxisLoop<3>(d, bits, n_symbols, sigma, key, counter)
+             : channel_llr_detail::QamAxisLoop<4>(d, bits, n_symbols, sigma, key, counter);
+#endif
+}
+
+// Uncoded 8-/16-PSK error count (channel_llr_kernels.h) at a stream position;
+// does not advance the stream (the caller advances it by n_symbols blocks).
+HWY_MAYBE_UNUSED inline std::uint64_t CountPskErrorsKernel(const Bit* HWY_RESTRICT bits,
+                                                           std::size_t n_symbols,
+                                                           const PskDecider& d, float sigma,
+                                                           PhiloxKey key,
+                                                           const PhiloxCounter& counter) {
+  if (n_symbols == 0) return 0;
+#if HWY_TARGET == HWY_SCALAR
+  RngStream stream(key, counter[3], counter[2], static_cast<Substream>(counter[1]));
+  stream.Advance(counter[0]);
+  return reference::CountPskErrors(bits, n_symbols, d, sigma, stream);
+#else
+  return d.bits == 3 ? channel_llr_detail::PskLoop<3>(d, bits, n_symbols, sigma, key, counter)
+                     : channel_llr_detail::PskLoop<4>(d, bits, n_symbols, sigma, key, counter);
 #endif
 }
 

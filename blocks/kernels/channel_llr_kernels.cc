@@ -43,6 +43,14 @@ std::uint64_t Qam16Entry(const Bit* bits, std::size_t n_symbols, const Qam16Deci
                          float sigma, PhiloxKey key, const PhiloxCounter& counter) {
   return CountQam16ErrorsKernel(bits, n_symbols, d, sigma, key, counter);
 }
+std::uint64_t PskEntry(const Bit* bits, std::size_t n_symbols, const PskDecider& d, float sigma,
+                       PhiloxKey key, const PhiloxCounter& counter) {
+  return CountPskErrorsKernel(bits, n_symbols, d, sigma, key, counter);
+}
+std::uint64_t QamAxisEntry(const Bit* bits, std::size_t n_symbols, const QamAxisDecider& d,
+                           float sigma, PhiloxKey key, const PhiloxCounter& counter) {
+  return CountQamAxisErrorsKernel(bits, n_symbols, d, sigma, key, counter);
+}
 
 }  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -58,15 +66,22 @@ struct ChannelLlrTable {
                const PhiloxCounter&, float*);
   std::uint64_t (*qam16)(const Bit*, std::size_t, const Qam16Decider&, float, PhiloxKey,
                          const PhiloxCounter&);
+  std::uint64_t (*qam_axis)(const Bit*, std::size_t, const QamAxisDecider&, float, PhiloxKey,
+                            const PhiloxCounter&);
+  std::uint64_t (*psk)(const Bit*, std::size_t, const PskDecider&, float, PhiloxKey,
+                       const PhiloxCounter&);
   static ChannelLlrTable Resolve();
 };
 #ifndef CAPGAP_FORCE_SCALAR
 HWY_EXPORT(BpskLlrEntry);
 HWY_EXPORT(QpskLlrEntry);
 HWY_EXPORT(Qam16Entry);
+HWY_EXPORT(QamAxisEntry);
+HWY_EXPORT(PskEntry);
 ChannelLlrTable ChannelLlrTable::Resolve() {
   return {&HWY_DYNAMIC_DISPATCH(BpskLlrEntry), &HWY_DYNAMIC_DISPATCH(QpskLlrEntry),
-          &HWY_DYNAMIC_DISPATCH(Qam16Entry)};
+          &HWY_DYNAMIC_DISPATCH(Qam16Entry), &HWY_DYNAMIC_DISPATCH(QamAxisEntry),
+          &HWY_DYNAMIC_DISPATCH(PskEntry)};
 }
 static const auto& Chosen() { return kernel_dispatch::ChosenKernels<ChannelLlrTable>(); }
 #endif  // CAPGAP_FORCE_SCALAR
@@ -129,6 +144,74 @@ std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam
   }
 #endif
   return reference::CountQam16Errors(bits, n_symbols, d, sigma, noise);
+}
+
+// The demapper's constants (demap_reference.h, DemapSoft and HardLabel of
+// kPam), formed with the same float operations.
+QamAxisDecider MakeQamAxisDecider(int axis_bits, const float* levels, float level_scale, float n0,
+                                  bool maxlog) {
+  CAPGAP_DCHECK(axis_bits == 3 || axis_bits == 4);
+  QamAxisDecider d{};
+  d.axis_bits = axis_bits;
+  for (int l = 0; l < 16; ++l) d.levels[l] = l < (1 << axis_bits) ? levels[l] : 0.0f;
+  d.maxlog = maxlog;
+  const float s = level_scale;
+  const float inv_n0 = 1.0f / n0;
+  d.inv_s = 1.0f / s;
+  d.two_inv_s = 2.0f * d.inv_s;
+  d.scale = s * s * inv_n0;
+  return d;
+}
+
+std::uint64_t CountQamAxisErrors(const Bit* bits, std::size_t n_symbols, const QamAxisDecider& d,
+                                 float sigma, RngStream& noise) {
+  CAPGAP_DCHECK(d.axis_bits == 3 || d.axis_bits == 4);
+#ifndef CAPGAP_FORCE_SCALAR
+  if (!ScalarKernelsForced()) {
+    const std::uint64_t errors =
+        Chosen().qam_axis(bits, n_symbols, d, sigma, noise.key(), noise.counter());
+    noise.Advance(reference::BlocksForNormals(2 * n_symbols));
+    return errors;
+  }
+#endif
+  return reference::CountQamAxisErrors(bits, n_symbols, d, sigma, noise);
+}
+
+PskDecider MakePskDecider(int bits, const cf32* points, const float* metric_re,
+                          const float* metric_im, const float* boundary_cos,
+                          const float* boundary_sin, float n0, bool maxlog) {
+  CAPGAP_DCHECK(bits == 3 || bits == 4);
+  PskDecider d{};
+  d.bits = bits;
+  const int order = 1 << bits;
+  for (int l = 0; l < 16; ++l) {
+    const bool used = l < order;
+    d.point_re[l] = used ? points[l].real() : 0.0f;
+    d.point_im[l] = used ? points[l].imag() : 0.0f;
+    d.metric_re[l] = used ? metric_re[l] : 0.0f;
+    d.metric_im[l] = used ? metric_im[l] : 0.0f;
+  }
+  for (int i = 0; i < 8; ++i) {
+    d.boundary_cos[i] = i < order / 2 ? boundary_cos[i] : 0.0f;
+    d.boundary_sin[i] = i < order / 2 ? boundary_sin[i] : 0.0f;
+  }
+  d.maxlog = maxlog;
+  d.inv_n0 = 1.0f / n0;
+  return d;
+}
+
+std::uint64_t CountPskErrors(const Bit* bits, std::size_t n_symbols, const PskDecider& d,
+                             float sigma, RngStream& noise) {
+  CAPGAP_DCHECK(d.bits == 3 || d.bits == 4);
+#ifndef CAPGAP_FORCE_SCALAR
+  if (!ScalarKernelsForced()) {
+    const std::uint64_t errors =
+        Chosen().psk(bits, n_symbols, d, sigma, noise.key(), noise.counter());
+    noise.Advance(reference::BlocksForNormals(2 * n_symbols));
+    return errors;
+  }
+#endif
+  return reference::CountPskErrors(bits, n_symbols, d, sigma, noise);
 }
 
 const char* ChannelLlrKernelTarget() {

@@ -1,6 +1,8 @@
 // Fused kernels of the soft BPSK and QPSK chains on an additive channel:
 // coded bits -> symbols -> AWGN -> channel LLRs in one pass, in registers,
-// with no symbol array. Plain interface (pointers and counts, no vector
+// with no symbol array; and of the uncoded 16-, 64-, 256-QAM and 8-, 16-PSK
+// chains with hard or max-log decisions, bits -> symbols -> AWGN ->
+// decisions -> error count. Plain interface (pointers and counts, no vector
 // types); channel_llr_kernels.cc is compiled for several instruction sets
 // (Google Highway dynamic dispatch, the target chosen once per process by
 // dispatch.h, the same as the noise kernels') and channel_llr_reference.h
@@ -66,6 +68,63 @@ Qam16Decider MakeQam16Decider(const float* levels, float level_scale, float n0, 
 // 4 n_symbols bits, one per byte (0 or 1).
 std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
                                float sigma, RngStream& noise);
+
+// Uncoded Gray 64- and 256-QAM (p = 3 or 4 bits per axis) on an additive
+// channel, fused to the error count like CountQam16Errors: per axis sample t
+// (Re of symbol s at t = 2s, Im at 2s + 1) the p bits bits[p t .. p t + p - 1]
+// (MSB first) are the axis label, x = levels[label] (Mapper::pam_levels()),
+// y = x + sigma z_t as AddComplexNoise forms it, and the decisions are
+// exactly those of the demapper's oracle (demap_reference.h, kPam):
+//  * hard: u = (1 / s) y, j = #{u < L - 2 - 2i, i = 0..L-2}, label Gray(j);
+//  * max-log: u2 = (2 (1 / s)) y, metrics e[Gray(j)] = c c - c u2 with
+//    c = L - 1 - 2j, bit k decided as (min_{bit k = 1} e - min_{bit k = 0} e)
+//    scale < 0 with scale = s s (1 / N0) (the LLR's sign, LlrToBits);
+// constants formed as the demapper forms them (MakeQamAxisDecider). Ties
+// between equal metrics can change the sign of a zero LLR only, never a
+// decision. Advances the noise stream by n_symbols blocks, like
+// AddComplexNoise.
+struct QamAxisDecider {
+  int axis_bits = 3;  // p: 3 (64-QAM) or 4 (256-QAM)
+  float levels[16];   // by axis label, 2^p used
+  bool maxlog = false;
+  float inv_s = 1.0f;      // 1 / s
+  float two_inv_s = 2.0f;  // 2 (1 / s)
+  float scale = 1.0f;      // s s (1 / N0)
+};
+QamAxisDecider MakeQamAxisDecider(int axis_bits, const float* levels, float level_scale, float n0,
+                                  bool maxlog);
+// 2 p n_symbols bits, one per byte (0 or 1). REQUIRES: axis_bits 3 or 4.
+std::uint64_t CountQamAxisErrors(const Bit* bits, std::size_t n_symbols, const QamAxisDecider& d,
+                                 float sigma, RngStream& noise);
+
+// Uncoded Gray 8- and 16-PSK (b = 3 or 4 bits per symbol) on an additive
+// channel, fused to the error count: per symbol s the b bits
+// bits[b s .. b s + b - 1] (MSB first) are the label, x = points[label]
+// (Mapper::points()), Re/Im y = x + sigma z_{2s}, z_{2s+1} as AddComplexNoise
+// forms them, and the decisions are exactly those of the demapper's oracle
+// (demap_reference.h, kPsk):
+//  * hard: c = #{i < M/2: Im y cos_i - Re y sin_i >= 0} over the boundary
+//    lines, label Gray(c - 1) when Im y >= 0, else Gray(M - 1 - c);
+//  * max-log: metrics e_l = (-2 Re y) mre_l + (-2 Im y) mim_l over the
+//    demapper's points, bit k decided as (min_{bit k = 1} e -
+//    min_{bit k = 0} e) (1 / N0) < 0 (the LLR's sign, LlrToBits).
+// Advances the noise stream by n_symbols blocks, like AddComplexNoise.
+struct PskDecider {
+  int bits = 3;  // b: 3 (8-PSK) or 4 (16-PSK)
+  float point_re[16], point_im[16];    // transmitted points by label
+  float metric_re[16], metric_im[16];  // the demapper's points by label
+  float boundary_cos[8], boundary_sin[8];
+  bool maxlog = false;
+  float inv_n0 = 1.0f;
+};
+// points: the mapper's points by label (2^bits of them); metric_re/im and
+// boundary_cos/sin: the demapper's (DemapKernelArgs of the kPsk path).
+PskDecider MakePskDecider(int bits, const cf32* points, const float* metric_re,
+                          const float* metric_im, const float* boundary_cos,
+                          const float* boundary_sin, float n0, bool maxlog);
+// b n_symbols bits, one per byte (0 or 1). REQUIRES: bits 3 or 4.
+std::uint64_t CountPskErrors(const Bit* bits, std::size_t n_symbols, const PskDecider& d,
+                             float sigma, RngStream& noise);
 
 // Name of the instruction set these kernels run (NoiseKernelTarget() unless
 // the scalar kernels are forced).

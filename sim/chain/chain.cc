@@ -77,6 +77,17 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
                        scheme.shaping == PulseShape::kNone && !carrier &&
                        (scheme.demapper == DemapMethod::kHard ||
                         scheme.demapper == DemapMethod::kMaxLog);
+  // Uncoded Gray 64- and 256-QAM, the same conditions.
+  chain.qam_axis_fused_ = (scheme.modulation.order == 64 || scheme.modulation.order == 256) &&
+                          scheme.modulation.family == ModulationFamily::kQam &&
+                          scheme.shaping == PulseShape::kNone && !carrier &&
+                          (scheme.demapper == DemapMethod::kHard ||
+                           scheme.demapper == DemapMethod::kMaxLog);
+  chain.psk_fused_ = (scheme.modulation.order == 8 || scheme.modulation.order == 16) &&
+                     scheme.modulation.family == ModulationFamily::kPsk &&
+                     scheme.shaping == PulseShape::kNone && !carrier &&
+                     (scheme.demapper == DemapMethod::kHard ||
+                      scheme.demapper == DemapMethod::kMaxLog);
   if (chain.qpsk_fused_) {
     for (std::size_t l = 0; l < 4; ++l) {
       chain.qpsk_re_[l] = chain.mapper_->points()[l].real();
@@ -399,6 +410,22 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
     qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
                              faded_qam16 ? 1.0f : channel.n0(), !hard);
   }
+  // 8-/16-PSK likewise (CountPskErrors).
+  const bool fused_psk = psk_fused_ && uncoded && !interleaver_ && channel.additive_only();
+  PskDecider psk{};
+  if (fused_psk) {
+    const DemapKernelArgs a = demapper_->kernel_args();
+    psk = MakePskDecider(mapper_->bits_per_symbol(), mapper_->points().data(), a.point_re,
+                         a.point_im, a.boundary_cos, a.boundary_sin, channel.n0(), !hard);
+  }
+  // 64-/256-QAM likewise (CountQamAxisErrors).
+  const bool fused_qam_axis =
+      qam_axis_fused_ && uncoded && !interleaver_ && channel.additive_only();
+  QamAxisDecider qam_axis{};
+  if (fused_qam_axis) {
+    qam_axis = MakeQamAxisDecider(mapper_->bits_per_symbol() / 2, mapper_->pam_levels().data(),
+                                  demapper_->kernel_args().level_scale, channel.n0(), !hard);
+  }
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
   for (std::uint32_t f0 = 0; f0 < unit_frames_; f0 += batch_frames_) {
@@ -424,14 +451,19 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         continue;
       }
       FillSource(unit_index, f0 + b, s.bits, bits);
-      if (fused_qam16 || faded_qam16) {
+      if (fused_qam16 || faded_qam16 || fused_qam_axis || fused_psk) {
+        const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
         const std::uint64_t errors =
-            fused_qam16
-                ? CountQam16Errors(bits.data(), k / 4, qam16,
-                                   static_cast<float>(channel.level().sigma_per_dim), s.noise)
-                : channel.CountQam16Errors(
+            faded_qam16
+                ? channel.CountQam16Errors(
                       bits.data(), k / 4, qam16, s.noise, s.process,
-                      ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
+                      ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process})
+            : fused_qam16 ? CountQam16Errors(bits.data(), k / 4, qam16, sigma, s.noise)
+            : fused_psk   ? CountPskErrors(bits.data(), k / static_cast<std::size_t>(psk.bits), psk,
+                                           sigma, s.noise)
+                          : CountQamAxisErrors(bits.data(),
+                                               k / static_cast<std::size_t>(qam_axis.axis_bits * 2),
+                                               qam_axis, sigma, s.noise);
         counts.bits += k;
         counts.bit_errors += errors;
         counts.frames += 1;
@@ -468,7 +500,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
       }
     }
-    if (fused || fused_qam16 || faded_qam16) continue;
+    if (fused || fused_qam16 || faded_qam16 || fused_qam_axis || fused_psk) continue;
     const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
     if (direct_hard) {
       std::fill(results.begin(), results.end(), FrameDecodeResult{});

@@ -150,6 +150,10 @@ class Chain {
   // Uncoded 16-QAM with hard or max-log decisions, unshaped, no carrier
   // offset: fused bits -> error count on additive-only channels.
   bool qam16_fused_ = false;
+  // The same for 64- and 256-QAM (CountQamAxisErrors) and 8-/16-PSK
+  // (CountPskErrors).
+  bool qam_axis_fused_ = false;
+  bool psk_fused_ = false;
   // Shaped chains: transmit pulse, matched filter (with any timing offset),
   // carrier offset (also used without shaping when set), and the receiver's
   // delay in symbols (= guard symbols sent after every frame).

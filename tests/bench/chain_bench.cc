@@ -12,7 +12,10 @@
 // both in thread CPU time.
 // Medians of --repeats runs.
 //
-// Usage: chain_bench [--repeats N] [--units N] [--no-numpy] [--scalar] [--coded-only]
+// With --orders: the uncoded chains of QPSK, 16/64/256-QAM and 8/16-PSK, hard
+// and max-log, with their noise shares (where a fused kernel would pay).
+//
+// Usage: chain_bench [--repeats N] [--units N] [--no-numpy] [--scalar] [--coded-only] [--orders]
 #include <algorithm>
 #include <chrono>
 #include <ctime>
@@ -252,23 +255,39 @@ bool RunNumpy(double& bpsk, double& qam16, double& qam16_careful) {
 int main(int argc, char** argv) {
   using namespace capgap;
   int repeats = 7, units = 40;
-  bool numpy = true, coded_only = false;
+  bool numpy = true, coded_only = false, orders = false;
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--repeats") && i + 1 < argc) repeats = std::atoi(argv[++i]);
     else if (!std::strcmp(argv[i], "--units") && i + 1 < argc) units = std::atoi(argv[++i]);
     else if (!std::strcmp(argv[i], "--no-numpy")) numpy = false;
     else if (!std::strcmp(argv[i], "--scalar")) ForceScalarKernels(true);
     else if (!std::strcmp(argv[i], "--coded-only")) coded_only = true;
+    else if (!std::strcmp(argv[i], "--orders")) orders = true;
     else {
       std::fprintf(stderr,
                    "usage: chain_bench [--repeats N] [--units N] [--no-numpy] [--scalar] "
-                   "[--coded-only]\n");
+                   "[--coded-only] [--orders]\n");
       return 2;
     }
   }
   std::printf("capgap %s (%s), %s, kernels %s, one thread, median of %d runs of %d units x 61440 bits\n",
               ProgramVersion(), GitRevision(), BuildType(), NoiseKernelTarget(), repeats, units);
   if (AssertionsEnabled()) std::printf("WARNING: assertions are on; timings are not representative\n");
+  if (orders) {
+    // Uncoded chains of every order, hard and max-log: which ones a fused
+    // bits-to-count kernel would pay for (a chain whose time is mostly noise
+    // gains little). 16-QAM runs fused (CountQam16Errors), the others composed.
+    std::printf("%-30s %12s %14s\n", "uncoded chain", "Mbit/s/core", "noise share");
+    for (const char* m : {"qpsk", "16qam", "64qam", "256qam", "8psk", "16psk"}) {
+      for (const DemapMethod d : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+        const ChainFigures f = MeasureChain(Scheme(m, d), units, repeats);
+        std::printf("%-30s %12.1f %8.0f%% noise\n",
+                    (std::string(m) + (d == DemapMethod::kHard ? " hard" : " maxlog")).c_str(),
+                    f.bits_per_second / 1e6, 100 * f.noise_share);
+      }
+    }
+    return 0;
+  }
   // Coded units hold 64 frames of 1008 bits (64512 bits, about the
   // uncoded units' 61440).
   const CodedFigures coded = MeasureCoded(units, repeats);

@@ -6,8 +6,8 @@
 // the chain / Mapper form them, that target's noise loop (NormalKernel), and
 // the LLR multiply. LLRs must be identical bit for bit, on awkward lengths,
 // misaligned bit arrays and streams whose block index wraps inside a call;
-// the fused uncoded 16-QAM count equals the count of the same target's
-// noisy samples decided by the demapper's operations.
+// the fused uncoded 16-, 64-, 256-QAM and 8-, 16-PSK counts equal the count
+// of the same target's noisy samples decided by the demapper's operations.
 // The public entry points are checked against the public composed path
 // (Mapper::Map, AwgnChannel noise, Demapper::Demap; dispatched and forced
 // scalar) for LLRs and stream positions.
@@ -44,6 +44,14 @@ std::uint64_t Qam16UnderTest(const Bit* bits, std::size_t n, const Qam16Decider&
                              PhiloxKey key, const PhiloxCounter& counter) {
   return CountQam16ErrorsKernel(bits, n, d, sigma, key, counter);
 }
+std::uint64_t QamAxisUnderTest(const Bit* bits, std::size_t n, const QamAxisDecider& d,
+                               float sigma, PhiloxKey key, const PhiloxCounter& counter) {
+  return CountQamAxisErrorsKernel(bits, n, d, sigma, key, counter);
+}
+std::uint64_t PskUnderTest(const Bit* bits, std::size_t n, const PskDecider& d, float sigma,
+                           PhiloxKey key, const PhiloxCounter& counter) {
+  return CountPskErrorsKernel(bits, n, d, sigma, key, counter);
+}
 // The composed path's noise step on this target: x[i] += sigma z_i.
 void AddNoiseOnTarget(float* x, std::size_t n, float sigma, PhiloxKey key,
                       const PhiloxCounter& counter) {
@@ -73,6 +81,8 @@ HWY_EXPORT(BpskUnderTest);
 HWY_EXPORT(QpskUnderTest);
 HWY_EXPORT(AddNoiseOnTarget);
 HWY_EXPORT(Qam16UnderTest);
+HWY_EXPORT(QamAxisUnderTest);
+HWY_EXPORT(PskUnderTest);
 
 // The library picks its targets once, on first use: before any test mocks
 // the CPU's target list.
@@ -216,6 +226,212 @@ TEST_P(ChannelLlrPerTarget, Qam16CountEqualsComposedPathOfTheSameTarget) {
       }
     }
   }
+}
+
+// 64-/256-QAM: the fused count against this target's noisy samples decided
+// by the demapper oracle's operations (reference::QamAxisDecision), hard
+// and max-log, awkward lengths, misaligned bits, a wrapping stream.
+TEST_P(ChannelLlrPerTarget, QamAxisCountEqualsComposedPathOfTheSameTarget) {
+  for (const char* name : {"64qam", "256qam"}) {
+    const Mapper mapper = Mapper::Create(ParseModulation(name).value()).value();
+    const Demapper demapper = Demapper::Create(mapper, DemapMethod::kMaxLog).value();
+    const int p = mapper.bits_per_symbol() / 2;
+    const auto pp = static_cast<std::size_t>(p);
+    const float sigma = p == 3 ? 0.08f : 0.04f;  // symbol errors of order 1e-2
+    for (bool maxlog : {false, true}) {
+      const QamAxisDecider d =
+          MakeQamAxisDecider(p, mapper.pam_levels().data(), demapper.kernel_args().level_scale,
+                             2 * sigma * sigma, maxlog);
+      for (std::uint32_t start : {0u, 0xFFFFFFF0u}) {
+        for (std::size_t n : AwkwardLengths()) {
+          for (std::size_t offset : {std::size_t{0}, std::size_t{1}}) {
+            const std::vector<Bit> bits = RandomBits(2 * pp * n + offset, 3);
+            const Bit* b = bits.data() + offset;
+            const RngStream noise = StreamAt(Substream::kNoise, start);
+            std::vector<float> y(2 * n);
+            std::vector<unsigned> label(2 * n);
+            for (std::size_t t = 0; t < 2 * n; ++t) {
+              unsigned l = 0;
+              for (std::size_t k = 0; k < pp; ++k) l = 2 * l + b[pp * t + k];
+              label[t] = l;
+              y[t] = d.levels[l];
+            }
+            HWY_DYNAMIC_DISPATCH(AddNoiseOnTarget)(y.data(), 2 * n, sigma, noise.key(),
+                                                   noise.counter());
+            std::uint64_t expected = 0;
+            for (std::size_t t = 0; t < 2 * n; ++t) {
+              expected += static_cast<std::uint64_t>(
+                  std::popcount(reference::QamAxisDecision(d, y[t]) ^ label[t]));
+            }
+            EXPECT_EQ(HWY_DYNAMIC_DISPATCH(QamAxisUnderTest)(b, n, d, sigma, noise.key(),
+                                                             noise.counter()),
+                      expected)
+                << name << " n = " << n << " maxlog " << maxlog << " start " << start;
+          }
+        }
+      }
+    }
+  }
+}
+
+// The public 64-/256-QAM count against the chain's composed path:
+// Mapper::Map, AwgnChannel::AddNoise, then Demapper::HardDecide (hard) or
+// Demapper::Demap + LlrToBits (max-log), errors counted bit by bit; at an
+// Eb/N0 with many errors and with the stream position after the call.
+void ExpectQamAxisPublicPathAgrees() {
+  for (const char* name : {"64qam", "256qam"}) {
+    const Mapper mapper = Mapper::Create(ParseModulation(name).value()).value();
+    const int m = mapper.bits_per_symbol();
+    const auto mm = static_cast<std::size_t>(m);
+    NoiseSpec spec;
+    spec.ebno_db = m == 6 ? 10.0 : 14.0;  // BER of order 1e-2 (Cho and Yoon, 2002; from memory)
+    spec.bits_per_symbol = m;
+    const AwgnChannel channel(spec);
+    const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
+    for (DemapMethod method : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+      const Demapper demapper = Demapper::Create(mapper, method).value();
+      const QamAxisDecider d =
+          MakeQamAxisDecider(m / 2, mapper.pam_levels().data(),
+                             demapper.kernel_args().level_scale, channel.n0(),
+                             method == DemapMethod::kMaxLog);
+      for (std::size_t n : {std::size_t{1}, std::size_t{37}, std::size_t{640}, std::size_t{4001}}) {
+        const std::vector<Bit> bits = RandomBits(mm * n, 6);
+        RngStream a = StreamAt(Substream::kNoise, 11), b = a;
+        std::vector<cf32> symbols(n);
+        mapper.Map(bits, symbols);
+        channel.AddNoise(symbols, a);
+        std::vector<Bit> decided(mm * n);
+        if (method == DemapMethod::kHard) {
+          demapper.HardDecide(symbols, decided);
+        } else {
+          std::vector<float> llrs(mm * n);
+          demapper.Demap(symbols, channel.n0(), llrs);
+          LlrToBits(llrs, decided);
+        }
+        std::uint64_t expected = 0;
+        for (std::size_t i = 0; i < mm * n; ++i) {
+          expected += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+        }
+        EXPECT_EQ(CountQamAxisErrors(bits.data(), n, d, sigma, b), expected)
+            << name << " n = " << n << " method " << ToString(method);
+        EXPECT_EQ(a.block_index(), b.block_index());
+        if (n == 4001) {
+          EXPECT_GT(expected, 100u);  // a wrong decision rule cannot hide among few errors
+        }
+      }
+    }
+  }
+}
+
+TEST(ChannelLlrKernels, QamAxisCountEqualsComposedPathDispatchedAndScalar) {
+  ExpectQamAxisPublicPathAgrees();
+  const bool previous = ForceScalarKernels(true);
+  ExpectQamAxisPublicPathAgrees();
+  ForceScalarKernels(previous);
+}
+
+PskDecider PskDeciderOf(const Mapper& mapper, const Demapper& demapper, float n0, bool maxlog) {
+  const DemapKernelArgs a = demapper.kernel_args();
+  return MakePskDecider(mapper.bits_per_symbol(), mapper.points().data(), a.point_re, a.point_im,
+                        a.boundary_cos, a.boundary_sin, n0, maxlog);
+}
+
+// 8-/16-PSK: the fused count against this target's noisy samples decided by
+// the demapper oracle's operations (reference::PskDecision), hard and
+// max-log, awkward lengths, misaligned bits, a wrapping stream.
+TEST_P(ChannelLlrPerTarget, PskCountEqualsComposedPathOfTheSameTarget) {
+  for (const char* name : {"8psk", "16psk"}) {
+    const Mapper mapper = Mapper::Create(ParseModulation(name).value()).value();
+    const Demapper demapper = Demapper::Create(mapper, DemapMethod::kMaxLog).value();
+    const auto b = static_cast<std::size_t>(mapper.bits_per_symbol());
+    const float sigma = b == 3 ? 0.15f : 0.08f;  // symbol errors of order 1e-2
+    for (bool maxlog : {false, true}) {
+      const PskDecider d = PskDeciderOf(mapper, demapper, 2 * sigma * sigma, maxlog);
+      for (std::uint32_t start : {0u, 0xFFFFFFF0u}) {
+        for (std::size_t n : AwkwardLengths()) {
+          for (std::size_t offset : {std::size_t{0}, std::size_t{1}}) {
+            const std::vector<Bit> bits = RandomBits(b * n + offset, 3);
+            const Bit* bp = bits.data() + offset;
+            const RngStream noise = StreamAt(Substream::kNoise, start);
+            std::vector<float> y(2 * n);
+            std::vector<unsigned> label(n);
+            for (std::size_t s = 0; s < n; ++s) {
+              unsigned l = 0;
+              for (std::size_t k = 0; k < b; ++k) l = 2 * l + bp[b * s + k];
+              label[s] = l;
+              y[2 * s] = d.point_re[l];
+              y[2 * s + 1] = d.point_im[l];
+            }
+            HWY_DYNAMIC_DISPATCH(AddNoiseOnTarget)(y.data(), 2 * n, sigma, noise.key(),
+                                                   noise.counter());
+            std::uint64_t expected = 0;
+            for (std::size_t s = 0; s < n; ++s) {
+              expected += static_cast<std::uint64_t>(
+                  std::popcount(reference::PskDecision(d, y[2 * s], y[2 * s + 1]) ^ label[s]));
+            }
+            EXPECT_EQ(HWY_DYNAMIC_DISPATCH(PskUnderTest)(bp, n, d, sigma, noise.key(),
+                                                         noise.counter()),
+                      expected)
+                << name << " n = " << n << " maxlog " << maxlog << " start " << start;
+          }
+        }
+      }
+    }
+  }
+}
+
+// The public 8-/16-PSK count against the chain's composed path: Mapper::Map,
+// AwgnChannel::AddNoise, then Demapper::HardDecide (hard) or Demapper::Demap
+// + LlrToBits (max-log), errors counted bit by bit; at an Eb/N0 with many
+// errors and with the stream position after the call.
+void ExpectPskPublicPathAgrees() {
+  for (const char* name : {"8psk", "16psk"}) {
+    const Mapper mapper = Mapper::Create(ParseModulation(name).value()).value();
+    const int m = mapper.bits_per_symbol();
+    const auto mm = static_cast<std::size_t>(m);
+    NoiseSpec spec;
+    spec.ebno_db = m == 3 ? 7.0 : 11.0;  // BER of order 1e-2 (Proakis & Salehi, 5th ed., ch. 4; from memory)
+    spec.bits_per_symbol = m;
+    const AwgnChannel channel(spec);
+    const auto sigma = static_cast<float>(channel.level().sigma_per_dim);
+    for (DemapMethod method : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+      const Demapper demapper = Demapper::Create(mapper, method).value();
+      const PskDecider d =
+          PskDeciderOf(mapper, demapper, channel.n0(), method == DemapMethod::kMaxLog);
+      for (std::size_t n : {std::size_t{1}, std::size_t{37}, std::size_t{640}, std::size_t{4001}}) {
+        const std::vector<Bit> bits = RandomBits(mm * n, 6);
+        RngStream a = StreamAt(Substream::kNoise, 11), b = a;
+        std::vector<cf32> symbols(n);
+        mapper.Map(bits, symbols);
+        channel.AddNoise(symbols, a);
+        std::vector<Bit> decided(mm * n);
+        if (method == DemapMethod::kHard) {
+          demapper.HardDecide(symbols, decided);
+        } else {
+          std::vector<float> llrs(mm * n);
+          demapper.Demap(symbols, channel.n0(), llrs);
+          LlrToBits(llrs, decided);
+        }
+        std::uint64_t expected = 0;
+        for (std::size_t i = 0; i < mm * n; ++i) {
+          expected += static_cast<std::uint64_t>(bits[i] ^ decided[i]);
+        }
+        EXPECT_EQ(CountPskErrors(bits.data(), n, d, sigma, b), expected)
+            << name << " n = " << n << " method " << ToString(method);
+        EXPECT_EQ(a.block_index(), b.block_index());
+        if (n == 4001) {
+          EXPECT_GT(expected, 100u);  // a wrong decision rule cannot hide among few errors
+        }
+      }
+    }
+  }
+}
+
+TEST(ChannelLlrKernels, PskCountEqualsComposedPathDispatchedAndScalar) {
+  ExpectPskPublicPathAgrees();
+  const bool previous = ForceScalarKernels(true);
+  ExpectPskPublicPathAgrees();
+  ForceScalarKernels(previous);
 }
 
 // The public 16-QAM count against the chain's composed path: Mapper::Map,
