@@ -49,10 +49,12 @@
 
 #include <atomic>
 #include <cstdint>
+#include <functional>
 #include <span>
 #include <string>
 #include <vector>
 
+#include "blocks/channel/channel_spec.h"
 #include "blocks/core/types.h"
 
 namespace capgap::analysis {
@@ -150,12 +152,47 @@ RcuEstimate BinaryInputRcu(int n, double k, double snr, int samples, std::uint64
 RcuEstimate PamConverseFer(const PamChannel& channel, int n, double k, int samples,
                            std::uint64_t seed);
 
+class CombinedGain;  // analysis/fading_theory.h
+
+// Fast (i.i.d. per symbol) flat fading with the gain known at the receiver:
+// the channel from x to (y, h) is memoryless, so the NA applies with C and V
+// of its information density i(x; y, h). With per-symbol AWGN moments
+// C(g), V(g) at SNR g and g = mean_esno X (X the combined gain), the law of
+// total variance gives C = E[C(g)], V = E[V(g)] + Var[C(g)] (the second
+// term is the fading's own contribution). Averages by GainQuadrature.
+// Fixed nodes and weights for E[f(X)] over the law of the combined gain:
+// trapezoid rule in t = ln x on 4000 points over [1e-12, the 1 - 1e-15
+// quantile], weights pdf(x) x dt normalised to sum 1 (so the truncated
+// tails are spread); built once (the density is evaluated 4000 times)
+// because the NA search averages many functions. Deterministic X: one node.
+// Accuracy against CombinedGain::Average: tests/analysis/finite_length_test.cc.
+struct GainQuadrature {
+  std::vector<double> x, w;
+  static GainQuadrature FromGain(const CombinedGain& gain);
+};
+
+// `awgn(esno)` gives the per-symbol moments on the AWGN channel at Es/N0.
+CapacityDispersion FastFadingDensity(const std::function<CapacityDispersion(double)>& awgn,
+                                     const GainQuadrature& gain, double mean_esno);
+
+// Gaussian input on the same channel, per symbol of `dims` real dimensions
+// sharing one gain (1: real signalling at P = 2 Es/N0 X; 2: complex at
+// Es/N0 X): C = dims/2 E[log2(1 + P)], V = dims/2 log2(e)^2 (1 - E[1/(1 +
+// P)]^2) + Var[dims/2 log2(1 + P)] (Y. Polyanskiy, S. Verdu, "Scalar
+// coherent fading channel: dispersion analysis", ISIT 2011; form from
+// memory; without fading it is PPV's AWGN dispersion, dims times).
+CapacityDispersion FastFadingGaussianInput(const GainQuadrature& gain, double mean_esno, int dims);
+
 // What the finite-length analysis of a scheme uses: its block on the channel
 // and which models apply.
 struct FiniteLengthBlock {
   int coded_bits = 0;  // per frame
   int info_bits = 0;   // k per frame
   std::vector<cf32> points;  // the constellation, unit average energy
+  // The channel: AWGN; fading (or receive diversity) with time kFast gets
+  // the NA of FastFadingDensity (no RCU, no converse); block and Doppler
+  // fading get no finite-length limits (absent: the outage limit applies).
+  ChannelSpec channel;
 };
 
 struct FiniteLengthLimits {

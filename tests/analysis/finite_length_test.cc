@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "analysis/capacity.h"
+#include "analysis/fading_theory.h"
 #include "blocks/core/types.h"
 #include "blocks/mapping/mapper.h"
 #include "blocks/mapping/modulation.h"
@@ -572,6 +573,165 @@ TEST(FiniteLength, EightPskHasNoRcuAndTheEqualPowerConverse) {
   EXPECT_EQ(r.rcu_bound, "none");
   EXPECT_EQ(r.converse_ebno_db, r.converse_equal_power_ebno_db);
   EXPECT_LT(r.converse_ebno_db, r.normal_approximation_ebno_db);
+}
+
+ChannelSpec FastFading(FadingLaw law, double rician_k_db = 0) {
+  ChannelSpec c;
+  c.law = law;
+  c.rician_k_db = rician_k_db;
+  c.time = FadingTime::kFast;
+  return c;
+}
+
+// Fast Rayleigh fading, BPSK, receiver knows h, Es/N0 = 3 dB: C and V of the
+// per-symbol information density i(x; y, h) = 1 - log2(1 + exp(-4 x Re(h* y)
+// / N0)) (the BPSK LLR with known h, FIELD_NOTES section 7) against a Monte
+// Carlo estimate (2e5 symbols, fixed seed, 5 standard errors); C also
+// against the ergodic CM capacity of analysis/fading_theory.h (separate
+// code, 1e-5).
+TEST(FiniteLength, FastFadingDensityMatchesMonteCarlo) {
+  const double esno = std::pow(10.0, 0.3), n0 = 1.0 / esno;
+  const CombinedGain gain = CombinedGain::FromSpec(FastFading(FadingLaw::kRayleigh));
+  const CapacityDispersion cd = FastFadingDensity(
+      [](double g) { return BinaryInputAwgn(2.0 * g); }, GainQuadrature::FromGain(gain), esno);
+  std::mt19937_64 rng(17);
+  std::normal_distribution<double> unit(0.0, std::sqrt(0.5));  // CN(0, 1) parts
+  std::normal_distribution<double> noise(0.0, std::sqrt(n0 / 2));
+  const int samples = 200000;
+  double s1 = 0, s2 = 0, s4 = 0;
+  for (int s = 0; s < samples; ++s) {
+    const double hr = unit(rng), hi = unit(rng);
+    const double yr = hr + noise(rng), yi = hi + noise(rng);  // x = +1
+    const double a = -4.0 * (hr * yr + hi * yi) / n0;
+    const double i = 1.0 - kLog2e * (a > 0 ? a + std::log1p(std::exp(-a)) : std::log1p(std::exp(a)));
+    s1 += i;
+    s2 += i * i;
+    s4 += i * i * i * i;
+  }
+  const double mean = s1 / samples, var = s2 / samples - mean * mean;
+  EXPECT_NEAR(cd.capacity, mean, 5 * std::sqrt(var / samples));
+  EXPECT_NEAR(cd.dispersion, var, 5 * std::sqrt(s4 / samples / samples));
+  const auto bpsk = Points(ModulationFamily::kPsk, 2);
+  EXPECT_NEAR(cd.capacity, ErgodicConstrainedCapacity(bpsk, FastFading(FadingLaw::kRayleigh), 3.0),
+              1e-5);
+  // The fading term makes V larger than the average AWGN dispersion.
+  EXPECT_GT(cd.dispersion,
+            gain.Average([&](double x) { return BinaryInputAwgn(2.0 * esno * x).dispersion; }));
+}
+
+// The fixed gain quadrature against CombinedGain::Average (adaptive
+// Gauss-Kronrod, relative tolerance 1e-10; analysis/fading_theory.h) for
+// Rayleigh, Rician K = 10 and 30 dB, Nakagami m = 3 and MRC of two Rayleigh
+// branches: E[log2(1 + 2 X)] and E[1/(1 + 2 X)] within 1e-7 relative.
+TEST(FiniteLength, GainQuadratureMatchesAdaptiveAverage) {
+  std::vector<ChannelSpec> specs = {FastFading(FadingLaw::kRayleigh),
+                                    FastFading(FadingLaw::kRician, 10.0),
+                                    FastFading(FadingLaw::kRician, 30.0),
+                                    FastFading(FadingLaw::kNakagami)};
+  specs[3].nakagami_m = 3;
+  specs.push_back(FastFading(FadingLaw::kRayleigh));
+  specs.back().branches = 2;
+  for (const ChannelSpec& c : specs) {
+    const CombinedGain gain = CombinedGain::FromSpec(c);
+    const GainQuadrature q = GainQuadrature::FromGain(gain);
+    double a = 0, b = 0;
+    for (std::size_t i = 0; i < q.x.size(); ++i) {
+      a += q.w[i] * std::log2(1 + 2 * q.x[i]);
+      b += q.w[i] / (1 + 2 * q.x[i]);
+    }
+    const double ra = gain.Average([](double x) { return std::log2(1 + 2 * x); });
+    const double rb = gain.Average([](double x) { return 1 / (1 + 2 * x); });
+    EXPECT_NEAR(a, ra, 1e-7 * ra) << static_cast<int>(c.law) << " " << c.rician_k_db;
+    EXPECT_NEAR(b, rb, 1e-7 * rb) << static_cast<int>(c.law) << " " << c.rician_k_db;
+  }
+}
+
+// Rician K -> infinity is the AWGN channel (FIELD_NOTES section 7): the
+// fast-fading NA of BPSK (128, 64) and of 16-QAM (256, 128) approaches the
+// AWGN NA as K grows (10, 20, 30 dB), within 0.01 dB at 30 dB; the
+// Gaussian-input form approaches PPV's AWGN one likewise.
+TEST(FiniteLength, RicianFadingNormalApproximationTendsToAwgn) {
+  FiniteLengthBlock qam;
+  qam.coded_bits = 256;
+  qam.info_bits = 128;
+  qam.points = Points(ModulationFamily::kQam, 16);
+  FiniteLengthOptions o;
+  o.max_bound_length = 0;
+  for (FiniteLengthBlock b : {BinaryBlock(128, 64), qam}) {
+    const FiniteLengthLimits awgn = AnalyseFiniteLength(b, {}, 1e-4, o);
+    double previous = std::numeric_limits<double>::infinity();
+    for (const double k_db : {10.0, 20.0, 30.0}) {
+      b.channel = FastFading(FadingLaw::kRician, k_db);
+      const FiniteLengthLimits r = AnalyseFiniteLength(b, {}, 1e-4, o);
+      ASSERT_TRUE(r.present) << r.absent_reason;
+      const double gap = r.normal_approximation_ebno_db - awgn.normal_approximation_ebno_db;
+      const double gap_g =
+          r.normal_approximation_gaussian_ebno_db - awgn.normal_approximation_gaussian_ebno_db;
+      EXPECT_GT(gap, 0) << k_db;
+      EXPECT_LT(gap, previous) << k_db;
+      previous = gap;
+      if (k_db == 30.0) {
+        EXPECT_LT(gap, 0.01);
+        EXPECT_NEAR(gap_g, 0.0, 0.01);
+      }
+      EXPECT_TRUE(std::isnan(r.rcu_ebno_db));
+      EXPECT_EQ(r.rcu_bound, "none");
+    }
+  }
+}
+
+// Fast Rayleigh fading, Gray QPSK, rate 1/2 (1 bit per symbol): the NA
+// falls towards the ergodic CM limit (analysis/fading_theory.h) as n grows,
+// with the penalty shrinking about like 1/sqrt(n); it lies above the AWGN NA
+// of the same block; and the fading dispersion term makes the penalty at n
+// = 128 symbols larger than on AWGN.
+TEST(FiniteLength, FastRayleighNormalApproximationTendsToTheErgodicLimit) {
+  const auto qpsk = Points(ModulationFamily::kPsk, 4);
+  const ChannelSpec ray = FastFading(FadingLaw::kRayleigh);
+  const double limit = ErgodicConstrainedMinEbnoDb(qpsk, ray, 1.0);
+  FiniteLengthOptions o;
+  o.max_bound_length = 0;
+  std::vector<double> penalty;
+  for (const int symbols : {128, 2048, 32768}) {
+    FiniteLengthBlock b = BinaryBlock(2 * symbols, symbols);
+    b.points = qpsk;
+    const FiniteLengthLimits awgn = AnalyseFiniteLength(b, {}, 1e-4, o);
+    b.channel = ray;
+    const FiniteLengthLimits r = AnalyseFiniteLength(b, {}, 1e-4, o);
+    ASSERT_TRUE(r.present);
+    EXPECT_EQ(r.n, symbols);
+    EXPECT_GT(r.normal_approximation_ebno_db, limit);
+    EXPECT_GT(r.normal_approximation_ebno_db, awgn.normal_approximation_ebno_db);
+    penalty.push_back(r.normal_approximation_ebno_db - limit);
+    if (symbols == 128) {
+      EXPECT_GT(penalty.back(), awgn.normal_approximation_ebno_db - BinaryInputMinEbnoDb(0.5));
+      std::printf("QPSK fast Rayleigh, 128 symbols, k = 128: NA %.3f dB (ergodic limit %.3f dB, "
+                  "AWGN NA %.3f dB)\n",
+                  r.normal_approximation_ebno_db, limit, awgn.normal_approximation_ebno_db);
+    }
+  }
+  // 16 times the length, about a quarter of the penalty (1/sqrt(n)).
+  EXPECT_NEAR(penalty[1] / penalty[0], 0.25, 0.06);
+  EXPECT_NEAR(penalty[2] / penalty[1], 0.25, 0.04);
+}
+
+// Block and Doppler fading have no finite-length limits here (the outage
+// probability is the benchmark of block fading); nor has fast fading with a
+// non-product constellation (8-PSK).
+TEST(FiniteLength, BlockFadingAndEightPskFadingAreAbsent) {
+  FiniteLengthBlock b = BinaryBlock(128, 64);
+  b.channel = FastFading(FadingLaw::kRayleigh);
+  b.channel.time = FadingTime::kBlock;
+  const FiniteLengthLimits r = AnalyseFiniteLength(b, {}, 1e-4);
+  EXPECT_FALSE(r.present);
+  EXPECT_NE(r.absent_reason.find("outage"), std::string::npos);
+  b.channel.time = FadingTime::kDoppler;
+  EXPECT_FALSE(AnalyseFiniteLength(b, {}, 1e-4).present);
+  b.channel.time = FadingTime::kFast;
+  b.coded_bits = 192;
+  b.info_bits = 96;
+  b.points = Points(ModulationFamily::kPsk, 8);
+  EXPECT_FALSE(AnalyseFiniteLength(b, {}, 1e-4).present);
 }
 
 // Not a block: k = 0 or a frame that is not whole symbols.
