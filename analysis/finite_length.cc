@@ -542,7 +542,8 @@ Cgf SumCgf(std::span<const double> z, std::size_t levels, double t) {
 
 }  // namespace
 
-double LogPairwiseErrorSaddlepoint(std::span<const double> z, std::size_t levels) {
+double LogPairwiseErrorSaddlepoint(std::span<const double> z, std::size_t levels,
+                                   double* hint) {
   // Saddlepoint: K'(t) = 0. K is convex; K'(0) is the mean of S.
   const Cgf at0 = SumCgf(z, levels, 0.0);
   if (at0.k2 <= 0) return at0.k1 >= 0 ? 0.0 : -std::numeric_limits<double>::infinity();
@@ -561,8 +562,35 @@ double LogPairwiseErrorSaddlepoint(std::span<const double> z, std::size_t levels
     log_ties += std::log(static_cast<double>(ties) / static_cast<double>(levels));
   }
   if (smax <= 1e-12) return log_ties;
-  // Bracket the root: K' grows from K'(0) towards sum_j max_b z_jb (>= 0).
-  double lo = 0, hi = at0.k1 < 0 ? 1.0 : -1.0;
+  if (at0.k1 < 0) {
+    // Positive root (the usual case): Newton from the hint (the previous
+    // block's root: neighbouring blocks have similar roots), safeguarded by
+    // the bracket [a, b] the signs of K' establish (b = inf until found).
+    double a = 0, b = std::numeric_limits<double>::infinity();
+    double t = hint && *hint > 0 ? *hint : 1.0;
+    Cgf c{};
+    for (int it = 0; it < 200; ++it) {
+      c = SumCgf(z, levels, t);
+      if (c.k1 < 0) a = t; else b = t;
+      double next = c.k2 > 0 ? t - c.k1 / c.k2 : (std::isinf(b) ? 2 * t : 0.5 * (a + b));
+      if (!(next > a && next < b)) next = std::isinf(b) ? 2 * t : 0.5 * (a + b);
+      const bool done = std::fabs(next - t) <= 1e-10 * t;
+      t = next;
+      if (done || t > 1e12) break;
+    }
+    if (t > 1e12) return std::min(0.0, c.k0);  // no root in reach: Chernoff
+    c = SumCgf(z, levels, t);
+    if (hint) *hint = t;
+    const double w = std::sqrt(std::max(0.0, -2.0 * c.k0));
+    const double u = t * std::sqrt(c.k2);
+    if (w < 1e-6) return std::log(0.5);
+    if (u < 1e-9) return std::min(0.0, c.k0);
+    const double bracket = LugannaniRiceBracket(w, u);
+    if (bracket > 0) return -0.5 * w * w - 0.5 * std::log(2.0 * kPi) + std::log(bracket);
+    return c.k0;
+  }
+  // Negative root (mean > 0): bracket by doubling, then safeguarded Newton.
+  double lo = 0, hi = -1.0;
   Cgf c = SumCgf(z, levels, hi);
   for (int i = 0; i < 60 && (c.k1 < 0) == (at0.k1 < 0); ++i) {
     lo = hi;
@@ -608,7 +636,7 @@ RcuEstimate PamRcu(const PamChannel& ch, int n, double k, int samples, std::uint
     return (static_cast<double>(rng() >> 11) + 0.5) * (1.0 / 9007199254740992.0);
   };
   std::vector<double> z(static_cast<std::size_t>(n) * levels);
-  double sum = 0, sum2 = 0;
+  double sum = 0, sum2 = 0, hint = 1.0;
   for (int s = 0; s < samples; ++s) {
     double log_weight = 0;
     for (std::size_t j = 0; j < static_cast<std::size_t>(n); ++j) {
@@ -618,7 +646,7 @@ RcuEstimate PamRcu(const PamChannel& ch, int n, double k, int samples, std::uint
       const double y = table.Draw(a, u1, uniform(), &log_weight);
       table.Differences(y, a, &z[j * levels]);
     }
-    const double log_pe = LogPairwiseErrorSaddlepoint(z, levels);
+    const double log_pe = LogPairwiseErrorSaddlepoint(z, levels, &hint);
     const double log_f = std::min(0.0, gamma * std::log(2.0) + log_pe);
     const double v = std::exp(log_f + log_weight);
     sum += v;

@@ -130,7 +130,9 @@ struct PamChannel {
 // no root exists. In the RCU bound z[j L + b] = ln p(y_j|b) - ln p(y_j|x_j):
 // the probability that an independent uniform codeword is at least as likely
 // as the sent one. REQUIRES z.size() % L == 0.
-double LogPairwiseErrorSaddlepoint(std::span<const double> z, std::size_t levels);
+// `hint` (optional): a start for the root, updated to the root found.
+double LogPairwiseErrorSaddlepoint(std::span<const double> z, std::size_t levels,
+                                   double* hint = nullptr);
 
 // The random-coding union (RCU) bound of PPV (Thm. 16) itself, eps <=
 // E[min(1, (M - 1) P[i(Xbar^n; Y^n) >= i(X^n; Y^n) | X^n, Y^n])], for i.i.d.
