@@ -139,8 +139,8 @@ void AnalyseFadingLimits(const Chain& chain, SchemeResult& r) {
   }
 }
 
-// Finite-length limits of a coded scheme on the AWGN channel at its own
-// block: coded bits and information bits per frame on its constellation, on
+// Finite-length limits of a coded scheme at its own block (AWGN: NA, RCU,
+// converse; fast fading: NA): coded bits and information bits per frame on its constellation, on
 // a 0.1 dB grid over the sweep +-1 dB, and at target_fer.
 void AnalyseFiniteLengthLimits(const Chain& chain, const SweepConfig& sweep, SchemeResult& r,
                                const std::atomic<bool>* stop) {
@@ -149,13 +149,11 @@ void AnalyseFiniteLengthLimits(const Chain& chain, const SweepConfig& sweep, Sch
     fl.absent_reason = "uncoded: a frame is not a code block, so there is no (n, k) to bound";
     return;
   }
-  if (FadingTheoryApplies(chain.scheme().channel)) {
-    fl.absent_reason =
-        "fading channel: the finite-length limits here are for the AWGN channel (see the outage "
-        "limits)";
-    return;
-  }
+  // Fading (or receive diversity): AnalyseFiniteLength gives the fast-fading
+  // normal approximation, or no group with the reason (block fading: the
+  // outage limit applies).
   analysis::FiniteLengthBlock block;
+  block.channel = chain.scheme().channel;
   block.coded_bits = static_cast<int>(chain.code().coded_bits());
   block.info_bits = static_cast<int>(chain.code().info_bits());
   const auto pts = chain.mapper().points();

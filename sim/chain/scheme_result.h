@@ -120,7 +120,8 @@ struct Limits {
   double outage_threshold_constrained_esno_db = std::numeric_limits<double>::quiet_NaN();
   // Finite-length limits at the scheme's own block (n, k) on the AWGN
   // channel, on a 0.1 dB grid and at target_fer (analysis/finite_length.h);
-  // finite_length.present is false for uncoded and fading schemes, with the
+  // finite_length.present is false for uncoded schemes and block/Doppler
+  // fading (fast fading: the NA only), with the
   // reason in finite_length.absent_reason.
   analysis::FiniteLengthLimits finite_length;
 };

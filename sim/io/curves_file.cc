@@ -307,6 +307,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
                 fl.normal_approximation_gaussian_ebno_db);
         NumAttr(f, "rcu_ebno_db", F64, fl.rcu_ebno_db);
         NumAttr(f, "rcu_relative_std_error", F64, fl.rcu_relative_std_error);
+        StrAttr(f, "rcu_bound", fl.rcu_bound);
         NumAttr(f, "converse_ebno_db", F64, fl.converse_ebno_db);
         NumAttr(f, "converse_relative_std_error", F64, fl.converse_relative_std_error);
         NumAttr(f, "converse_equal_power_ebno_db", F64, fl.converse_equal_power_ebno_db);
