@@ -1084,8 +1084,11 @@ FiniteLengthLimits AnalyseFiniteLength(const FiniteLengthBlock& block,
       "Gaussian auxiliary output, non-central chi-square Neyman-Pearson test, exact), " +
       std::to_string(converse_uses) + " real uses" +
       (converse_uses > real_uses ? " (average-power code extended by one dimension)" : "") +
-      (bounds ? "" : "; RCU and converse skipped above " +
-                         std::to_string(options.max_bound_length) + " real uses (NaN)");
+      (bounds ? ""
+       : options.max_bound_length <= 0
+           ? std::string("; RCU and converse not computed (finite_length_bounds = no; NaN)")
+           : "; RCU and converse skipped above " + std::to_string(options.max_bound_length) +
+                 " real uses (NaN)");
   return r;
 }
 

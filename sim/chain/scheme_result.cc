@@ -167,6 +167,7 @@ void AnalyseFiniteLengthLimits(const Chain& chain, const SweepConfig& sweep, Sch
   analysis::FiniteLengthOptions options;
   options.seed = sweep.seed;
   options.stop = stop;
+  if (!sweep.finite_length_bounds) options.max_bound_length = 0;
   fl = analysis::AnalyseFiniteLength(block, grid, sweep.target_fer, options);
 }
 

@@ -142,6 +142,7 @@ Result<SweepConfig> BuildSweep(const ResolvedKeys& k) {
   if (k.has("stop_frame_errors")) c.stop_frame_errors = k.integer("stop_frame_errors");
   c.stop_bits = k.integer("stop_bits");
   c.ber_floor = k.number("ber_floor");
+  c.finite_length_bounds = k.text("finite_length_bounds") == "yes";
   c.target_ber = k.number("target_ber");
   c.target_fer = k.number("target_fer");
   c.seed = k.integer("seed");

@@ -48,6 +48,9 @@ struct SweepConfig {
   double ber_floor = 1e-7;              // a scheme's sweep ends after a point below it
   double target_ber = 1e-5;             // BER of the summary (Eb/N0 needed, gaps)
   double target_fer = 1e-4;             // FER of the summary and finite-length limits
+  // false: the finite-length group holds the normal approximation only (no
+  // Monte Carlo RCU or meta-converse). Changes no count.
+  bool finite_length_bounds = true;
   std::uint64_t seed = 1;
   int threads = 0;                      // 0: all cores
   // Seconds between checkpoints while a point runs (0: only when a point

@@ -194,7 +194,7 @@ TEST(MpiRun, FadingSchemesGiveTheCountsOfOneThreadOnOneTwoAndThreeRanks) {
   const std::string cfg = (dir / "fading.ini").string();
   {
     std::ofstream f(cfg);
-    f << "[sweep]\nebno_db = 0:4:12\ntarget_errors = 200\nmax_bits = 400000\n"
+    f << "[sweep]\nebno_db = 0 to 12 by 4\nstop_bit_errors = 200\nstop_bits = 400000\n"
          "ber_floor = 1e-6\nseed = 5\n"
          "[scheme.qam16_fast]\nmodulation = 16qam\ndemapper = maxlog\nframe_bits = 480\n"
          "unit_frames = 4\nchannel = rayleigh\n"

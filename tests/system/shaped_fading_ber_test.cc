@@ -47,8 +47,8 @@ SchemeConfig ShapedFading(const char* modulation, FadingLaw law, double k_db) {
 SweepConfig Sweep(std::vector<double> ebno) {
   SweepConfig sweep;
   sweep.ebno_db = std::move(ebno);
-  sweep.target_errors = 4000;
-  sweep.max_bits = 40000000;
+  sweep.stop_bit_errors = 4000;
+  sweep.stop_bits = 40000000;
   sweep.ber_floor = 0;
   sweep.seed = 78;
   return sweep;

@@ -292,5 +292,20 @@ TEST(Config, MissingFileIsReported) {
   EXPECT_EQ(r.status().message(), "/nonexistent/dir/x.ini: cannot open config file");
 }
 
+TEST(Config, FiniteLengthBoundsIsYesOrNo) {
+  const std::string base = "[scheme.a]\nmodulation = bpsk\n[sweep]\nebno_db = 1\n";
+  auto def = ParseRunConfig(base, "d.ini", {});
+  ASSERT_TRUE(def.ok()) << def.status().message();
+  EXPECT_TRUE(def.value().sweep.finite_length_bounds);
+  auto off = ParseRunConfig(base + "finite_length_bounds = no\n", "d.ini", {});
+  ASSERT_TRUE(off.ok()) << off.status().message();
+  EXPECT_FALSE(off.value().sweep.finite_length_bounds);
+  auto bad = ParseRunConfig(base + "finite_length_bounds = maybe\n", "d.ini", {});
+  ASSERT_FALSE(bad.ok());
+  EXPECT_NE(bad.status().message().find("finite_length_bounds"), std::string::npos)
+      << bad.status().message();
+  EXPECT_NE(bad.status().message().find("maybe"), std::string::npos) << bad.status().message();
+}
+
 }  // namespace
 }  // namespace capgap
