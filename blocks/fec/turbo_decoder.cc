@@ -183,7 +183,7 @@ FrameDecodeResult TurboDecoder::Decode(std::span<const float> llrs, std::span<Bi
   // new ones in hard_prev. True when they agree.
   auto settle = [&]() {
     ++halves;
-    const bool agree = halves > 1 && ws.hard == ws.hard_prev;
+    const bool agree = options_.early_stop && halves > 1 && ws.hard == ws.hard_prev;
     std::swap(ws.hard, ws.hard_prev);
     return agree;
   };

@@ -56,6 +56,8 @@ struct TurboDecoderOptions {
   TurboDecoderKind kind = TurboDecoderKind::kMaxLogMap;
   float extrinsic_scale = 0.7f;
   int max_iterations = 8;
+  // false: always run max_iterations full iterations (benchmarks).
+  bool early_stop = true;
 };
 
 class TurboDecoder {

@@ -107,6 +107,37 @@ TEST(TurboBer, SRandomPermutationFollowsTheSeed) {
             10u);  // floor(sqrt(200 / 2))
 }
 
+// No simulated FER lies below the finite-length converse (Polyanskiy, Poor,
+// Verdu, IEEE Trans. Inf. Theory 56(5), 2010, meta-converse for the binary-
+// input AWGN channel; analysis/finite_length.h) of the code's own (n, k) =
+// (132, 40): the 99 % Clopper-Pearson upper bound of the FER at 0, 1, 2 dB
+// (1600 frames each, fixed seed) must reach the converse there. A decoder
+// that reported too few frame errors (or an Eb/N0 bookkeeping error in the
+// decoder's favour, e.g. a rate without the tail) would fall below it.
+TEST(TurboBer, FerNeverBelowFiniteLengthConverse) {
+  auto cfg = TurboConfig("frame_bits = 40\nunit_frames = 16\n", "0,1,2", 40 * 1600, "bpsk");
+  ASSERT_TRUE(cfg.ok()) << cfg.status().message();
+  auto chain = Chain::Create(cfg.value().schemes[0], 5);
+  ASSERT_TRUE(chain.ok()) << chain.status().message();
+  const SchemeResult r = AnalyseScheme(chain.value(), cfg.value().SweepFor(0), {});
+  const auto& fl = r.limits.finite_length;
+  ASSERT_TRUE(fl.present) << fl.absent_reason;
+  for (double ebno : {0.0, 1.0, 2.0}) {
+    EngineOptions eo;
+    eo.threads = 2;
+    const PointResult p = RunPoint(chain.value(), cfg.value().SweepFor(0), 0, ebno, eo);
+    ASSERT_EQ(p.counts.frames, 1600u);
+    std::size_t i = 0;
+    while (i < fl.ebno_db.size() && std::fabs(fl.ebno_db[i] - ebno) > 1e-6) ++i;
+    ASSERT_LT(i, fl.ebno_db.size()) << ebno;
+    const double converse = fl.fer_converse[i];
+    ASSERT_TRUE(std::isfinite(converse)) << ebno;
+    const Interval ci = ClopperPearson(p.counts.frame_errors, p.counts.frames, 0.99);
+    EXPECT_GE(ci.high, converse) << "Eb/N0 " << ebno << " dB: FER " << p.counts.frame_errors
+                                 << "/1600 below the converse " << converse;
+  }
+}
+
 void ExpectRefused(const std::string& keys, const std::string& needle,
                    const std::string& modulation = "qpsk") {
   auto cfg = TurboConfig(keys, "2", 1000, modulation);
