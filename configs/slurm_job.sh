@@ -6,7 +6,7 @@
 #
 # Submit:   sbatch configs/slurm_job.sh configs/demo.ini
 # Extend a finished sweep (more errors per point, same streams):
-#           sbatch configs/slurm_job.sh configs/demo.ini --set sweep.target_errors=1000
+#           sbatch configs/slurm_job.sh configs/demo.ini --set sweep.stop_bit_errors=1000
 #
 # Needs capgap built with -DCAPGAP_MPI=ON (OpenMPI from Debian: openmpi-bin,
 # libopenmpi-dev) on a file system every node sees. Not run on a real Slurm

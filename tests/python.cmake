@@ -80,8 +80,8 @@ add_test(NAME python_finite_length_run
           --out ${CMAKE_BINARY_DIR}/tests/finite_length_n128.h5
           --checker ${_capgap_py_dir}/check_h5_layout.py
           --plotter ${CMAKE_SOURCE_DIR}/analysis/plot_curves.py
-          --set sweep.ebno_db=2:1:4 --set sweep.stop_frame_errors=30
-          --set sweep.max_bits=2000000
+          --set "sweep.ebno_db=2 to 4 by 1" --set sweep.stop_frame_errors=30
+          --set sweep.stop_bits=2000000
   WORKING_DIRECTORY ${_capgap_py_work})
 set_tests_properties(python_finite_length_run
   PROPERTIES LABELS python ENVIRONMENT "${_capgap_py_env}" TIMEOUT 600)

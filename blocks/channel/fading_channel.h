@@ -11,10 +11,25 @@
 // diversity combining techniques", Proc. IRE 47, 1959; common practice). One
 // branch is z = r / h with noise N0 / |h|^2.
 //
-// Symbol rate only (samples_per_symbol 1): a pulse-shaped chain is refused
-// with fading by the channel keys. Draws, per block of n symbols: the gains
-// (FadingProcess, from `process`), then n L complex noise samples from
-// `noise`, branch-major (branch l takes normals of samples l n .. l n + n - 1).
+// Unshaped chains (samples_per_symbol 1): Apply draws, per block of n
+// symbols, the gains (FadingProcess, from `process`), then n L complex noise
+// samples from `noise`, branch-major (branch l takes normals of samples
+// l n .. l n + n - 1).
+//
+// Pulse-shaped chains (samples_per_symbol S > 1, one branch only): flat
+// fading at the symbol rate. FadeSymbols multiplies each transmitted symbol
+// by its gain before the transmit filter, i.e. the gain is constant over the
+// symbol's pulse (the fade is slow against one pulse: f_D T_s << 1, and
+// frequency flat: delay spread << T_s); Apply adds complex noise of N0 per
+// sample; after the matched filter (an RRC pair is Nyquist) the sample of
+// symbol k is h_k x_k + n_k, n_k ~ CN(0, N0), and EqualiseSymbols hands the
+// demapper z_k = h_k* y_k / |h_k|^2 with N0 / |h_k|^2, as above (perfect
+// channel state). Uncoded BER therefore equals the symbol-rate fading theory
+// (tests/system/shaped_fading_ber_test.cc). The process runs over every
+// transmitted symbol in order, the chain's guard symbols included (they
+// are transmitted too), so block boundaries with shaping count those.
+// Several branches with shaping are refused (each branch would need its own
+// matched filter).
 // Immutable; one instance per sweep point shared by all threads; the unit's
 // process state travels in ChannelStateStorage::process.
 #ifndef CAPGAP_BLOCKS_CHANNEL_FADING_CHANNEL_H_
@@ -38,11 +53,25 @@ class FadingChannel final : public Channel {
   const NoiseLevel& level() const override { return level_; }
   const FadingProcess& process() const { return process_; }
 
-  // REQUIRES: samples_per_symbol == 1, storage sized to samples.size(),
+  // samples_per_symbol == 1: REQUIRES storage sized to samples.size(),
   // storage.process != nullptr (Reset() at the start of every unit).
+  // samples_per_symbol > 1: noise only (the gains went on in FadeSymbols).
   void Apply(std::span<cf32> samples, int samples_per_symbol, RngStream& noise,
              RngStream& process, ChannelStateStorage storage,
              ChannelStateView& state) const override;
+  // Shaped chains (one branch): see the file comment.
+  bool fades_symbols() const override { return true; }
+  void FadeSymbols(std::span<cf32> symbols, RngStream& process,
+                   ChannelStateStorage storage) const override;
+  void EqualiseSymbols(std::span<cf32> symbols, std::span<const cf32> gains,
+                       std::span<float> n0_out, ChannelStateView& state) const override;
+  // Fused uncoded 16-QAM count (channel.h): one branch, fast Rayleigh or
+  // Rician fading, a vector kernel target (FadingQam16Errors of
+  // fading_kernels.h); the same draws and counts as Apply + demapper.
+  bool counts_qam16() const override;
+  std::uint64_t CountQam16Errors(const Bit* bits, std::size_t n_symbols, const Qam16Decider& d,
+                                 RngStream& noise, RngStream& process,
+                                 ChannelStateStorage storage) const override;
   // Not additive: the chain never takes the real-axis path with it.
   void ApplyReal(std::span<float> samples, RngStream& noise) const override;
 

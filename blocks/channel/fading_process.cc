@@ -7,6 +7,8 @@
 #include <numbers>
 #include <string>
 
+#include <boost/math/special_functions/gamma.hpp>
+
 #include "blocks/kernels/awgn_kernels.h"
 
 namespace capgap {
@@ -51,6 +53,24 @@ float DrawNakagamiPower(double m, RngStream& stream, double boost_uniform) {
   }
 }
 
+// Boost.Math without exceptions (nothing throws across the block API); the
+// arguments below stay inside the functions' domains.
+using NoThrow = boost::math::policies::policy<
+    boost::math::policies::domain_error<boost::math::policies::ignore_error>,
+    boost::math::policies::overflow_error<boost::math::policies::ignore_error>,
+    boost::math::policies::evaluation_error<boost::math::policies::ignore_error>>;
+
+// Memoryless map of a Rayleigh power p ~ Exp(1) to a Nakagami-m power
+// Gamma(m, 1/m) with the same CDF value: F_exp(p) = 1 - e^-p, then the
+// inverse regularised incomplete gamma; the lower function below the median
+// of Exp(1) and the upper one above, so neither argument loses digits near 1.
+double ExpPowerToNakagami(double p, double m) {
+  if (p <= std::numbers::ln2) {
+    return boost::math::gamma_p_inv(m, -std::expm1(-p), NoThrow()) / m;
+  }
+  return boost::math::gamma_q_inv(m, std::exp(-p), NoThrow()) / m;
+}
+
 }  // namespace
 
 FadingProcess::FadingProcess(const ChannelSpec& spec) : spec_(spec) {
@@ -78,11 +98,6 @@ Result<FadingProcess> FadingProcess::Create(const ChannelSpec& spec) {
       return Status::Error("nakagami_m = " + std::to_string(spec.nakagami_m) +
                            ": must be in [0.5, 10000]");
     }
-    if (spec.time == FadingTime::kDoppler) {
-      return Status::Error(
-          "channel = nakagami with fading = doppler: no sum-of-sinusoids form; use rayleigh or "
-          "rician, or fading = fast or block");
-    }
   }
   if (spec.law == FadingLaw::kRician && !(spec.rician_k_db < 100.0)) {
     return Status::Error("rician_k_db = " + std::to_string(spec.rician_k_db) +
@@ -101,8 +116,8 @@ void FadingProcess::DrawIndependent(std::span<cf32> gains, RngStream& stream) co
       // std::complex<float> is array-compatible with float[2].
       FillStandardNormal(std::span<float>(reinterpret_cast<float*>(gains.data()), 2 * gains.size()),
                          stream);
-      const auto b = static_cast<float>(scatter_ * std::sqrt(0.5));
-      const auto a = static_cast<float>(los_);
+      float a = 0, b = 0;
+      GaussianGainAffine(a, b);
       for (cf32& h : gains) h = cf32(a + b * h.real(), b * h.imag());
       return;
     }
@@ -168,8 +183,20 @@ void FadingProcess::DopplerGains(std::size_t n, std::span<cf32> gains,
         f[2] = re;
         f[3] = im;
       }
-      gains[l * n + i] = cf32(static_cast<float>(los_ + scale * sum[0]),
-                              static_cast<float>(scale * sum[1]));
+      double re = los_ + scale * sum[0], im = scale * sum[1];
+      if (spec_.law == FadingLaw::kNakagami) {
+        // Same phase, power mapped from Exp(1) to Gamma(m, 1/m).
+        const double p = re * re + im * im;
+        const double q = ExpPowerToNakagami(p, spec_.nakagami_m);
+        if (p > 0.0) {
+          const double a = std::sqrt(q / p);
+          re *= a;
+          im *= a;
+        } else {
+          re = std::sqrt(q);
+        }
+      }
+      gains[l * n + i] = cf32(static_cast<float>(re), static_cast<float>(im));
     }
   }
 }

@@ -34,8 +34,21 @@
 //    per symbol does not grow as doppler falls (a Doppler filter needs about
 //    1/doppler taps or a long IIR start-up), and a unit starts in the
 //    stationary state. Rician adds its fixed line-of-sight term to the
-//    scattered process; Nakagami has no sum-of-sinusoids form and is refused
-//    with doppler (sim/families/channel_keys.cc).
+//    scattered process. Nakagami-m: the Rayleigh process above mapped
+//    memorylessly, symbol by symbol: its power p (Exp(1) distributed) goes
+//    to q = F_m^-1(1 - e^-p), F_m the CDF of Gamma(m, 1/m) (inverse
+//    regularised incomplete gamma of Boost.Math), the phase is kept:
+//    h = sqrt(q / p) h_Rayleigh. The marginal is Nakagami-m exactly as far as
+//    p is Exp(1) (inverse-CDF transform; common practice). Known limits: the
+//    sum of 16 sinusoids per quadrature is only nearly Gaussian (kurtosis
+//    3 - 3/32 at a fixed time over the random phases), so E p^2 = 1.953
+//    instead of 2 and the estimated m comes out a few per cent high (1.05
+//    for m = 1); the autocorrelation is no longer J0 (the power correlation
+//    is a monotone function of J0^2, 1 at lag 0 and exactly 0 where J0 = 0,
+//    since the underlying Gaussian samples are then independent); fades
+//    happen at the Rayleigh process's instants (the map is monotone), so
+//    level crossings are those of the Rayleigh process at the mapped
+//    thresholds. Costs one inverse incomplete gamma per symbol and branch.
 //
 // Randomness: every gain comes from the unit's kFading stream. Rayleigh and
 // Rician gains (fast: per symbol; block: per block) take one Philox block
@@ -48,6 +61,7 @@
 #ifndef CAPGAP_BLOCKS_CHANNEL_FADING_PROCESS_H_
 #define CAPGAP_BLOCKS_CHANNEL_FADING_PROCESS_H_
 
+#include <cmath>
 #include <cstddef>
 #include <span>
 
@@ -68,11 +82,19 @@ class FadingProcess {
   static constexpr std::uint64_t kResyncSymbols = 1024;
 
   // Checks branches in [1, 64], coherence_symbols >= 1, doppler in (0, 0.5],
-  // nakagami_m in [0.5, 1e4], no Nakagami with doppler.
+  // nakagami_m in [0.5, 1e4].
   static Result<FadingProcess> Create(const ChannelSpec& spec);
 
   const ChannelSpec& spec() const { return spec_; }
   int branches() const { return spec_.branches; }
+
+  // Rayleigh and Rician independent gains are h = a + b (g0 + j g1) from a
+  // standard normal pair (g0 with the real part, a on the real part only):
+  // the float constants the fast draw uses.
+  void GaussianGainAffine(float& a, float& b) const {
+    b = static_cast<float>(scatter_ * std::sqrt(0.5));
+    a = static_cast<float>(los_);
+  }
 
   // Gains of the unit's next n symbols, branch-major: gains[l n + i] for
   // branch l, symbol i. Continues `state` (Reset() at the start of a unit).

@@ -1,6 +1,6 @@
 // Status and Result<T>: errors as values at every boundary (config, CLI, HDF5,
 // block Create()). A message names the file/key, the offending value and the
-// rule, e.g. "configs/qpsk.ini: sweep.target_errors = -3: must be > 0".
+// rule, e.g. "configs/qpsk.ini: sweep.stop_bit_errors = -3: must be > 0".
 #ifndef CAPGAP_BLOCKS_CORE_STATUS_H_
 #define CAPGAP_BLOCKS_CORE_STATUS_H_
 

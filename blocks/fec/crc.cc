@@ -7,7 +7,7 @@
 namespace capgap {
 
 Result<Crc> Crc::Create(int bits, std::uint32_t polynomial) {
-  if (bits < 1 || bits > kMaxBits) {
+  if (bits < 1 || bits > kStopBits) {
     return Status::Error("CRC width " + std::to_string(bits) + ": must be in [1, 24]");
   }
   if (polynomial >> bits != 0) {

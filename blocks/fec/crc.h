@@ -22,7 +22,7 @@ namespace capgap {
 
 class Crc {
  public:
-  static constexpr int kMaxBits = 24;
+  static constexpr int kStopBits = 24;
   // 1 <= bits <= 24; polynomial < 2^bits with p_0 = 1 (odd: a generator
   // divisible by D would waste a parity bit).
   static Result<Crc> Create(int bits, std::uint32_t polynomial);

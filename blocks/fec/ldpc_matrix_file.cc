@@ -15,7 +15,7 @@ namespace capgap {
 namespace {
 
 // Headers with at most this many columns keep every message in file order
-// even when the check lines list fewer entries (see ReadLdpcMatrix).
+// even when the row lines list fewer entries (see ReadLdpcMatrix).
 constexpr int kColumnsCheckedLate = 1 << 16;
 
 // Word separators of the LDPC text formats: blanks and a stray CR.
@@ -98,24 +98,34 @@ Status WriteLdpcTextFileAtomically(const std::string& path, std::string_view tex
 Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_name) {
   const std::vector<LdpcTextLine> lines = SplitLdpcTextLines(text);
   const std::string src(source_name);
-  if (lines.empty()) return Status::Error(src + ": no 'ldpc-matrix' header line");
+  if (lines.empty()) return Status::Error(src + ": no 'parity-check' header line");
   const LdpcTextLine& head = lines[0];
   const std::string header_rule =
-      "expected 'ldpc-matrix n <N> m <M>' or "
-      "'ldpc-matrix n <N> m <M> lifting <Z>'";
+      "expected 'parity-check columns <N> rows <M>' or "
+      "'parity-check columns <N> rows <M> lifting <Z>'";
   const auto& hw = head.words;
-  if (!((hw.size() == 5 || hw.size() == 7) && hw[0] == "ldpc-matrix" && hw[1] == "n" &&
-        hw[3] == "m" && (hw.size() == 5 || hw[5] == "lifting"))) {
+  if (hw[0] == "ldpc-matrix") {
+    // The format of earlier versions ("<degree>: <columns>" rows) is refused
+    // with what to write instead; no silent second reader.
+    return Status::Error(Where(src, head.number) +
+                         "the 'ldpc-matrix' format (rows written '<degree>: <columns>') is no "
+                         "longer read; write the header 'parity-check columns <N> rows <M> "
+                         "[lifting <Z>]' and each row as its column indices only (the degree is "
+                         "their count, '-' for an empty row); README, \"Sparse parity-check "
+                         "files\"");
+  }
+  if (!((hw.size() == 5 || hw.size() == 7) && hw[0] == "parity-check" && hw[1] == "columns" &&
+        hw[3] == "rows" && (hw.size() == 5 || hw[5] == "lifting"))) {
     return Status::Error(Where(src, head.number) + "header " + Quoted(head.content) + ": " +
                          header_rule);
   }
   int n = 0, m = 0, lifting = 0;
   if (!ParseLdpcInt(hw[2], &n) || n < 1) {
-    return Status::Error(Where(src, head.number) + "n " + Quoted(hw[2]) +
+    return Status::Error(Where(src, head.number) + "columns " + Quoted(hw[2]) +
                          ": must be an integer >= 1");
   }
   if (!ParseLdpcInt(hw[4], &m) || m < 1) {
-    return Status::Error(Where(src, head.number) + "m " + Quoted(hw[4]) +
+    return Status::Error(Where(src, head.number) + "rows " + Quoted(hw[4]) +
                          ": must be an integer >= 1");
   }
   if (hw.size() == 7) {
@@ -125,8 +135,8 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
     }
     if (n % lifting != 0 || m % lifting != 0) {
       return Status::Error(Where(src, head.number) + "lifting " + Quoted(hw[6]) +
-                           ": must divide n = " + std::to_string(n) +
-                           " and m = " + std::to_string(m));
+                           ": must divide columns = " + std::to_string(n) +
+                           " and rows = " + std::to_string(m));
     }
   }
   std::size_t next = 1;
@@ -143,10 +153,10 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
   // refused up front once n is large enough for the marks to matter.
   const std::size_t remaining = lines.size() - next;
   std::size_t entries = 0;
-  for (std::size_t i = next; i < lines.size(); ++i) entries += lines[i].words.size() - 1;
+  for (std::size_t i = next; i < lines.size(); ++i) entries += lines[i].words.size();
   if (static_cast<std::size_t>(n) > entries && n > kColumnsCheckedLate) {
-    return Status::Error(Where(src, head.number) + "n = " + std::to_string(n) +
-                         " columns but the check lines list " + std::to_string(entries) +
+    return Status::Error(Where(src, head.number) + "columns " + std::to_string(n) +
+                         " but the row lines list " + std::to_string(entries) +
                          " entries; every column must be in a check");
   }
   std::vector<std::vector<int>> rows;
@@ -164,21 +174,17 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
     }
     const LdpcTextLine& line = lines[next];
     row_line.push_back(line.number);
-    const std::string_view first = line.words[0];
-    int degree = -1;
-    if (first.size() < 2 || first.back() != ':' ||
-        !ParseLdpcInt(first.substr(0, first.size() - 1), &degree) || degree < 0) {
-      return Status::Error(Where(src, line.number) + "check " + std::to_string(r) + ": " +
-                           Quoted(first) + ": expected the row degree '<d>:' with d >= 0");
-    }
-    if (line.words.size() != static_cast<std::size_t>(degree) + 1) {
-      return Status::Error(Where(src, line.number) + "check " + std::to_string(r) + " declares " +
-                           std::to_string(degree) + " columns but lists " +
-                           std::to_string(line.words.size() - 1));
-    }
+    // A row is its column indices; '-' alone is an empty row (degree 0).
+    const bool empty_row = line.words.size() == 1 && line.words[0] == "-";
     std::vector<int>& row = rows.emplace_back();
-    row.reserve(static_cast<std::size_t>(degree));
-    for (std::size_t i = 1; i < line.words.size(); ++i) {
+    row.reserve(empty_row ? 0 : line.words.size());
+    for (std::size_t i = 0; i < line.words.size() && !empty_row; ++i) {
+      if (line.words[i].find(':') != std::string_view::npos) {
+        return Status::Error(Where(src, line.number) + "check " + std::to_string(r) + ": " +
+                             Quoted(line.words[i]) +
+                             ": a row lists column indices only (the degree is their count; "
+                             "no '<d>:' prefix)");
+      }
       int c = 0;
       if (!ParseLdpcInt(line.words[i], &c)) {
         return Status::Error(Where(src, line.number) + "column " + Quoted(line.words[i]) +
@@ -225,9 +231,11 @@ Result<LdpcCode> ReadLdpcMatrix(std::string_view text, std::string_view source_n
 std::string WriteLdpcMatrix(const LdpcCode& code) {
   std::string out;
   out += "# capgap sparse parity-check matrix (format: blocks/fec/ldpc_matrix_file.h).\n";
-  out += "# Header 'ldpc-matrix n <N> m <M> [lifting <Z>]', optional 'description <text>',\n";
-  out += "# then one line per check r = 0..M-1: '<degree>: <0-based columns>'.\n";
-  out += "ldpc-matrix n " + std::to_string(code.length()) + " m " + std::to_string(code.checks());
+  out += "# Header 'parity-check columns <N> rows <M> [lifting <Z>]', optional\n";
+  out += "# 'description <text>', then one line per row r = 0..M-1: its 0-based column\n";
+  out += "# indices ('-' for an empty row).\n";
+  out += "parity-check columns " + std::to_string(code.length()) + " rows " +
+         std::to_string(code.checks());
   if (code.lifting() > 0) out += " lifting " + std::to_string(code.lifting());
   out += '\n';
   std::string d = code.description();
@@ -245,10 +253,9 @@ std::string WriteLdpcMatrix(const LdpcCode& code) {
   for (int r = 0; r < code.checks(); ++r) {
     const int b = row_start[static_cast<std::size_t>(r)];
     const int e = row_start[static_cast<std::size_t>(r) + 1];
-    out += std::to_string(e - b);
-    out += ':';
+    if (b == e) out += '-';
     for (int k = b; k < e; ++k) {
-      out += ' ';
+      if (k > b) out += ' ';
       out += std::to_string(var[static_cast<std::size_t>(k)]);
     }
     out += '\n';

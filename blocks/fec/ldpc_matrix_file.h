@@ -8,8 +8,8 @@
 //     comment-only lines are ignored; words are separated by spaces or tabs
 //     (a trailing '\r' is ignored too).
 //   * The first non-comment line is the header
-//         ldpc-matrix n <N> m <M>
-//     or  ldpc-matrix n <N> m <M> lifting <Z>
+//         parity-check columns <N> rows <M>
+//     or  parity-check columns <N> rows <M> lifting <Z>
 //     with N >= 1 variables (columns), M >= 1 checks (rows) and, optionally,
 //     the lifting size Z >= 1 of a code lifted from a base matrix (then Z
 //     divides N and M, and no two checks of one block row r*Z .. r*Z+Z-1 may
@@ -17,11 +17,12 @@
 //   * Optionally next, a line "description <text>": the rest of the line,
 //     trimmed, becomes description(). Without it the description is
 //     "read from <source_name>".
-//   * Then exactly M check lines, checks 0 .. M-1 in order. Check line r is
-//         <d>: <c_1> <c_2> ... <c_d>
-//     the row degree d >= 0 written with a colon directly after it, then the
-//     d distinct 0-based column indices of the ones of row r, each in
-//     [0, N) (any order; the writer writes them increasing).
+//   * Then exactly M row lines, checks 0 .. M-1 in order. Row line r lists
+//     the distinct 0-based column indices of the ones of row r, each in
+//     [0, N), any order (the writer writes them increasing); the row degree
+//     is their count. A row without ones is written '-'.
+//   * Files of the earlier 'ldpc-matrix n <N> m <M>' format, whose rows were
+//     '<degree>: <columns>', are refused with a message naming this format.
 //   * Every column must appear in at least one check; nothing else may
 //     follow the M check lines.
 // Errors name the source, the line and the offending value, e.g.

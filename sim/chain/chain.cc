@@ -221,18 +221,32 @@ void Chain::ApplyChannel(const Channel& channel, std::span<cf32> samples, Stream
 // whose outputs are discarded, so no filter start-up transient is ever
 // counted. Guard symbols come from their own substream, so the information
 // bits and their noise draw are the same whatever the guard length.
+//
+// A fading channel fades shaped chains at the symbol rate (channel.h): the
+// block's symbols take their gains before the transmit filter (frame, then
+// guard symbols, in transmission order), and the frame's matched-filter
+// outputs are equalised with the gains of the block's first n symbols.
 void Chain::ShapedFrame(const Channel& channel, Streams& s, ChainWorkspace& ws) const {
   const std::size_t n = ws.symbols.size();
   const auto guard = static_cast<std::size_t>(guard_symbols_);
   std::copy(ws.symbols.begin(), ws.symbols.end(), ws.block_symbols.begin());
   GenerateRandomBits(ws.guard_bits, s.guard);
   mapper_->Map(ws.guard_bits, std::span<cf32>(ws.block_symbols).subspan(n, guard));
+  const bool fade = channel.fades_symbols();
+  if (fade) {
+    channel.FadeSymbols(ws.block_symbols, s.process,
+                        ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
+  }
   tx_->Shape(ws.block_symbols, ws.samples, ws.tx);
   if (carrier_) carrier_->Apply(ws.samples, ws.carrier);
   ApplyChannel(channel, ws.samples, s, ws);
   rx_->Receive(ws.samples, ws.received, ws.rx);
   std::copy(ws.received.begin() + static_cast<std::ptrdiff_t>(guard), ws.received.end(),
             ws.symbols.begin());
+  if (fade) {
+    channel.EqualiseSymbols(ws.symbols, std::span<const cf32>(ws.state_gain.data(), n),
+                            std::span<float>(ws.state_n0.data(), n), ws.state);
+  }
 }
 
 // Shaped chains: one guard block (D symbols) whose outputs are discarded, so
@@ -249,6 +263,10 @@ void Chain::PrimeUnit(const Channel& channel, Streams& s, ChainWorkspace& ws) co
     const std::span<cf32> block(ws.block_symbols.data(), guard);
     GenerateRandomBits(ws.guard_bits, s.guard);
     mapper_->Map(ws.guard_bits, block);
+    if (channel.fades_symbols()) {
+      channel.FadeSymbols(block, s.process,
+                          ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
+    }
     const std::span<cf32> samples(ws.samples.data(),
                                   guard * static_cast<std::size_t>(scheme_.samples_per_symbol));
     tx_->Shape(block, samples, ws.tx);
@@ -373,10 +391,15 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
   // the demapper's decisions and the count in registers; the same counts and
   // stream use as the composed path.
   const bool fused_qam16 = qam16_fused_ && uncoded && !interleaver_ && channel.additive_only();
+  // The same over a fading channel that offers it (one-branch fast fading,
+  // Channel::counts_qam16): gains, noise, equaliser, decisions and count in
+  // one kernel, the decider at N0 = 1 (the demapper's per-symbol path).
+  const bool faded_qam16 = qam16_fused_ && uncoded && !interleaver_ && !shaped() &&
+                           !channel.additive_only() && channel.counts_qam16();
   Qam16Decider qam16{};
-  if (fused_qam16) {
+  if (fused_qam16 || faded_qam16) {
     qam16 = MakeQam16Decider(mapper_->pam_levels().data(), demapper_->kernel_args().level_scale,
-                             channel.n0(), !hard);
+                             faded_qam16 ? 1.0f : channel.n0(), !hard);
   }
   PrimeUnit(channel, s, ws);
   UnitCounts counts;
@@ -403,10 +426,14 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         continue;
       }
       FillSource(unit_index, f0 + b, s.bits, bits);
-      if (fused_qam16) {
+      if (fused_qam16 || faded_qam16) {
         const std::uint64_t errors =
-            CountQam16Errors(bits.data(), k / 4, qam16,
-                             static_cast<float>(channel.level().sigma_per_dim), s.noise);
+            fused_qam16
+                ? CountQam16Errors(bits.data(), k / 4, qam16,
+                                   static_cast<float>(channel.level().sigma_per_dim), s.noise)
+                : channel.CountQam16Errors(
+                      bits.data(), k / 4, qam16, s.noise, s.process,
+                      ChannelStateStorage{ws.state_gain, ws.state_n0, &ws.process});
         counts.bits += k;
         counts.bit_errors += errors;
         counts.frames += 1;
@@ -443,7 +470,7 @@ std::optional<UnitCounts> Chain::RunUnitUnlessStopped(const Channel& channel,
         ChannelLlrs(tx_bits, channel, s, ws, std::span<float>(ws.batch_llrs.data() + b * n, n));
       }
     }
-    if (fused || fused_qam16) continue;
+    if (fused || fused_qam16 || faded_qam16) continue;
     const std::span<FrameDecodeResult> results(ws.batch_results.data(), batch);
     if (direct_hard) {
       std::fill(results.begin(), results.end(), FrameDecodeResult{});

@@ -52,9 +52,9 @@ const char kMainHelp[] =
     "  capgap run CONFIG [-o FILE.h5] [--resume] [--set KEY=VALUE]... [--threads N] [--seed S]\n"
     "             [--quiet]\n"
     "  mpirun -np N capgap run CONFIG ...     (built with -DCAPGAP_MPI=ON)\n"
-    "  capgap theory --modulation NAME --ebno-db START:STEP:STOP [--rate R] [--csv]\n"
+    "  capgap theory --modulation NAME --ebno-db FROM to TO by STEP [--rate R] [--csv]\n"
     "  capgap theory --bandwidth HZ --snr-db X\n"
-    "  capgap summary FILE.h5\n"
+    "  capgap summary FILE.h5 [FILE2.h5 ...]   (several: side by side)\n"
     "  capgap COMMAND --help\n";
 
 std::string JoinArgs(int argc, char** argv) {
@@ -81,11 +81,12 @@ int CmdRun(int argc, char** argv, const std::string& command_line) {
       "results/<config name>.h5, creating results/); its checkpoint is FILE.ckpt")(
       "resume",
       "continue the run recorded in FILE.ckpt (finished points are kept; with larger "
-      "target_errors/stop_frame_errors/max_bits or more Eb/N0 points it extends them); starts "
+      "stop_bit_errors/stop_frame_errors/stop_bits or more Eb/N0 points it extends them); starts "
       "fresh if there is "
       "none")("set", po::value(&run.overrides)->composing(),
-              "override a config key, e.g. --set sweep.target_errors=500 or "
-              "--set scheme.qpsk.frame_bits=4096 (repeatable)")(
+              "override a config key, e.g. --set sweep.stop_bit_errors=500 or "
+              "--set scheme.qpsk.frame_bits=4096 or --set 'sweep.ebno_db=0 to 12 by 0.5' "
+              "(repeatable)")(
       "threads", po::value(&threads),
       "worker threads in [0, 4096] (0: all cores; overrides "
       "sweep.threads)")("seed", po::value(&seed),
@@ -145,14 +146,15 @@ int CmdTheory(int argc, char** argv) {
   po::options_description opts(
       "capgap theory (--modulation NAME --ebno-db RANGE | --bandwidth HZ --snr-db X)");
   TheoryOptions theory;
-  std::string modulation, range;
+  std::string modulation;
+  std::vector<std::string> range_words;
   double rate = 1, bandwidth = 0, snr_db = 0;
   opts.add_options()("help,h", "show this help")(
       "modulation", po::value(&modulation),
       "bpsk, qpsk, 8psk, 16qam, 64qam, 256qam, <M>psk, <M>qam")(
-      "ebno-db", po::value(&range),
-      "Eb/N0 points in [-100, 100] dB: START:STEP:STOP (inclusive) "
-      "or a comma list")("rate", po::value(&rate),
+      "ebno-db", po::value(&range_words)->multitoken(),
+      "Eb/N0 points in [-100, 100] dB: FROM to TO by STEP (inclusive; quoted or as "
+      "separate words) or a comma list")("rate", po::value(&rate),
                          "code rate R in [1e-6, 1] for the limits (info bits per symbol R m)")(
       "csv", "machine-readable output: '# key = value' lines, then CSV")(
       "bandwidth", po::value(&bandwidth),
@@ -172,7 +174,13 @@ int CmdTheory(int argc, char** argv) {
     return 0;
   }
   if (vm.count("modulation")) theory.modulation = modulation;
-  if (vm.count("ebno-db")) theory.ebno_db = range;
+  if (vm.count("ebno-db")) {
+    // The range's words may arrive as one argument ("0 to 12 by 0.5") or as
+    // several (0 to 12 by 0.5); both give the same text.
+    std::string range;
+    for (const std::string& w : range_words) range += (range.empty() ? "" : " ") + w;
+    theory.ebno_db = range;
+  }
   if (vm.count("rate")) theory.rate = rate;
   theory.csv = vm.count("csv") > 0;
   if (vm.count("bandwidth")) theory.bandwidth_hz = bandwidth;
@@ -182,15 +190,15 @@ int CmdTheory(int argc, char** argv) {
 
 // ----------------------------------------------------------------- summary
 int CmdSummary(int argc, char** argv) {
-  po::options_description opts("capgap summary FILE.h5");
+  po::options_description opts("capgap summary FILE.h5 [FILE2.h5 ...]");
   opts.add_options()("help,h", "show this help");
   po::options_description hidden;
-  std::string path;
-  hidden.add_options()("file", po::value(&path));
+  std::vector<std::string> paths;
+  hidden.add_options()("file", po::value(&paths));
   po::options_description all;
   all.add(opts).add(hidden);
   po::positional_options_description pos;
-  pos.add("file", 1);
+  pos.add("file", -1);
   po::variables_map vm;
   try {
     po::store(po::command_line_parser(argc, argv).options(all).positional(pos).run(), vm);
@@ -199,11 +207,18 @@ int CmdSummary(int argc, char** argv) {
     return Fail(std::string("summary: ") + e.what(), kExitUsage);
   }
   if (vm.count("help")) {
-    std::cout << opts << "\nPrints the summary table of every scheme in a curves file.\n";
+    std::cout << opts
+              << "\nPrints the summary table of every scheme in a curves file. With several "
+                 "files, prints\ntheir schemes side by side (Eb/N0 at the target BER and FER and "
+                 "the gap to the Shannon\nlimit, with 95 % intervals) and flags differences "
+                 "whose intervals do not overlap.\n";
     return 0;
   }
-  if (path.empty()) return Fail("summary: missing FILE.h5", kExitUsage);
-  return RunSummary(path, std::cout, std::cerr);
+  if (paths.empty()) return Fail("summary: missing FILE.h5", kExitUsage);
+  for (const std::string& p : paths) {
+    if (p.empty()) return Fail("summary: empty file name", kExitUsage);
+  }
+  return RunSummaryComparison(paths, std::cout, std::cerr);
 }
 
 }  // namespace

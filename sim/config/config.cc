@@ -36,6 +36,30 @@ struct GivenKeys {
   std::map<std::string, std::map<std::string, std::string>> schemes;
 };
 
+// Keys of earlier versions that were renamed: refused with the new name (no
+// silent alias, so that a config means one thing in every version).
+struct RenamedKey {
+  const char* old_name;
+  const char* new_name;
+};
+constexpr RenamedKey kRenamedKeys[] = {
+    {"target_errors", "stop_bit_errors"},
+    {"max_bits", "stop_bits"},
+};
+
+// "FILE: key 'sweep.target_errors' was renamed: write 'sweep.stop_bit_errors'"
+// when `key` is a renamed key, else OK.
+Status RefuseRenamedKey(const std::string& source, const std::string& where,
+                        const std::string& section, const std::string& key) {
+  for (const RenamedKey& r : kRenamedKeys) {
+    if (key == r.old_name) {
+      return Status::Error(source + ": key '" + where + "' was renamed: write '" + section + "." +
+                           r.new_name + "' (same meaning)");
+    }
+  }
+  return Status::Ok();
+}
+
 // " (did you mean 'a', 'b'?)" when declared keys are near `key`, then where
 // the whole list is (it grows with every family; an error line stays short).
 std::string UnknownKeyHint(std::span<const KeyTable> tables, const std::string& key,
@@ -60,6 +84,7 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
   const std::string key = full.substr(dot + 1);
   *key_out = key;
   if (section == "sweep") {
+    if (Status s = RefuseRenamedKey(source, where, section, key); !s.ok()) return s;
     if (!FindKey(SweepKeyTables(), key)) {
       return Status::Error(source + ": unknown key '" + where + "'" +
                            UnknownKeyHint(SweepKeyTables(), key, "[sweep]"));
@@ -74,6 +99,7 @@ Status Classify(const std::string& source, const std::string& full, bool from_ov
                            "' may contain only letters, digits, '_' and '-'");
     }
     if (!FindKey(SchemeKeyTables(), key)) {
+      if (Status s = RefuseRenamedKey(source, where, "sweep", key); !s.ok()) return s;
       return Status::Error(source + ": unknown key '" + where + "'" +
                            UnknownKeyHint(SchemeKeyTables(), key, "[scheme.NAME]"));
     }
@@ -112,9 +138,9 @@ Result<SweepConfig> BuildSweep(const ResolvedKeys& k) {
   auto points = ParseDbPoints(k.text("ebno_db"));
   if (!points.ok()) return k.Fail("ebno_db", points.status().message());
   c.ebno_db = points.value();
-  c.target_errors = k.integer("target_errors");
+  c.stop_bit_errors = k.integer("stop_bit_errors");
   if (k.has("stop_frame_errors")) c.stop_frame_errors = k.integer("stop_frame_errors");
-  c.max_bits = k.integer("max_bits");
+  c.stop_bits = k.integer("stop_bits");
   c.ber_floor = k.number("ber_floor");
   c.target_ber = k.number("target_ber");
   c.target_fer = k.number("target_fer");
@@ -137,10 +163,10 @@ Result<SchemeConfig> BuildScheme(const std::string& name, const ResolvedKeys& k,
   }
   if (k.has("stop_frame_errors")) s.stop_frame_errors = k.integer("stop_frame_errors");
   if (k.has("target_fer")) s.target_fer = k.number("target_fer");
-  if (sweep.target_errors == 0 && sweep.stop_frame_errors == 0 && s.stop_frame_errors == 0) {
-    return Status::Error(source + ": sweep.target_errors = '0' and no stop_frame_errors for scheme " +
+  if (sweep.stop_bit_errors == 0 && sweep.stop_frame_errors == 0 && s.stop_frame_errors == 0) {
+    return Status::Error(source + ": sweep.stop_bit_errors = '0' and no stop_frame_errors for scheme " +
                          name +
-                         ": a point needs an error target (set sweep.target_errors >= 1 or "
+                         ": a point needs an error target (set sweep.stop_bit_errors >= 1 or "
                          "stop_frame_errors in [sweep] or [scheme." + name + "])");
   }
   auto modulation = ParseConstellation(k.text("modulation"));
@@ -283,7 +309,7 @@ Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& sou
     const auto eq = ov.find('=');
     if (eq == std::string::npos || eq == 0) {
       return Status::Error("--set " + QuoteValue(ov) +
-                           ": expected KEY=VALUE, e.g. sweep.target_errors=500");
+                           ": expected KEY=VALUE, e.g. sweep.stop_bit_errors=500");
     }
     std::map<std::string, std::string>* target = nullptr;
     std::string key;

@@ -39,12 +39,12 @@ inline constexpr std::string_view kSourceKindWords[] = {"random", "prbs9", "prbs
 struct SweepConfig {
   std::vector<double> ebno_db;          // points in simulation order
   // Stopping rule of a point: it stops at the first unit (in index order)
-  // after which its counted prefix holds target_errors bit errors, or
-  // stop_frame_errors frame errors, or max_bits information bits, whichever
+  // after which its counted prefix holds stop_bit_errors bit errors, or
+  // stop_frame_errors frame errors, or stop_bits information bits, whichever
   // comes first; 0 disables one error target (at least one is set).
-  std::uint64_t target_errors = 100;    // bit errors that end a point (0: none)
+  std::uint64_t stop_bit_errors = 116;  // bit errors that end a point (0: none)
   std::uint64_t stop_frame_errors = 0;  // frame errors that end a point (0: none)
-  std::uint64_t max_bits = 100000000;   // information bits that end a point
+  std::uint64_t stop_bits = 30000000;   // information bits that end a point
   double ber_floor = 1e-7;              // a scheme's sweep ends after a point below it
   double target_ber = 1e-5;             // BER of the summary (Eb/N0 needed, gaps)
   double target_fer = 1e-4;             // FER of the summary and finite-length limits
@@ -149,7 +149,7 @@ struct RunConfig {
 };
 
 // Parses and validates an INI file; `overrides` are "KEY=VALUE" strings
-// (e.g. "sweep.target_errors=500", "scheme.qpsk.frame_bits=4096") applied
+// (e.g. "sweep.stop_bit_errors=500", "scheme.qpsk.frame_bits=4096") applied
 // after the file, before validation.
 Result<RunConfig> LoadRunConfig(const std::string& path,
                                 const std::vector<std::string>& overrides);
@@ -157,8 +157,9 @@ Result<RunConfig> LoadRunConfig(const std::string& path,
 Result<RunConfig> ParseRunConfig(const std::string& text, const std::string& source_name,
                                  const std::vector<std::string>& overrides);
 
-// Range syntax shared by config and CLI: "START:STEP:STOP" (inclusive, STEP > 0,
-// STOP >= START) or a comma list "a,b,c". `what` names the key in messages.
+// Range syntax shared by config and CLI: "FROM to TO by STEP" (inclusive,
+// STEP > 0, TO >= FROM; the old "START:STEP:STOP" form is refused showing
+// the new one) or a comma list "a,b,c". `what` names the key in messages.
 Result<std::vector<double>> ParseDbList(const std::string& text, const std::string& what);
 
 // The ParseSourceKind / ToString pair; the message lists the valid words

@@ -38,18 +38,22 @@ Status CheckDemapper(const std::string& value) {
 // ---------------------------------------------------------------- [sweep]
 constexpr KeySpec kSweepKeys[] = {
     {"ebno_db", nullptr,
-     Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
+     Custom("FROM to TO by STEP (inclusive) or a comma list, in dB", CheckEbnoList),
      "Eb/N0 points (per information bit), increasing, within [-20, 60] dB", Always(),
      OnResume::kAppendPoints},
-    {"target_errors", "100", IntegerAtLeast(0, "0: no bit-error target"),
-     "bit errors that end a point; with stop_frame_errors a point stops at the first unit where "
-     "either target is reached",
+    {"stop_bit_errors", "116", IntegerAtLeast(0, "0: no bit-error target"),
+     "bit errors that end a point (default: the fewest errors whose 95 % interval lies within "
+     "+-20 % of the BER); with stop_frame_errors a point stops at the first unit where either "
+     "target is reached",
      Always(), OnResume::kErrorTarget},
     {"stop_frame_errors", "", IntegerAtLeast(1),
      "frame errors that end a point (absent: no frame-error target; at least one of "
-     "target_errors, stop_frame_errors)",
+     "stop_bit_errors, stop_frame_errors)",
      Always(), OnResume::kErrorTarget},
-    {"max_bits", "100000000", IntegerAtLeast(1), "information bits that end a point", Always(),
+    {"stop_bits", "30000000", IntegerAtLeast(1),
+     "information bits that end a point (default: no error in that many bits puts the 95 % "
+     "upper bound below the default ber_floor 1e-7)",
+     Always(),
      OnResume::kMayGrow},
     {"ber_floor", "1e-7", NumberIn(Closed(0), Open(0.5)),
      "a scheme's sweep stops after a point below it", Always(), OnResume::kFree},
@@ -76,7 +80,7 @@ std::span<const KeySpec> SchemeCommonKeys() {
     {"modulation", nullptr,
      Custom(ConstellationSyntax(), CheckModulation),
      "constellation (the registry's; README, \"Constellations\"), unit average energy"},
-    {"ebno_db", "", Custom("START:STEP:STOP (inclusive) or a comma list, in dB", CheckEbnoList),
+    {"ebno_db", "", Custom("FROM to TO by STEP (inclusive) or a comma list, in dB", CheckEbnoList),
      "this scheme's points instead of sweep.ebno_db", Always(), OnResume::kAppendPoints},
     {"stop_frame_errors", "", IntegerAtLeast(1), "this scheme's sweep.stop_frame_errors",
      Always(), OnResume::kErrorTarget},
@@ -145,6 +149,19 @@ std::span<const KeyTable> SchemeKeyTables() {
   return tables;
 }
 
+namespace {
+
+// Whitespace-separated words of `text`.
+std::vector<std::string> SplitWords(const std::string& text) {
+  std::vector<std::string> words;
+  std::stringstream ss(text);
+  std::string w;
+  while (ss >> w) words.push_back(w);
+  return words;
+}
+
+}  // namespace
+
 Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
   const std::string text = Trim(text_in);
   const auto parse_one = [](const std::string& s, double& out) {
@@ -154,22 +171,37 @@ Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
   };
   std::vector<double> out;
   if (text.find(':') != std::string::npos) {
+    // The colon form of earlier versions is refused, with the value
+    // rewritten in the range syntax when it had three parts.
     std::vector<std::string> parts;
     std::stringstream ss(text);
     std::string part;
-    while (std::getline(ss, part, ':')) parts.push_back(part);
-    double start = 0, step = 0, stop = 0;
-    if (parts.size() != 3 || !parse_one(parts[0], start).ok() || !parse_one(parts[1], step).ok() ||
-        !parse_one(parts[2], stop).ok()) {
-      return Status::Error("expected START:STEP:STOP (numbers, in dB) or a comma list");
+    while (std::getline(ss, part, ':')) parts.push_back(Trim(part));
+    std::string hint = "FROM to TO by STEP";
+    if (parts.size() == 3) hint = parts[0] + " to " + parts[2] + " by " + parts[1];
+    return Status::Error("the START:STEP:STOP form is no longer accepted; write a range as "
+                         "FROM to TO by STEP (inclusive), here '" + hint + "', or a comma list");
+  }
+  const std::vector<std::string> words = SplitWords(text);
+  const bool is_range = words.size() > 1 && (words[1] == "to" || text.find(',') == std::string::npos);
+  if (is_range) {
+    double from = 0, to = 0, step = 0;
+    if (words.size() != 5 || words[1] != "to" || words[3] != "by" ||
+        !parse_one(words[0], from).ok() || !parse_one(words[2], to).ok() ||
+        !parse_one(words[4], step).ok()) {
+      return Status::Error("expected FROM to TO by STEP (numbers, in dB, e.g. '0 to 12 by 0.5') "
+                           "or a comma list");
     }
     if (!(step > 0)) return Status::Error("STEP must be > 0");
-    if (stop < start) return Status::Error("STOP must be >= START");
-    const double count = std::floor((stop - start) / step + 1e-9) + 1;
+    if (to < from) return Status::Error("TO must be >= FROM");
+    // TO is included when it lies on the grid up to 1e-9 steps, so that
+    // '0 to 1 by 0.1' ends at 1 although 1 / 0.1 is 9.999999999999998 in
+    // binary floating point.
+    const double count = std::floor((to - from) / step + 1e-9) + 1;
     if (count > 10000) return Status::Error("more than 10000 points");
     for (int i = 0; i < static_cast<int>(count); ++i) {
-      // Round to 1e-9 dB so that 0:0.1:1 gives 0.3, not 0.30000000000000004.
-      out.push_back(std::round((start + i * step) * 1e9) / 1e9);
+      // Round to 1e-9 dB so that 0 to 1 by 0.1 gives 0.3, not 0.30000000000000004.
+      out.push_back(std::round((from + i * step) * 1e9) / 1e9);
     }
   } else {
     std::stringstream ss(text);
@@ -180,7 +212,7 @@ Result<std::vector<double>> ParseDbPoints(const std::string& text_in) {
         // A one-item list is the value itself, which the caller quotes.
         const bool single = text.find(',') == std::string::npos;
         return Status::Error((single ? "" : QuoteValue(Trim(part)) + " is ") + s.message() +
-                             "; expected START:STEP:STOP or a comma list");
+                             "; expected FROM to TO by STEP or a comma list");
       }
       out.push_back(v);
     }

@@ -23,7 +23,7 @@ std::span<const KeyTable> SweepKeyTables();
 // impairments, code choice, then each code family's table (conv, ldpc).
 std::span<const KeyTable> SchemeKeyTables();
 
-// Eb/N0 points from "START:STEP:STOP" (inclusive, STEP > 0, STOP >= START,
+// Eb/N0 points from "FROM to TO by STEP" (inclusive, STEP > 0, TO >= FROM,
 // at most 10000 points) or a comma list, increasing; messages are rules only
 // ("STEP must be > 0"). ParseDbList (config.h) adds the key and value.
 Result<std::vector<double>> ParseDbPoints(const std::string& text);

@@ -24,8 +24,8 @@ namespace capgap {
 
 std::string ToString(StopReason reason) {
   switch (reason) {
-    case StopReason::kTargetErrors: return "target_errors";
-    case StopReason::kMaxBits: return "max_bits";
+    case StopReason::kStopBitErrors: return "stop_bit_errors";
+    case StopReason::kStopBits: return "stop_bits";
     case StopReason::kInterrupted: return "interrupted";
     case StopReason::kStopFrameErrors: return "stop_frame_errors";
   }
@@ -33,12 +33,12 @@ std::string ToString(StopReason reason) {
 }
 
 Result<StopReason> ParseStopReason(const std::string& word) {
-  for (StopReason r : {StopReason::kTargetErrors, StopReason::kStopFrameErrors, StopReason::kMaxBits,
+  for (StopReason r : {StopReason::kStopBitErrors, StopReason::kStopFrameErrors, StopReason::kStopBits,
                        StopReason::kInterrupted}) {
     if (word == ToString(r)) return r;
   }
   return Status::Error("stop reason '" + word +
-                       "': valid: target_errors, stop_frame_errors, max_bits, interrupted");
+                       "': valid: stop_bit_errors, stop_frame_errors, stop_bits, interrupted");
 }
 
 int ResolveThreadCount(int requested) {
@@ -52,16 +52,16 @@ std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_
 }
 
 bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason) {
-  if (sweep.target_errors > 0 && counts.bit_errors >= sweep.target_errors) {
-    *reason = StopReason::kTargetErrors;
+  if (sweep.stop_bit_errors > 0 && counts.bit_errors >= sweep.stop_bit_errors) {
+    *reason = StopReason::kStopBitErrors;
     return true;
   }
   if (sweep.stop_frame_errors > 0 && counts.frame_errors >= sweep.stop_frame_errors) {
     *reason = StopReason::kStopFrameErrors;
     return true;
   }
-  if (counts.bits >= sweep.max_bits) {
-    *reason = StopReason::kMaxBits;
+  if (counts.bits >= sweep.stop_bits) {
+    *reason = StopReason::kStopBits;
     return true;
   }
   return false;
@@ -108,10 +108,10 @@ class PointState final : public PointControl {
       if (target == 0 || have == 0) return std::numeric_limits<double>::infinity();
       return static_cast<double>(target - std::min(target, have)) * units / static_cast<double>(have);
     };
-    need = std::min(units_to(sweep_.target_errors, prefix.bit_errors),
+    need = std::min(units_to(sweep_.stop_bit_errors, prefix.bit_errors),
                     units_to(sweep_.stop_frame_errors, prefix.frame_errors));
     if (prefix.bits > 0) {
-      need = std::min(need, static_cast<double>(sweep_.max_bits - std::min(sweep_.max_bits, prefix.bits)) *
+      need = std::min(need, static_cast<double>(sweep_.stop_bits - std::min(sweep_.stop_bits, prefix.bits)) *
                                 units / static_cast<double>(prefix.bits));
     }
     const double unclaimed = units + need - next_unit.load(std::memory_order_relaxed);
@@ -158,7 +158,7 @@ class PointState final : public PointControl {
   UnitCounts prefix;
   UnitCounts all;  // every unit finished in this call, for the speed figure
   std::uint64_t simulated = 0;
-  StopReason reason = StopReason::kTargetErrors;
+  StopReason reason = StopReason::kStopBitErrors;
 };
 
 }  // namespace
@@ -246,7 +246,7 @@ PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t
       if (progress_due) {
         last_progress = now;
         Progress p{&chain.scheme().name, point_index, sweep.ebno_db.size(), ebno_db, prefix,
-                   sweep.target_errors, sweep.stop_frame_errors, sweep.max_bits, start.seconds + secs,
+                   sweep.stop_bit_errors, sweep.stop_frame_errors, sweep.stop_bits, start.seconds + secs,
                    secs > 0 ? static_cast<double>(all_bits) / secs : 0.0};
         options.on_progress(p);
       }

@@ -5,8 +5,8 @@
 // Stopping rule (thread- and process-count independent): units finish in any
 // order, but the point's counts are the sum over the *prefix* of units 0..k in
 // index order, where k is the first index at which the prefix reaches
-// target_errors bit errors (if set), stop_frame_errors frame errors (if set)
-// or max_bits information bits, whichever happens first. Units beyond k that
+// stop_bit_errors bit errors (if set), stop_frame_errors frame errors (if set)
+// or stop_bits information bits, whichever happens first. Units beyond k that
 // happened to run are discarded. Since unit i's counts depend only on (seed,
 // scheme, point, i), the counts are bit-identical for any number of threads
 // or processes.
@@ -14,13 +14,13 @@
 // Resuming: a point may start from a counted prefix saved earlier (PointStart:
 // units [0, u) and their sum). Work then continues at unit u with the rule
 // applied unit by unit from there, which gives exactly the counts of an
-// uninterrupted run as long as target_errors, stop_frame_errors and max_bits
+// uninterrupted run as long as stop_bit_errors, stop_frame_errors and stop_bits
 // did not decrease (an unset error target counts as infinite)
 // (the saved prefix never met the rule at any earlier unit). The counted
 // prefix is offered to a checkpoint callback at a fixed interval.
 //
 // A scheme's sweep ends after its first point whose BER is below ber_floor, or
-// that saw no error within max_bits.
+// that saw no error within stop_bits.
 #ifndef CAPGAP_SIM_ENGINE_H_
 #define CAPGAP_SIM_ENGINE_H_
 
@@ -47,7 +47,7 @@ struct PointResult {
   Interval ber_ci{0, 1};
   Interval fer_ci{0, 1};
   double seconds = 0;  // wall time spent on the point, all sessions together
-  StopReason stop_reason = StopReason::kTargetErrors;
+  StopReason stop_reason = StopReason::kStopBitErrors;
   // Units simulated by this call (counted or discarded; 0 when a saved prefix
   // already met the rule). Says how much a resume or extension had to redo.
   std::uint64_t units_simulated = 0;
@@ -66,9 +66,9 @@ struct Progress {
   std::size_t point_count;
   double ebno_db;
   UnitCounts counts;  // counted prefix so far
-  std::uint64_t target_errors;      // 0: none
+  std::uint64_t stop_bit_errors;      // 0: none
   std::uint64_t stop_frame_errors;  // 0: none
-  std::uint64_t max_bits;
+  std::uint64_t stop_bits;
   double seconds;          // spent on the point so far (saved sessions included)
   double bits_per_second;  // bits simulated in this session / its duration
 };
@@ -147,7 +147,7 @@ struct EngineOptions {
 std::unique_ptr<const Channel> MakePointChannel(const Chain& chain, double ebno_db);
 
 // True, with the reason, when `counts` meets the stopping rule of `sweep`
-// (target_errors checked first, then stop_frame_errors, then max_bits, as
+// (stop_bit_errors checked first, then stop_frame_errors, then stop_bits, as
 // unit by unit in RunPoint).
 bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason* reason);
 
@@ -156,7 +156,7 @@ bool StopRuleMet(const UnitCounts& counts, const SweepConfig& sweep, StopReason*
 PointResult RunPoint(const Chain& chain, const SweepConfig& sweep, std::uint32_t point_index,
                      double ebno_db, const EngineOptions& options, const PointStart& start = {});
 
-// True when a scheme's sweep ends after point `r` (no error within max_bits,
+// True when a scheme's sweep ends after point `r` (no error within stop_bits,
 // or BER below ber_floor).
 bool SweepEndsAfter(const PointResult& r, const SweepConfig& sweep);
 

@@ -37,7 +37,7 @@ struct UnitCounts {
   bool operator==(const UnitCounts&) const = default;
 };
 
-enum class StopReason { kTargetErrors, kMaxBits, kInterrupted, kStopFrameErrors };
+enum class StopReason { kStopBitErrors, kStopBits, kInterrupted, kStopFrameErrors };
 std::string ToString(StopReason reason);
 // Inverse of ToString (checkpoint files).
 Result<StopReason> ParseStopReason(const std::string& word);

@@ -102,16 +102,13 @@ Status ParseChannelKeys(const ResolvedKeys& k, SchemeConfig& s) {
       ch.coherence_symbols = static_cast<std::uint32_t>(k.integer("coherence_symbols"));
     }
     if (k.has("doppler")) ch.doppler = k.number("doppler");
-    if (ch.law == FadingLaw::kNakagami && ch.time == FadingTime::kDoppler) {
-      return k.Fail("fading", "doppler needs channel = rayleigh or rician (Nakagami-m has no "
-                              "sum-of-sinusoids process); valid with nakagami: fast, block");
-    }
   }
-  const bool faded = ch.fading() || ch.branches > 1;
-  if (faded && s.shaping != PulseShape::kNone) {
-    return k.Fail("shaping", "fading and receive diversity run at one sample per symbol; use "
-                             "shaping = none with channel = " + ToString(ch.law) +
-                             " (branches = " + std::to_string(ch.branches) + ")");
+  // Shaped chains fade at the symbol rate with one branch (each branch would
+  // need its own matched filter).
+  if (ch.branches > 1 && s.shaping != PulseShape::kNone) {
+    return k.Fail("shaping", "receive diversity runs at one sample per symbol; use "
+                             "shaping = none with branches = " + std::to_string(ch.branches) +
+                             ", or branches = 1 with shaping");
   }
   if (Status st = FadingProcess::Create(ch).status(); !st.ok()) return k.Fail("channel", st.message());
   InterleaverSpec& il = s.interleaver;

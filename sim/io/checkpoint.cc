@@ -2,6 +2,7 @@
 // checksum over the body), and the resume compatibility rules.
 #include "sim/io/checkpoint.h"
 
+#include <algorithm>
 #include <cerrno>
 #include <cinttypes>
 #include <cmath>
@@ -201,6 +202,40 @@ std::size_t Checkpoint::RecordedPoints() const {
 
 std::string CheckpointPath(const std::string& output_path) { return output_path + ".ckpt"; }
 
+std::string UpgradeV1ConfigText(const std::string& text) {
+  std::string out;
+  std::string section;
+  std::size_t pos = 0;
+  while (pos < text.size()) {
+    std::size_t end = text.find('\n', pos);
+    const bool has_nl = end != std::string::npos;
+    if (!has_nl) end = text.size();
+    std::string line = text.substr(pos, end - pos);
+    pos = has_nl ? end + 1 : end;
+    const std::string trimmed = Trim(line);
+    if (!trimmed.empty() && trimmed.front() == '[') section = trimmed;
+    const std::size_t eq = line.find('=');
+    if (eq != std::string::npos) {
+      const std::string key = Trim(std::string_view(line).substr(0, eq));
+      const std::string value = Trim(std::string_view(line).substr(eq + 1));
+      if (section == "[sweep]" && key == "target_errors") {
+        line = "stop_bit_errors = " + value;
+      } else if (section == "[sweep]" && key == "max_bits") {
+        line = "stop_bits = " + value;
+      } else if (key == "ebno_db" && std::count(value.begin(), value.end(), ':') == 2) {
+        const std::size_t a = value.find(':');
+        const std::size_t b = value.find(':', a + 1);
+        line = "ebno_db = " + Trim(std::string_view(value).substr(0, a)) + " to " +
+               Trim(std::string_view(value).substr(b + 1)) + " by " +
+               Trim(std::string_view(value).substr(a + 1, b - a - 1));
+      }
+    }
+    out += line;
+    if (has_nl) out += '\n';
+  }
+  return out;
+}
+
 std::string SerializeCheckpoint(const Checkpoint& c) {
   std::string out;
   out += std::string(kCheckpointFormat) + " " + std::to_string(kCheckpointVersion) + "\n";
@@ -264,8 +299,9 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
     return Status::Error(source + ": not a capgap checkpoint (first line is not '" +
                          std::string(kCheckpointFormat) + " N')");
   }
-  if (v != std::to_string(kCheckpointVersion)) {
-    return Status::Error(source + ": checkpoint version " + v + " is not supported (this program reads " +
+  const bool v1 = v == "1";
+  if (v != std::to_string(kCheckpointVersion) && !v1) {
+    return Status::Error(source + ": checkpoint version " + v + " is not supported (this program reads 1 and " +
                          std::to_string(kCheckpointVersion) + ")");
   }
   if (!KeyLine(r, "state", &v) || (v != "running" && v != "complete")) {
@@ -286,6 +322,7 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
     std::string nl;
     if (!r.Take(1, &nl) || nl != "\n") return r.Error("config text not followed by a newline");
   }
+  if (v1) c.config_text = UpgradeV1ConfigText(c.config_text);
   std::uint64_t scheme_count = 0;
   if (!KeyLine(r, "schemes", &v) || !ParseU64(v, &scheme_count)) {
     return r.Error("expected 'schemes <count>'");
@@ -335,7 +372,10 @@ Result<Checkpoint> ParseCheckpoint(const std::string& bytes, const std::string& 
       p.finished = *f == "1";
       f = field("stop");
       if (!f) return missing("stop");
-      auto reason = ParseStopReason(*f);
+      // Version 1 named two stop reasons after the keys of that time.
+      const std::string stop_word =
+          !v1 ? *f : *f == "target_errors" ? "stop_bit_errors" : *f == "max_bits" ? "stop_bits" : *f;
+      auto reason = ParseStopReason(stop_word);
       if (!reason.ok()) return missing("stop");
       p.stop_reason = reason.value();
       f = field("seconds");
@@ -426,17 +466,17 @@ Status CheckResumable(const Checkpoint& ckpt, const RunConfig& cfg, const std::s
   }
   // Error targets (kErrorTarget): 0 or absent is "none", i.e. infinite; the
   // scheme's effective stop_frame_errors (its own key, else the sweep's) may
-  // only be raised or removed, like target_errors.
+  // only be raised or removed, like stop_bit_errors.
   const auto target_word = [](std::uint64_t t) {
     return t == 0 ? std::string("(none)") : std::to_string(t);
   };
   const auto lowered = [](std::uint64_t was, std::uint64_t now) {
     return now != 0 && (was == 0 || now < was);
   };
-  if (lowered(old.sweep.target_errors, cfg.sweep.target_errors)) {
-    return Status::Error(head + "sweep.target_errors decreased from " +
-                         target_word(old.sweep.target_errors) + " to " +
-                         target_word(cfg.sweep.target_errors) +
+  if (lowered(old.sweep.stop_bit_errors, cfg.sweep.stop_bit_errors)) {
+    return Status::Error(head + "sweep.stop_bit_errors decreased from " +
+                         target_word(old.sweep.stop_bit_errors) + " to " +
+                         target_word(cfg.sweep.stop_bit_errors) +
                          "; a resume may only raise it (finished points may already hold more "
                          "than the new value)");
   }

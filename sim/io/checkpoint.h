@@ -38,7 +38,19 @@
 namespace capgap {
 
 inline constexpr char kCheckpointFormat[] = "capgap-checkpoint";
-inline constexpr int kCheckpointVersion = 1;
+// Version 2 renamed the sweep keys target_errors -> stop_bit_errors and
+// max_bits -> stop_bits (also as stop reasons) and wrote Eb/N0 ranges as
+// "FROM to TO by STEP" instead of "START:STEP:STOP". Version 1 files are
+// still read: ParseCheckpoint rewrites their stored configuration and stop
+// words into version 2 (same points, same meaning), see UpgradeV1ConfigText.
+inline constexpr int kCheckpointVersion = 2;
+
+// The stored configuration text of a version 1 checkpoint in version 2
+// spelling: in [sweep], 'target_errors = V' -> 'stop_bit_errors = V' and
+// 'max_bits = V' -> 'stop_bits = V'; every 'ebno_db = A:S:B' -> 'ebno_db =
+// A to B by S' (the same points: both forms expand with the same arithmetic).
+// Other lines are kept byte for byte.
+std::string UpgradeV1ConfigText(const std::string& text);
 
 // Every field of UnitCounts, by name, in declaration order: the one place that
 // serialises them (checkpoint text and MPI messages both use it). The
@@ -128,11 +140,11 @@ Status CheckRecordedCounts(const Checkpoint& ckpt, const std::vector<Chain>& cha
 // `ckpt_path`, named in messages). Refused, naming the key and both values:
 // any change of a key its key table marks fixed (OnResume, key_table.h), a
 // scheme of the checkpoint missing from the config, sweep.seed, the Eb/N0 of
-// a recorded point, a decrease of target_errors, of a scheme's
-// stop_frame_errors (sweep or scheme key) or of max_bits. An unset error
+// a recorded point, a decrease of stop_bit_errors, of a scheme's
+// stop_frame_errors (sweep or scheme key) or of stop_bits. An unset error
 // target counts as infinite: setting one where there was none is a
-// decrease, removing one a raise. Free (extension) keys: target_errors,
-// stop_frame_errors and max_bits upwards (a raised target continues the
+// decrease, removing one a raise. Free (extension) keys: stop_bit_errors,
+// stop_frame_errors and stop_bits upwards (a raised target continues the
 // same streams from the recorded prefix), ebno_db points appended (or
 // dropped at the end), ber_floor, target_ber, target_fer, threads,
 // checkpoint_seconds; new schemes run from scratch.

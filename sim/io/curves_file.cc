@@ -134,6 +134,7 @@ Status WriteCurvesFile(const std::string& path, const RunMetadata& meta,
     StrAttr(file, "command_line", meta.command_line);
     StrAttr(file, "config", meta.config_text);
     NumAttr(file, "threads", H5::PredType::NATIVE_INT, meta.threads);
+    NumAttr(file, "ranks", H5::PredType::NATIVE_INT, meta.ranks);
     NumAttr(file, "seed", H5::PredType::NATIVE_UINT64, meta.seed);
     StrAttr(file, "kernel_target", meta.kernel_target);
     StrAttr(file, "demap_kernel_target", meta.demap_kernel_target);

@@ -21,7 +21,8 @@ inline constexpr int kCurvesFormatVersion = 1;
 struct RunMetadata {
   std::string command_line;
   std::string config_text;
-  int threads = 1;
+  int threads = 1;  // worker threads per process
+  int ranks = 1;    // processes of the run (MPI ranks; 1 without MPI)
   std::uint64_t seed = 0;
   std::string kernel_target;
   std::string demap_kernel_target;
@@ -75,6 +76,7 @@ struct StoredRun {
   std::string program_version;
   std::string created_utc;
   int threads = 0;
+  int ranks = 0;  // 0: a file written before the attribute existed
   std::vector<StoredScheme> schemes;
 };
 

@@ -457,6 +457,7 @@ Result<StoredRun> ParseCurvesImage(const std::string& bytes, const std::string& 
     run.program_version = StrAttr(file, "/", "program_version");
     run.created_utc = StrAttr(file, "/", "created_utc");
     run.threads = IntAttr(file, "/", "threads");
+    if (HasAttr(file, "ranks")) run.ranks = IntAttr(file, "/", "ranks");
     for (const std::string& name : SchemeNames(file)) run.schemes.push_back(ReadScheme(file, name));
     return run;
   } catch (const Refusal& r) {

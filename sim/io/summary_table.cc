@@ -5,6 +5,8 @@
 
 #include <cmath>
 #include <cstdio>
+#include <string>
+#include <vector>
 
 namespace capgap {
 namespace {
@@ -152,6 +154,137 @@ std::string FormatSummaryTable(const StoredRun& run) {
            "table, theory and gain of fading schemes use the uncoded theory on their own "
            "channel.\n";
   }
+  return out;
+}
+
+namespace {
+
+// An Eb/N0 value with its interval as low/high edges; NaN where the curve did
+// not reach the target.
+struct Estimate {
+  double value, low, high;
+  bool ok() const { return !std::isnan(value) && !std::isnan(low) && !std::isnan(high); }
+};
+
+Estimate Shifted(Estimate e, double by) { return {e.value - by, e.low - by, e.high - by}; }
+
+Estimate BerEstimate(const StoredScheme& s) {
+  const Summary& m = s.summary;
+  return {m.ebno_at_target_db, std::fmin(m.ebno_at_target_low_db, m.ebno_at_target_high_db),
+          std::fmax(m.ebno_at_target_low_db, m.ebno_at_target_high_db)};
+}
+
+Estimate FerEstimate(const StoredScheme& s) {
+  const Summary& m = s.summary;
+  if (!s.has_fer) return {NAN, NAN, NAN};
+  return {m.ebno_at_target_fer_db, std::fmin(m.ebno_at_target_fer_low_db, m.ebno_at_target_fer_high_db),
+          std::fmax(m.ebno_at_target_fer_low_db, m.ebno_at_target_fer_high_db)};
+}
+
+std::string WithInterval(const Estimate& e) {
+  if (std::isnan(e.value)) return "-";
+  std::string out = Db(e.value);
+  out.append(" [").append(Db(e.low)).append(", ").append(Db(e.high)).append("]");
+  return out;
+}
+
+std::string Delta(double v) {
+  if (std::isnan(v)) return "-";
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%+.2f", v);
+  return buf;
+}
+
+// Non-overlapping 95 % intervals: the difference is larger than the
+// statistical uncertainty of either curve (a conservative test: overlapping
+// intervals do not prove equality).
+bool Disjoint(const Estimate& a, const Estimate& b) {
+  return a.ok() && b.ok() && (a.high < b.low || b.high < a.low);
+}
+
+const StoredScheme* FindScheme(const StoredRun& run, const std::string& name) {
+  for (const StoredScheme& s : run.schemes) {
+    if (s.name == name) return &s;
+  }
+  return nullptr;
+}
+
+}  // namespace
+
+std::string FormatComparisonTable(const std::vector<std::string>& labels,
+                                  const std::vector<std::string>& paths,
+                                  const std::vector<StoredRun>& runs) {
+  std::string out;
+  for (std::size_t i = 0; i < runs.size(); ++i) {
+    out.append(labels[i]).append(" = ").append(paths[i]).append(" (")
+        .append(runs[i].program_version).append(", ").append(runs[i].created_utc).append(")\n");
+  }
+  std::vector<std::string> names;
+  for (const StoredRun& r : runs) {
+    for (const StoredScheme& s : r.schemes) {
+      bool seen = false;
+      for (const std::string& n : names) seen |= n == s.name;
+      if (!seen) names.push_back(s.name);
+    }
+  }
+  char line[640];
+  std::snprintf(line, sizeof line, "%-14s %-4s  %-24s %-24s %-24s  %6s %6s  %s\n", "scheme", "file",
+                "Eb/N0 at BER [95%]", "gap to Shannon [95%]", "Eb/N0 at FER [95%]", "dBER", "dFER",
+                "vs first file");
+  out += line;
+  std::size_t flagged = 0;
+  for (const std::string& name : names) {
+    const StoredScheme* base = nullptr;
+    for (std::size_t i = 0; i < runs.size(); ++i) {
+      const StoredScheme* s = FindScheme(runs[i], name);
+      if (!s) {
+        std::snprintf(line, sizeof line, "%-14s %-4s  (not in this file)\n", name.c_str(), labels[i].c_str());
+        out += line;
+        continue;
+      }
+      const Estimate ber = BerEstimate(*s), fer = FerEstimate(*s);
+      const Estimate gap = Shifted(ber, s->shannon_ebno_db);
+      std::string d_ber = "", d_fer = "", verdict;
+      if (!base) {
+        base = s;
+        verdict = "(reference)";
+      } else {
+        const Estimate b_ber = BerEstimate(*base), b_fer = FerEstimate(*base);
+        const bool same_ber_target = s->target_ber == base->target_ber;
+        const bool same_fer_target = !s->has_fer || !base->has_fer || s->target_fer == base->target_fer;
+        d_ber = same_ber_target ? Delta(ber.value - b_ber.value) : "-";
+        d_fer = same_fer_target && s->has_fer && base->has_fer ? Delta(fer.value - b_fer.value) : "-";
+        std::string what;
+        if (same_ber_target && Disjoint(ber, b_ber)) what = "BER";
+        if (same_fer_target && Disjoint(fer, b_fer)) what += what.empty() ? "FER" : ", FER";
+        if (!same_ber_target || !same_fer_target) {
+          verdict = "not comparable: target ";
+          verdict += !same_ber_target ? "BER" : "FER";
+          verdict += " differs";
+        } else if (!what.empty()) {
+          verdict = "DIFFERS (" + what + ": intervals do not overlap)";
+          ++flagged;
+        } else if (!ber.ok() || !b_ber.ok()) {
+          verdict = "BER target not reached by both";
+        } else {
+          verdict = "within the intervals";
+        }
+      }
+      std::snprintf(line, sizeof line, "%-14s %-4s  %-24s %-24s %-24s  %6s %6s  %s\n", name.c_str(),
+                    labels[i].c_str(), WithInterval(ber).c_str(), WithInterval(gap).c_str(),
+                    WithInterval(fer).c_str(), d_ber.c_str(), d_fer.c_str(), verdict.c_str());
+      out += line;
+    }
+  }
+  std::snprintf(line, sizeof line,
+                "Eb/N0 in dB at each scheme's target BER and FER, 95 %% intervals from the "
+                "Clopper-Pearson bounds of the\n"
+                "curve; gap = Eb/N0 - Shannon limit at the "
+                "scheme's eta; dBER/dFER: difference to the first file holding\n"
+                "the scheme. "
+                "DIFFERS: the 95 %% intervals do not overlap. %zu difference(s) flagged.\n",
+                flagged);
+  out += line;
   return out;
 }
 

@@ -55,15 +55,15 @@ class ProgressPrinter {
       return target == 0 ? 0.0 : static_cast<double>(have) / static_cast<double>(target);
     };
     const double f = std::min(
-        1.0, std::max({fraction(p.counts.bit_errors, p.target_errors),
+        1.0, std::max({fraction(p.counts.bit_errors, p.stop_bit_errors),
                        fraction(p.counts.frame_errors, p.stop_frame_errors),
-                       fraction(p.counts.bits, p.max_bits)}));
+                       fraction(p.counts.bits, p.stop_bits)}));
     // "errors 12/100", "frame errors 3/50" or both, as configured.
     char targets[160] = "";
-    if (p.target_errors > 0) {
+    if (p.stop_bit_errors > 0) {
       std::snprintf(targets, sizeof targets, "errors %llu/%llu",
                     static_cast<unsigned long long>(p.counts.bit_errors),
-                    static_cast<unsigned long long>(p.target_errors));
+                    static_cast<unsigned long long>(p.stop_bit_errors));
     }
     if (p.stop_frame_errors > 0) {
       const std::size_t used = std::strlen(targets);
@@ -180,7 +180,7 @@ Status CheckRunArguments(const RunOptions& o) {
     const auto eq = set.find('=');
     if (eq == std::string::npos || eq == 0) {
       return Status::Error("run: --set " + Quoted(set) +
-                           ": expected KEY=VALUE, e.g. --set sweep.target_errors=500");
+                           ": expected KEY=VALUE, e.g. --set sweep.stop_bit_errors=500");
     }
   }
   return Status::Ok();
@@ -383,6 +383,7 @@ int Run(const RunOptions& o) {
   meta.command_line = o.command_line;
   meta.config_text = cfg.ResolvedText();
   meta.threads = nthreads;
+  meta.ranks = ranks;
   meta.seed = cfg.sweep.seed;
   meta.kernel_target = NoiseKernelTarget();
   meta.demap_kernel_target = DemapKernelTarget();

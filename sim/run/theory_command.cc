@@ -8,6 +8,8 @@
 #include <cmath>
 #include <cstdio>
 #include <cstring>
+#include <functional>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -145,7 +147,67 @@ int RunTheory(const TheoryOptions& o) {
   return kExitDone;
 }
 
+namespace {
+
+// Runs `make_text` in a child process and prints its text on `out`, or the
+// error on `err` naming `path`; see RunSummary for why a child.
+int InChild(const std::string& path, const std::function<Result<std::string>()>& make_text,
+            std::ostream& out, std::ostream& err);
+
+}  // namespace
+
 int RunSummary(const std::string& path, std::ostream& out, std::ostream& err) {
+  return InChild(
+      path,
+      [&]() -> Result<std::string> {
+        auto run = ReadCurvesFile(path);
+        if (!run.ok()) return run.status();
+        return FormatSummaryTable(run.value());
+      },
+      out, err);
+}
+
+int RunSummaryComparison(const std::vector<std::string>& paths, std::ostream& out,
+                         std::ostream& err) {
+  if (paths.size() == 1) return RunSummary(paths[0], out, err);
+  // Each file is first read alone, so that a damaged one is named; then all
+  // of them together in one child that formats the comparison.
+  std::ostringstream ignored;
+  for (const std::string& path : paths) {
+    const int status = InChild(
+        path, [&]() -> Result<std::string> {
+          auto run = ReadCurvesFile(path);
+          if (!run.ok()) return run.status();
+          return std::string();
+        },
+        ignored, err);
+    if (status != kExitDone) return status;
+  }
+  std::vector<std::string> labels;
+  for (std::size_t i = 0; i < paths.size(); ++i) {
+    // Built by append: GCC 12 warns falsely (-Wrestrict) on "F" + string.
+    std::string label(1, i < 26 ? static_cast<char>('A' + i) : 'F');
+    if (i >= 26) label.append(std::to_string(i + 1));
+    labels.push_back(label);
+  }
+  return InChild(
+      paths[0],
+      [&]() -> Result<std::string> {
+        std::vector<StoredRun> runs;
+        for (const std::string& path : paths) {
+          auto run = ReadCurvesFile(path);
+          if (!run.ok()) return run.status();
+          runs.push_back(std::move(run).value());
+        }
+        return FormatComparisonTable(labels, paths, runs);
+      },
+      out, err);
+}
+
+namespace {
+
+int InChild(const std::string& path, const std::function<Result<std::string>()>& make_text,
+            std::ostream& out, std::ostream& err) {
   // The file is parsed in a child process: the HDF5 library (1.10) can
   // crash on a damaged file (e.g. a corrupt global heap behind a
   // variable-length string), which our validation cannot prevent as it
@@ -167,10 +229,10 @@ int RunSummary(const std::string& path, std::ostream& out, std::ostream& err) {
   }
   if (child == 0) {
     ::close(fds[0]);
-    auto run = ReadCurvesFile(path);
+    auto text = make_text();
     // Built by append: GCC 12 warns falsely (-Wrestrict) on "0" + string.
-    std::string reply(1, run.ok() ? '0' : '1');
-    reply.append(run.ok() ? FormatSummaryTable(run.value()) : run.status().message());
+    std::string reply(1, text.ok() ? '0' : '1');
+    reply.append(text.ok() ? text.value() : text.status().message());
     std::size_t done = 0;
     while (done < reply.size()) {
       const ssize_t n = ::write(fds[1], reply.data() + done, reply.size() - done);
@@ -209,5 +271,7 @@ int RunSummary(const std::string& path, std::ostream& out, std::ostream& err) {
   out << reply.substr(1) << std::flush;
   return kExitDone;
 }
+
+}  // namespace
 
 }  // namespace capgap

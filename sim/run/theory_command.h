@@ -17,6 +17,7 @@
 #include <iostream>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace capgap {
 
@@ -28,7 +29,7 @@ inline constexpr double kTheoryMaxBandwidthHz = 1e15;
 struct TheoryOptions {
   // Uncoded tables.
   std::optional<std::string> modulation;  // --modulation
-  std::optional<std::string> ebno_db;     // --ebno-db START:STEP:STOP or a list
+  std::optional<std::string> ebno_db;     // --ebno-db FROM to TO by STEP or a list
   std::optional<double> rate;             // --rate (default 1)
   bool csv = false;                       // --csv
   // Shannon-Hartley.
@@ -47,6 +48,12 @@ int RunTheory(const TheoryOptions& options);
 // HDF5 library gives status 1 ("FILE: damaged HDF5 file: the HDF5 library
 // failed reading it (signal 11)"), not a crash.
 int RunSummary(const std::string& path, std::ostream& out, std::ostream& err);
+
+// `capgap summary A.h5 B.h5 ...`: with one file RunSummary; with several the
+// schemes side by side (FormatComparisonTable, files labelled A, B, ...),
+// each file read in a child process first so that a damaged one is named.
+int RunSummaryComparison(const std::vector<std::string>& paths, std::ostream& out,
+                         std::ostream& err);
 
 }  // namespace capgap
 

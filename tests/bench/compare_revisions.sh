@@ -11,18 +11,18 @@
 #               slow drift of the machine's load hits both builds alike
 #   -t THREADS  worker threads per run (default 1)
 #   -s KEY=VAL  passed to both binaries as --set KEY=VAL (repeatable); only keys
-#               both revisions know (sweep.max_bits, sweep.ebno_db, ...)
+#               both revisions know (sweep.stop_bits, sweep.ebno_db, ...)
 #   -k DIR      keep the HDF5 files and the raw table in DIR (default: a temp
 #               directory, removed at the end)
 #
-# The configs should do fixed work: one Eb/N0 point, target_errors out of reach,
-# so both builds simulate the same max_bits (tests/bench/configs/ holds such
+# The configs should do fixed work: one Eb/N0 point, stop_bit_errors out of reach,
+# so both builds simulate the same stop_bits (tests/bench/configs/ holds such
 # cases). The script checks that both builds counted the same bits and bit
 # errors (same config, same seed).
 #
 # Time compared: the sweep's CPU time, i.e. the process's user + system time
 # (/usr/bin/time) minus the median of 3 baseline runs of the same build and
-# config that simulate one frame (--set sweep.max_bits=1 and unit_frames=1):
+# config that simulate one frame (--set sweep.stop_bits=1 and unit_frames=1):
 # this excludes start-up, code construction, the theory/limit analysis and the
 # file write, and unlike wall time it hardly moves when other jobs share the
 # cores. Also shown: the ratio of the sweep wall times the runs record in their
@@ -113,7 +113,7 @@ echo "rounds: $rounds, threads: $threads, load before: $(cut -d' ' -f1-3 /proc/l
 # Baselines: one frame per scheme, so only the fixed costs remain.
 for ((r = 1; r <= 3; ++r)); do
   for c in "${configs[@]}"; do
-    one=(--set sweep.max_bits=1)
+    one=(--set sweep.stop_bits=1)
     for s in $(sed -n 's/^[[:space:]]*\[scheme\.\([^]]*\)\].*/\1/p' "$c"); do
       one+=(--set "scheme.$s.unit_frames=1")
     done

@@ -101,7 +101,7 @@ class Generator {
     if (k == 0) {
       H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
       H5::DataSet ds = g.createDataSet(name, type, space);
-      std::vector<const char*> v(length, "max_bits");
+      std::vector<const char*> v(length, "stop_bits");
       if (write && length > 0) ds.write(v.data(), type);
     } else if (k == 1) {
       H5::DataSet ds = g.createDataSet(name, H5::PredType::NATIVE_DOUBLE, space);

@@ -40,7 +40,7 @@ namespace fs = std::filesystem;
 // the per-scheme Eb/N0 points and every other key stay as in the file).
 inline const std::vector<std::string>& GoldenOverrides() {
   static const std::vector<std::string> kOverrides = {
-      "--set", "sweep.target_errors=100", "--set", "sweep.max_bits=400000"};
+      "--set", "sweep.stop_bit_errors=100", "--set", "sweep.stop_bits=400000"};
   return kOverrides;
 }
 

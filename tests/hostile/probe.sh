@@ -43,9 +43,9 @@ BASE="$WORK/base"
 mkdir -p "$BASE/adir"
 cat > "$BASE/tiny.ini" <<'EOF'
 [sweep]
-ebno_db = 0:2:4
-target_errors = 50
-max_bits = 200000
+ebno_db = 0 to 4 by 2
+stop_bit_errors = 50
+stop_bits = 200000
 seed = 5
 
 [scheme.q]
@@ -193,9 +193,9 @@ expect "seed 2^64 overflows, named" 1 \
   run tiny.ini -o x.h5 --set sweep.seed=18446744073709551616
 expect "hex Eb/N0 refused" 1 "sweep.ebno_db = '0x10': not a decimal number (no hexadecimal)" -- \
   run tiny.ini -o x.h5 --set sweep.ebno_db=0x10
-expect "exponent in an integer refused" 1 "sweep.target_errors = '1e3': not an integer" -- \
-  run tiny.ini -o x.h5 --set sweep.target_errors=1e3
-expect "negative integer refused" 1 "sweep.max_bits = '-5'" -- run tiny.ini -o x.h5 --set sweep.max_bits=-5
+expect "exponent in an integer refused" 1 "sweep.stop_bit_errors = '1e3': not an integer" -- \
+  run tiny.ini -o x.h5 --set sweep.stop_bit_errors=1e3
+expect "negative integer refused" 1 "sweep.stop_bits = '-5'" -- run tiny.ini -o x.h5 --set sweep.stop_bits=-5
 expect "nan Eb/N0 refused" 1 "sweep.ebno_db = 'nan'" -- run tiny.ini -o x.h5 --set sweep.ebno_db=nan
 expect "--seed 2^64 is a usage error naming --seed" 2 \
   "run: --seed = '18446744073709551616': must be an integer in [0, 18446744073709551615]" -- \
@@ -234,7 +234,7 @@ m_dir() { ldpc_ini l.ini "construction = file" "matrix_file = adir"; }
 setup=m_dir
 expect "matrix_file = directory" 1 "adir: is a directory, not a matrix file" -- run l.ini -o x.h5
 m_huge() {
-  printf 'ldpc-matrix n 1048576 m 524288\n0:\n' > h.txt
+  printf 'parity-check columns 1048576 rows 524288\n-\n' > h.txt
   ldpc_ini l.ini "construction = file" "matrix_file = h.txt"
 }
 setup=m_huge
@@ -246,8 +246,8 @@ m_valid_huge() {
   "$PY" -c "
 m = 524288
 with open('big.txt', 'w') as f:
-    f.write('ldpc-matrix n %d m %d\\n' % (2 * m, m))
-    f.writelines('2: %d %d\\n' % (2 * r, 2 * r + 1) for r in range(m))"
+    f.write('parity-check columns %d rows %d\\n' % (2 * m, m))
+    f.writelines('%d %d\\n' % (2 * r, 2 * r + 1) for r in range(m))"
   ldpc_ini l.ini "construction = file" "matrix_file = big.txt"
 }
 setup=m_valid_huge
@@ -320,12 +320,12 @@ expect "theory --snr-db 1e308" 2 "theory: --snr-db = 1e+308" -- theory --bandwid
 expect "theory --bandwidth nan" 2 "theory: --bandwidth = nan" -- theory --bandwidth nan --snr-db 3
 expect "theory --bandwidth 0" 2 "theory: --bandwidth = 0" -- theory --bandwidth 0 --snr-db 3
 expect "theory --rate 1e-300" 2 "theory: --rate = 1e-300: must be a number in [1e-06, 1]" -- \
-  theory --modulation qpsk --ebno-db 0:1:3 --rate 1e-300
+  theory --modulation qpsk --ebno-db 0 to 3 by 1 --rate 1e-300
 expect "theory --ebno-db nan" 2 "theory: --ebno-db = 'nan'" -- theory --modulation qpsk --ebno-db nan
 expect "theory conflicting groups (--modulation with --bandwidth)" 2 "cannot be combined" -- \
   theory --bandwidth 1e6 --snr-db 10 --modulation qpsk
 expect "theory conflicting groups (--ebno-db with --snr-db)" 2 "cannot be combined" -- \
-  theory --ebno-db 0:1:3 --snr-db 3
+  theory --ebno-db 0 to 3 by 1 --snr-db 3
 expect "theory half a group" 2 "--bandwidth and --snr-db go together" -- theory --snr-db 3
 
 # ---------------------------------------------------------------- summary
@@ -424,7 +424,7 @@ sigterm_case() {
 peg_16k() { ldpc_ini l.ini "length = 16384"; }
 sigterm_case "SIGTERM during PEG construction (n = 16384)" peg_16k 1
 long_unit() {
-  printf '[sweep]\nebno_db = 2\ntarget_errors = 1000000\nmax_bits = 1000000000\nseed = 1\n\n[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\nconstraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\nunit_frames = 100000\n' > l.ini
+  printf '[sweep]\nebno_db = 2\nstop_bit_errors = 1000000\nstop_bits = 1000000000\nseed = 1\n\n[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\nconstraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\nunit_frames = 100000\n' > l.ini
 }
 sigterm_case "SIGTERM inside a unit of 10^5 BCJR frames" long_unit ckpt
 

@@ -65,9 +65,9 @@ RunOutput RunMpi(int np, const std::vector<std::string>& capgap_args, const fs::
 // mid-sweep: ci_resume.ini's first 6 points with 150x the errors per point
 // (about 4 s on one core here).
 std::vector<std::string> Heavy(std::vector<std::string> extra) {
-  std::vector<std::string> a = {"--set", "sweep.ebno_db=0:1:5", "--set",
-                                "sweep.target_errors=3000000", "--set",
-                                "sweep.max_bits=1000000000"};
+  std::vector<std::string> a = {"--set", "sweep.ebno_db=0 to 5 by 1", "--set",
+                                "sweep.stop_bit_errors=3000000", "--set",
+                                "sweep.stop_bits=1000000000"};
   a.insert(a.end(), extra.begin(), extra.end());
   return a;
 }
@@ -161,6 +161,15 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
     const RunOutput r = RunMpi(c.np, RunArgs(out, {"--threads", c.threads}), dir);
     ASSERT_EQ(r.status, 0) << r.log;
     EXPECT_EQ(ReadCounts(out), ReadCounts(ref)) << c.np << " ranks x " << c.threads << " threads";
+    // The file records the processes of the run (attribute "ranks") beside
+    // the threads of each; the single-process reference records 1.
+    auto stored = ReadCurvesFile(out);
+    ASSERT_TRUE(stored.ok()) << stored.status().message();
+    EXPECT_EQ(stored.value().ranks, c.np);
+    EXPECT_EQ(stored.value().threads, std::atoi(c.threads));
+    auto single = ReadCurvesFile(ref);
+    ASSERT_TRUE(single.ok()) << single.status().message();
+    EXPECT_EQ(single.value().ranks, 1);
     ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
     EXPECT_EQ(Count(r.log, "wrote " + out), 1u) << r.log;
     EXPECT_EQ(Count(r.log, "process(es) x"), 1u) << r.log;  // one banner
@@ -173,11 +182,58 @@ TEST(MpiRun, TwoAndThreeRanksWriteTheCountsOfOneThread) {
   fs::remove_all(dir);
 }
 
+// Fading schemes (fading channels keep a per-unit process state, reset when
+// a unit starts, so a unit's gains depend only on its own kFading stream):
+// fast Rayleigh 16-QAM through the fused count, Nakagami block fading with
+// selection combining, Rician Doppler with MRC, Nakagami-m Doppler, a
+// coded scheme with the random interleaver over groups of frames, and a
+// pulse-shaped chain fading at the symbol rate. One process with one
+// thread, then 1, 2 and 3 ranks: identical counts.
+TEST(MpiRun, FadingSchemesGiveTheCountsOfOneThreadOnOneTwoAndThreeRanks) {
+  const fs::path dir = TempDir("fading");
+  const std::string cfg = (dir / "fading.ini").string();
+  {
+    std::ofstream f(cfg);
+    f << "[sweep]\nebno_db = 0:4:12\ntarget_errors = 200\nmax_bits = 400000\n"
+         "ber_floor = 1e-6\nseed = 5\n"
+         "[scheme.qam16_fast]\nmodulation = 16qam\ndemapper = maxlog\nframe_bits = 480\n"
+         "unit_frames = 4\nchannel = rayleigh\n"
+         "[scheme.qpsk_naka_block_sc]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = nakagami\nnakagami_m = 0.8\n"
+         "fading = block\ncoherence_symbols = 50\nbranches = 2\ncombining = selection\n"
+         "[scheme.psk8_rician_doppler_mrc]\nmodulation = 8psk\ndemapper = logmap\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = rician\nrician_k_db = 3\n"
+         "fading = doppler\ndoppler = 0.02\nbranches = 3\n"
+         "[scheme.bpsk_naka_doppler]\nmodulation = bpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nchannel = nakagami\nnakagami_m = 2.5\n"
+         "fading = doppler\ndoppler = 0.01\n"
+         "[scheme.qpsk_conv_random]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 240\nunit_frames = 4\ncode = conv\ngenerators = 5,7\n"
+         "constraint_length = 3\nchannel = rayleigh\nfading = block\n"
+         "coherence_symbols = 100\ninterleaver = random\ninterleaver_frames = 2\n"
+         "[scheme.qpsk_rrc_rayleigh]\nmodulation = qpsk\ndemapper = maxlog\n"
+         "frame_bits = 480\nunit_frames = 4\nshaping = rrc\nrolloff = 0.35\nspan = 8\n"
+         "samples_per_symbol = 4\nchannel = rayleigh\n";
+  }
+  const std::string ref = (dir / "ref.h5").string();
+  const RunOutput r1 = RunCapgap({"run", cfg, "-o", ref, "--threads", "1", "--quiet"}, dir);
+  ASSERT_EQ(r1.status, 0) << r1.log;
+  const auto want = ReadCounts(ref);
+  ASSERT_EQ(want.schemes.size(), 6u);
+  for (const int np : {1, 2, 3}) {
+    const std::string out = (dir / ("np" + std::to_string(np) + ".h5")).string();
+    const RunOutput r = RunMpi(np, {"run", cfg, "-o", out, "--threads", "1", "--quiet"}, dir);
+    ASSERT_EQ(r.status, 0) << r.log;
+    EXPECT_EQ(ReadCounts(out), want) << np << " ranks";
+  }
+  fs::remove_all(dir);
+}
+
 // Points that stop on frame errors (sweep.stop_frame_errors, no bit-error
 // target): 2 and 3 ranks write the counts of one process with one thread.
 TEST(MpiRun, FrameErrorStoppingGivesTheCountsOfOneThread) {
   const fs::path dir = TempDir("frames");
-  const std::vector<std::string> frames = {"--set", "sweep.target_errors=0", "--set",
+  const std::vector<std::string> frames = {"--set", "sweep.stop_bit_errors=0", "--set",
                                            "sweep.stop_frame_errors=150", "--quiet"};
   std::vector<std::string> one = frames;
   one.insert(one.end(), {"--threads", "1"});
@@ -267,8 +323,8 @@ TEST(MpiRun, SigtermToMpirunLeavesACheckpointASingleProcessResumes) {
 TEST(MpiRun, SigtermDuringALongUnitStopsEveryRankWithin2s) {
   const fs::path dir = TempDir("long_unit");
   const std::string config = (dir / "k9.ini").string();
-  std::ofstream(config) << "[sweep]\nebno_db = 2\ntarget_errors = 100000000\n"
-                           "max_bits = 1000000000\nseed = 1\ncheckpoint_seconds = 0.05\n"
+  std::ofstream(config) << "[sweep]\nebno_db = 2\nstop_bit_errors = 100000000\n"
+                           "stop_bits = 1000000000\nseed = 1\ncheckpoint_seconds = 0.05\n"
                            "[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\n"
                            "constraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\n"
                            "unit_frames = 2000\n";

@@ -14,7 +14,8 @@ Layout (format_version 1):
   /                 attrs format="capgap-curves", format_version (int),
                     program_version, git_revision, created_utc, command_line,
                     config (non-empty INI text), kernel_target (strings),
-                    threads (int), seed (uint64)
+                    threads (int, per process), ranks (int, processes of
+                    the run: MPI ranks, 1 without MPI), seed (uint64)
   /<scheme>/        every top-level group is a scheme; attrs modulation,
                     code, demapper (strings), bits_per_symbol (int),
                     code_rate, info_bits_per_symbol, spectral_efficiency,
@@ -102,7 +103,7 @@ except Exception:  # pragma: no cover - depends on the interpreter
 
 FORMAT_NAME = "capgap-curves"
 FORMAT_VERSION = 1
-STOP_REASONS = ("target_errors", "stop_frame_errors", "max_bits")
+STOP_REASONS = ("stop_bit_errors", "stop_frame_errors", "stop_bits")
 ROOT_STRING_ATTRS = ("format", "program_version", "git_revision", "created_utc",
                      "command_line", "config", "kernel_target")
 POINT_FLOAT = ("ebno_db", "esno_db", "ber", "ber_low", "ber_high", "fer",
@@ -375,6 +376,9 @@ def check_root(c, f):
     threads = c.attr_int(f, "threads")
     if threads < 1:
         c.fail("/ attribute 'threads'", f"is {threads}, expected >= 1")
+    ranks = c.attr_int(f, "ranks")
+    if ranks < 1:
+        c.fail("/ attribute 'ranks'", f"is {ranks}, expected >= 1")
     c.attr_uint64(f, "seed")
 
 

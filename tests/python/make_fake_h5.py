@@ -45,7 +45,7 @@ import numpy as np
 ALPHA = 0.05  # 95 % two-sided interval.
 BITS_PER_FRAME = 1000
 TARGET_ERRORS = 200
-MAX_FRAMES = 20000  # max_bits = 2e7
+MAX_FRAMES = 20000  # stop_bits = 2e7
 TARGET_BER = 1e-5
 
 
@@ -188,10 +188,10 @@ def simulate_points(rng, ebno_grid, ber_fn):
         hit = np.nonzero(cum >= TARGET_ERRORS)[0]
         if hit.size:
             frames = int(hit[0]) + 1
-            reason = "target_errors"
+            reason = "stop_bit_errors"
         else:
             frames = MAX_FRAMES
-            reason = "max_bits"
+            reason = "stop_bits"
         used = per_frame[:frames]
         out["bits"].append(frames * BITS_PER_FRAME)
         out["bit_errors"].append(int(used.sum()))
@@ -314,6 +314,7 @@ def main(argv):
         f.attrs["command_line"] = " ".join(["make_fake_h5.py"] + list(argv))
         f.attrs["config"] = CONFIG_TEXT.format(seed=args.seed)
         f.attrs["threads"] = np.int32(1)
+        f.attrs["ranks"] = np.int32(1)
         f.attrs["kernel_target"] = "synthetic"
         f.attrs["seed"] = np.uint64(args.seed)
         f.attrs["note"] = "SYNTHETIC TEST DATA: binomial draws at closed-form rates"

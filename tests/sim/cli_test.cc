@@ -49,15 +49,15 @@ fs::path TempDir() {
 TEST(Cli, BadConfigValueGivesOneLineAndNoFile) {
   const fs::path out = TempDir() / "bad.h5";
   const Output o = Capgap("run " + Config("ci_tiny.ini") + " -o " + out.string() +
-                          " --quiet --set sweep.target_errors=-5");
+                          " --quiet --set sweep.stop_bit_errors=-5");
   EXPECT_EQ(o.status, 1);
   EXPECT_EQ(o.text, "capgap: " + Config("ci_tiny.ini") +
-                        ": sweep.target_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
+                        ": sweep.stop_bit_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
   EXPECT_FALSE(fs::exists(out));
 }
 
 TEST(Cli, UnknownModulationListsValidWords) {
-  const Output o = Capgap("theory --modulation 12qam --ebno-db 0:1:2");
+  const Output o = Capgap("theory --modulation 12qam --ebno-db 0 to 2 by 1");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--modulation = '12qam'"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("256qam"), std::string::npos) << o.text;
@@ -65,6 +65,13 @@ TEST(Cli, UnknownModulationListsValidWords) {
 
 TEST(Cli, MalformedRangeAndUnknownCommandAreUsageErrors) {
   EXPECT_EQ(Capgap("theory --modulation qpsk --ebno-db 0:1").status, 2);
+  const Output colon = Capgap("theory --modulation qpsk --ebno-db 0:0.5:2");
+  EXPECT_EQ(colon.status, 2);
+  EXPECT_NE(colon.text.find("--ebno-db = '0:0.5:2': the START:STEP:STOP form is no longer "
+                            "accepted; write a range as FROM to TO by STEP (inclusive), here '0 "
+                            "to 2 by 0.5'"),
+            std::string::npos)
+      << colon.text;
   const Output o = Capgap("simulate x");
   EXPECT_EQ(o.status, 2);
   EXPECT_EQ(o.text, "capgap: unknown command 'simulate'; commands: run, theory, summary (capgap --help)\n");
@@ -88,6 +95,45 @@ TEST(Cli, HelpWorksOnEveryCommand) {
   }
 }
 
+// Two real runs compared side by side. A run with another seed and more
+// errors lands within the intervals; swapping QPSK for 8-PSK moves the BER
+// 1e-3 point by about 3.2 dB (uncoded Gray 8-PSK needs ~10.0 dB, QPSK 6.8 dB
+// at BER 1e-3: Proakis & Salehi, 5th ed., ch. 4, curves; values from
+// memory, the flag only needs them far apart), far outside the intervals
+// of 100-error points (about +-0.15 dB here).
+TEST(Cli, SummaryComparesFilesAndFlagsNonOverlappingIntervals) {
+  const fs::path dir = TempDir();
+  const std::string a = (dir / "a.h5").string(), b = (dir / "b.h5").string(),
+                    c = (dir / "c.h5").string();
+  const std::string run = "run " + Config("ci_tiny.ini") + " --quiet --threads 1 -o ";
+  ASSERT_EQ(Capgap(run + a).status, 0);
+  ASSERT_EQ(Capgap(run + b + " --seed 2 --set sweep.stop_bit_errors=400").status, 0);
+  ASSERT_EQ(Capgap(run + c + " --set scheme.qpsk.modulation=8psk").status, 0);
+  const auto line_of = [](const std::string& text, const std::string& start) {
+    const auto at = text.find("\n" + start);
+    return at == std::string::npos ? std::string()
+                                   : text.substr(at + 1, text.find('\n', at + 1) - at - 1);
+  };
+  const Output same = Capgap("summary " + a + " " + b);
+  ASSERT_EQ(same.status, 0) << same.text;
+  EXPECT_NE(same.text.find("A = " + a), std::string::npos) << same.text;
+  EXPECT_NE(line_of(same.text, "qpsk           B").find("within the intervals"), std::string::npos)
+      << same.text;
+  EXPECT_NE(same.text.find("0 difference(s) flagged"), std::string::npos) << same.text;
+  const Output differ = Capgap("summary " + a + " " + c);
+  ASSERT_EQ(differ.status, 0) << differ.text;
+  const std::string qpsk_b = line_of(differ.text, "qpsk           B");
+  EXPECT_NE(qpsk_b.find("DIFFERS (BER: intervals do not overlap)"), std::string::npos) << differ.text;
+  EXPECT_NE(qpsk_b.find("+3."), std::string::npos) << differ.text;
+  EXPECT_NE(line_of(differ.text, "qpsk_rrc       B").find("within the intervals"), std::string::npos)
+      << differ.text;
+  // A missing or damaged file is named with status 1.
+  const Output missing = Capgap("summary " + a + " " + (dir / "none.h5").string());
+  EXPECT_EQ(missing.status, 1);
+  EXPECT_NE(missing.text.find("none.h5: cannot open curves file"), std::string::npos) << missing.text;
+  fs::remove_all(dir);
+}
+
 TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
   const fs::path dir = TempDir();
   const std::string a = (dir / "t1.h5").string(), b = (dir / "t2.h5").string();
@@ -100,6 +146,8 @@ TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
   ASSERT_EQ(ra.value().schemes.size(), 3u);
   EXPECT_EQ(ra.value().threads, 1);
   EXPECT_EQ(rb.value().threads, 2);
+  EXPECT_EQ(ra.value().ranks, 1);  // one process (attribute "ranks")
+  EXPECT_EQ(rb.value().ranks, 1);
   for (std::size_t i = 0; i < 3; ++i) {
     EXPECT_EQ(ra.value().schemes[i].bits, rb.value().schemes[i].bits);
     EXPECT_EQ(ra.value().schemes[i].bit_errors, rb.value().schemes[i].bit_errors);
@@ -120,7 +168,7 @@ TEST(Cli, OneAndTwoThreadsWriteIdenticalCounts) {
 // BPSK Pb = Q(sqrt(2 Eb/N0)) = 1.2501e-2 at 4 dB (Proakis & Salehi, Digital
 // Communications, 5th ed., ch. 4; evaluated with scipy.special.erfc).
 TEST(Cli, TheoryCsvIsMachineReadable) {
-  const Output o = Capgap("theory --modulation bpsk --ebno-db 0:2:4 --rate 0.5 --csv");
+  const Output o = Capgap("theory --modulation bpsk --ebno-db 0 to 4 by 2 --rate 0.5 --csv");
   ASSERT_EQ(o.status, 0) << o.text;
   EXPECT_NE(o.text.find("# info_bits_per_symbol = 0.5\n"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("# shannon_ebno_db = "), std::string::npos);
@@ -130,6 +178,25 @@ TEST(Cli, TheoryCsvIsMachineReadable) {
   ASSERT_NE(row, std::string::npos) << o.text;
   const double ber = std::strtod(o.text.c_str() + row + 5, nullptr);
   EXPECT_NEAR(ber, 1.2501e-2, 1e-6) << o.text;
+}
+
+// The range may be one quoted argument or separate words: same table.
+TEST(Cli, TheoryRangeQuotedOrAsWordsGivesTheSameTable) {
+  const Output words = Capgap("theory --modulation bpsk --ebno-db 0 to 4 by 2 --csv");
+  const Output quoted = Capgap("theory --modulation bpsk --ebno-db '0 to 4 by 2' --csv");
+  const Output list = Capgap("theory --modulation bpsk --ebno-db 0,2,4 --csv");
+  ASSERT_EQ(words.status, 0) << words.text;
+  EXPECT_EQ(words.text, quoted.text);
+  EXPECT_EQ(words.text, list.text);
+  EXPECT_NE(words.text.find("\n4,4,"), std::string::npos) << words.text;
+}
+
+TEST(Cli, RenamedKeyInSetNamesTheNewKey) {
+  const Output o = Capgap("run " + Config("ci_tiny.ini") + " --set sweep.max_bits=1000 -o /tmp/x.h5");
+  EXPECT_EQ(o.status, 1) << o.text;
+  EXPECT_NE(o.text.find("key '--set sweep.max_bits' was renamed: write 'sweep.stop_bits'"),
+            std::string::npos)
+      << o.text;
 }
 
 // Shannon-Hartley: B = 1 MHz at 20 dB gives 1e6 log2(101) = 6.658 Mbit/s (arithmetic).
@@ -184,14 +251,14 @@ TEST(Cli, TheoryRefusesNonFiniteOutOfRangeAndConflictingValues) {
   o = Capgap("theory --bandwidth 1e6 --snr-db 1e308");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--snr-db = 1e+308"), std::string::npos) << o.text;
-  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --rate 1e-300");
+  o = Capgap("theory --modulation qpsk --ebno-db 0 to 2 by 1 --rate 1e-300");
   EXPECT_EQ(o.status, 2);
   EXPECT_EQ(o.text, "capgap: theory: --rate = 1e-300: must be a number in [1e-06, 1] (code rate)\n");
   o = Capgap("theory --bandwidth=-1 --snr-db 3");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--bandwidth = -1: must be a number in (0, 1e+15] Hz"), std::string::npos)
       << o.text;
-  o = Capgap("theory --modulation qpsk --ebno-db 0:1:2 --bandwidth 1e6 --snr-db 3");
+  o = Capgap("theory --modulation qpsk --ebno-db 0 to 2 by 1 --bandwidth 1e6 --snr-db 3");
   EXPECT_EQ(o.status, 2);
   EXPECT_NE(o.text.find("--bandwidth/--snr-db"), std::string::npos) << o.text;
   EXPECT_NE(o.text.find("--modulation/--ebno-db"), std::string::npos) << o.text;

@@ -14,10 +14,10 @@
 namespace capgap {
 namespace {
 
-RunConfig FadingConfig(std::uint64_t target_errors, const std::string& scheme_keys) {
-  const std::string text = "[sweep]\nebno_db = 8\ntarget_errors = " +
-                           std::to_string(target_errors) +
-                           "\nmax_bits = 100000000\nseed = 5\n[scheme.s]\n" + scheme_keys;
+RunConfig FadingConfig(std::uint64_t stop_bit_errors, const std::string& scheme_keys) {
+  const std::string text = "[sweep]\nebno_db = 8\nstop_bit_errors = " +
+                           std::to_string(stop_bit_errors) +
+                           "\nstop_bits = 100000000\nseed = 5\n[scheme.s]\n" + scheme_keys;
   auto r = ParseRunConfig(text, "fading_resume_test", {});
   EXPECT_TRUE(r.ok()) << r.status().message();
   return r.value();
@@ -49,7 +49,7 @@ TEST(FadingResume, ThreadsResumeAndExtensionGiveTheSameCounts) {
     EngineOptions eo;
     eo.threads = 1;
     const PointResult whole = RunPoint(chain, cfg.sweep, 0, 8.0, eo);
-    ASSERT_EQ(whole.stop_reason, StopReason::kTargetErrors) << keys;
+    ASSERT_EQ(whole.stop_reason, StopReason::kStopBitErrors) << keys;
     ASSERT_GT(whole.units, 8u) << keys;
     for (int threads : {2, 3}) {
       eo.threads = threads;

@@ -77,7 +77,7 @@ TEST(FullDisk, CurvesWriteFailureExits1AndKeepsThePreviousFiles) {
                  << "; needs root): full-disk case not run";
   }
   const fs::path config = dir / "full_disk.ini";
-  std::ofstream(config) << "[sweep]\nebno_db = 0:2:4\ntarget_errors = 50\nmax_bits = 200000\n"
+  std::ofstream(config) << "[sweep]\nebno_db = 0 to 4 by 2\nstop_bit_errors = 50\nstop_bits = 200000\n"
                            "seed = 3\n[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n";
   const std::string out = (dir / "disk" / "out.h5").string();
   const std::string ckpt = CheckpointPath(out);

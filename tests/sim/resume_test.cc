@@ -3,7 +3,7 @@
 // an interrupt, with a raised target) and through the CLI as a user meets it
 // (SIGKILL at random moments then --resume, SIGTERM -> status 75 with a good
 // checkpoint, a second SIGINT -> status 130 at once, a changed scheme refused,
-// target_errors raised on a finished run, more points and a lower floor).
+// stop_bit_errors raised on a finished run, more points and a lower floor).
 #include <signal.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -43,9 +43,9 @@ using test::WaitForFinishedPoints;
 fs::path TempDir(const std::string& name) { return test::TempDir("resume_test", name); }
 
 // ------------------------------------------------------------- in-process
-RunConfig PointConfig(std::uint64_t target_errors) {
-  const std::string text = "[sweep]\nebno_db = 5\ntarget_errors = " + std::to_string(target_errors) +
-                           "\nmax_bits = 100000000\nseed = 3\n[scheme.s]\nmodulation = 16qam\n"
+RunConfig PointConfig(std::uint64_t stop_bit_errors) {
+  const std::string text = "[sweep]\nebno_db = 5\nstop_bit_errors = " + std::to_string(stop_bit_errors) +
+                           "\nstop_bits = 100000000\nseed = 3\n[scheme.s]\nmodulation = 16qam\n"
                            "demapper = maxlog\nframe_bits = 480\nunit_frames = 2\n";
   auto r = ParseRunConfig(text, "resume_test", {});
   EXPECT_TRUE(r.ok()) << r.status().message();
@@ -83,7 +83,7 @@ TEST(Resume, PointContinuedFromAnySavedPrefixEqualsUninterrupted) {
   EngineOptions eo;
   eo.threads = 2;
   const PointResult whole = RunPoint(chain, cfg.sweep, 0, 5.0, eo);
-  ASSERT_EQ(whole.stop_reason, StopReason::kTargetErrors);
+  ASSERT_EQ(whole.stop_reason, StopReason::kStopBitErrors);
   ASSERT_GT(whole.units, 20u);
   for (int threads : {1, 3}) {
     eo.threads = threads;
@@ -185,7 +185,7 @@ TEST(ResumeCli, KilledAtRandomMomentsThenResumedGivesUninterruptedCounts) {
   const fs::path dir = TempDir("kill");
   const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
   auto args = [&](const std::string& path, bool resume) {
-    std::vector<std::string> extra = {"--threads", "2", "--set", "sweep.target_errors=200000"};
+    std::vector<std::string> extra = {"--threads", "2", "--set", "sweep.stop_bit_errors=200000"};
     if (resume) extra.push_back("--resume");
     return RunArgs(path, extra);
   };
@@ -266,8 +266,8 @@ TEST(ResumeCli, SecondSigintExitsAtOnceWith130AndTheCheckpointStaysGood) {
   const fs::path dir = TempDir("int2");
   const std::string out = (dir / "out.h5").string();
   const std::string config = (dir / "slow.ini").string();
-  std::ofstream(config) << "[sweep]\nebno_db = -5\ntarget_errors = 1000000\n"
-                           "max_bits = 1000000000\nseed = 11\n"
+  std::ofstream(config) << "[sweep]\nebno_db = -5\nstop_bit_errors = 1000000\n"
+                           "stop_bits = 1000000000\nseed = 11\n"
                            "[scheme.ldpc]\nmodulation = qpsk\ncode = ldpc\nconstruction = qc\n"
                            "base_matrix = "
                         << Config("codes/qc_r1-2_24x12.txt")
@@ -294,7 +294,7 @@ TEST(ResumeCli, SecondSigintExitsAtOnceWith130AndTheCheckpointStaysGood) {
 TEST(ResumeCli, ChangedSchemeOrSeedIsRefusedNamingTheKey) {
   const fs::path dir = TempDir("changed");
   const std::string out = (dir / "out.h5").string();
-  ASSERT_EQ(RunCapgap(RunArgs(out, {"--set", "sweep.ebno_db=0:1:3"}), dir).status, 0);
+  ASSERT_EQ(RunCapgap(RunArgs(out, {"--set", "sweep.ebno_db=0 to 3 by 1"}), dir).status, 0);
   const std::string head = "capgap: cannot resume from " + CheckpointPath(out) + ": ";
   RunOutput r = RunCapgap(RunArgs(out, {"--resume", "--set", "scheme.qpsk.unit_frames=4"}), dir);
   EXPECT_EQ(r.status, 1);
@@ -307,18 +307,18 @@ TEST(ResumeCli, ChangedSchemeOrSeedIsRefusedNamingTheKey) {
   fs::remove_all(dir);
 }
 
-// A finished run at target_errors 20000 (config) extended to 40000: counts
+// A finished run at stop_bit_errors 20000 (config) extended to 40000: counts
 // equal a fresh run at 40000, and with one thread the units simulated by the
 // extension are exactly those the fresh run needs beyond the reused ones.
-TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
+TEST(ResumeCli, ExtendingStopBitErrorsReusesTheFinishedUnits) {
   const fs::path dir = TempDir("extend");
   const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
-  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0:1:5"};
+  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0 to 5 by 1"};
   auto with = [&](std::vector<std::string> a, const std::vector<std::string>& more) {
     a.insert(a.end(), more.begin(), more.end());
     return a;
   };
-  const RunOutput fresh = RunCapgap(RunArgs(ref, with(few, {"--set", "sweep.target_errors=40000"})), dir);
+  const RunOutput fresh = RunCapgap(RunArgs(ref, with(few, {"--set", "sweep.stop_bit_errors=40000"})), dir);
   ASSERT_EQ(fresh.status, 0) << fresh.log;
   ASSERT_EQ(RunCapgap(RunArgs(out, few), dir).status, 0);
   const Checkpoint before = ReadGood(CheckpointPath(out));
@@ -327,7 +327,7 @@ TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
     for (const auto& p : s.points) before_units += p.units;
   }
   const RunOutput ext =
-      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.target_errors=40000"})), dir);
+      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.stop_bit_errors=40000"})), dir);
   ASSERT_EQ(ext.status, 0) << ext.log;
   EXPECT_EQ(ReadCounts(out), ReadCounts(ref));
   ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
@@ -342,7 +342,7 @@ TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
   EXPECT_GT(before_units, 0u);
   // Nothing left to do: a second identical resume simulates nothing.
   const RunOutput again =
-      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.target_errors=40000"})), dir);
+      RunCapgap(RunArgs(out, with(few, {"--resume", "--set", "sweep.stop_bit_errors=40000"})), dir);
   ASSERT_EQ(again.status, 0) << again.log;
   EXPECT_NE(again.log.find("units: " + std::to_string(total) + " counted, " + std::to_string(total) +
                            " reused from the checkpoint, 0 simulated in this run\n"),
@@ -357,8 +357,8 @@ TEST(ResumeCli, ExtendingTargetErrorsReusesTheFinishedUnits) {
 TEST(ResumeCli, RaisingStopFrameErrorsReusesTheFinishedUnits) {
   const fs::path dir = TempDir("extend_frames");
   const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
-  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0:1:5",
-                                        "--set", "sweep.target_errors=0"};
+  const std::vector<std::string> few = {"--threads", "1", "--set", "sweep.ebno_db=0 to 5 by 1",
+                                        "--set", "sweep.stop_bit_errors=0"};
   auto with = [&](std::vector<std::string> a, const std::vector<std::string>& more) {
     a.insert(a.end(), more.begin(), more.end());
     return a;
@@ -404,10 +404,10 @@ TEST(ResumeCli, RaisingStopFrameErrorsReusesTheFinishedUnits) {
 TEST(ResumeCli, MorePointsAndALowerFloorExtendTheSweep) {
   const fs::path dir = TempDir("points");
   const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
-  const std::vector<std::string> final_cfg = {"--threads", "2", "--set", "sweep.ebno_db=0:1:9",
+  const std::vector<std::string> final_cfg = {"--threads", "2", "--set", "sweep.ebno_db=0 to 9 by 1",
                                               "--set", "sweep.ber_floor=1e-6"};
   ASSERT_EQ(RunCapgap(RunArgs(ref, final_cfg), dir).status, 0);
-  ASSERT_EQ(RunCapgap(RunArgs(out, {"--threads", "2", "--set", "sweep.ebno_db=0:1:6", "--set",
+  ASSERT_EQ(RunCapgap(RunArgs(out, {"--threads", "2", "--set", "sweep.ebno_db=0 to 6 by 1", "--set",
                               "sweep.ber_floor=1e-2"}),
                 dir)
                 .status,
@@ -431,7 +431,7 @@ TEST(ResumeCli, MorePointsAndALowerFloorExtendTheSweep) {
 TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
   const fs::path dir = TempDir("memory_limit");
   const std::string config = (dir / "ldpc.ini").string();
-  std::ofstream(config) << "[sweep]\nebno_db = 1.5,2\ntarget_errors = 50\nmax_bits = 2000000\n"
+  std::ofstream(config) << "[sweep]\nebno_db = 1.5,2\nstop_bit_errors = 50\nstop_bits = 2000000\n"
                            "seed = 3\n[scheme.l]\nmodulation = bpsk\ncode = ldpc\n"
                            "length = 2016\nmax_iterations = 20\n";
   const std::string ref = (dir / "ref.h5").string(), out = (dir / "out.h5").string();
@@ -441,7 +441,7 @@ TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
     return a;
   };
   const RunOutput fresh =
-      RunCapgap(args(ref, {"--threads", "2", "--set", "sweep.target_errors=100"}), dir);
+      RunCapgap(args(ref, {"--threads", "2", "--set", "sweep.stop_bit_errors=100"}), dir);
   ASSERT_EQ(fresh.status, 0) << fresh.log;
   const RunOutput first =
       RunCapgap(args(out, {"--threads", "1", "--set", "scheme.l.memory_limit_mb=4"}), dir);
@@ -449,7 +449,7 @@ TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
   const std::string ckpt_before = test::ReadText(CheckpointPath(out));
 
   const RunOutput small = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
-                                               "sweep.target_errors=100", "--set",
+                                               "sweep.stop_bit_errors=100", "--set",
                                                "scheme.l.memory_limit_mb=4"}),
                                     dir);
   EXPECT_EQ(small.status, 1) << small.log;
@@ -459,7 +459,7 @@ TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
   EXPECT_EQ(test::ReadText(CheckpointPath(out)), ckpt_before);
 
   const RunOutput raised = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
-                                                "sweep.target_errors=100", "--set",
+                                                "sweep.stop_bit_errors=100", "--set",
                                                 "scheme.l.memory_limit_mb=64"}),
                                      dir);
   ASSERT_EQ(raised.status, 0) << raised.log;
@@ -467,7 +467,7 @@ TEST(ResumeCli, MemoryLimitMayChangeOnResume) {
   ExpectSameRecords(ReadGood(CheckpointPath(out)), ReadGood(CheckpointPath(ref)));
   // A key the table leaves fixed is still refused.
   const RunOutput iters = RunCapgap(args(out, {"--threads", "2", "--resume", "--set",
-                                               "sweep.target_errors=100", "--set",
+                                               "sweep.stop_bit_errors=100", "--set",
                                                "scheme.l.max_iterations=30"}),
                                     dir);
   EXPECT_EQ(iters.status, 1);

@@ -106,7 +106,7 @@ TEST(StopCli, SigtermDuringALongUnitExitsWith75Within2s) {
   const fs::path dir = TempDir("unit");
   const std::string config = WriteConfig(
       dir,
-      "[sweep]\nebno_db = 2\ntarget_errors = 1000000\nmax_bits = 1000000000\nseed = 1\n"
+      "[sweep]\nebno_db = 2\nstop_bit_errors = 1000000\nstop_bits = 1000000000\nseed = 1\n"
       "[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\n"
       "constraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\nunit_frames = 100000\n");
   const std::string out = (dir / "out.h5").string(), ckpt = CheckpointPath(out);
@@ -132,14 +132,14 @@ TEST(StopCli, SigtermDuringALongUnitExitsWith75Within2s) {
 }
 
 // Units of 150 frames of 1000 bits (about half a second each), six of them
-// per point (max_bits): SIGTERM after two are counted lands inside a later
+// per point (stop_bits): SIGTERM after two are counted lands inside a later
 // one. The checkpoint keeps the finished units, and --resume gives exactly
 // the uninterrupted run's counts and records.
 TEST(StopCli, SigtermMidPointKeepsFinishedUnitsAndResumeMatchesUninterrupted) {
   const fs::path dir = TempDir("mid");
   const std::string config = WriteConfig(
       dir,
-      "[sweep]\nebno_db = 2\ntarget_errors = 1000000\nmax_bits = 900000\nseed = 4\n"
+      "[sweep]\nebno_db = 2\nstop_bit_errors = 1000000\nstop_bits = 900000\nseed = 4\n"
       "checkpoint_seconds = 0.05\n"
       "[scheme.k9]\nmodulation = bpsk\ncode = conv\ngenerators = 561,753\n"
       "constraint_length = 9\ndecoder = bcjr\nframe_bits = 1000\nunit_frames = 150\n");

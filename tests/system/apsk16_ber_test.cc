@@ -29,8 +29,8 @@ TEST(Apsk16Ber, SimulationSitsJustBelowTheUnionBound) {
   for (const char* demapper : {"hard", "maxlog", "logmap"}) {
     SweepConfig sweep;
     sweep.ebno_db = {10.0, 12.0};
-    sweep.target_errors = 3000;
-    sweep.max_bits = 100000000;
+    sweep.stop_bit_errors = 3000;
+    sweep.stop_bits = 100000000;
     sweep.ber_floor = 0;
     sweep.seed = 20261205;
     SchemeConfig scheme;

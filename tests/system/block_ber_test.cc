@@ -32,7 +32,7 @@ namespace {
 
 Result<RunConfig> GolayConfig(const std::string& extra = "") {
   return ParseRunConfig(
-      "[sweep]\nebno_db = 3, 4\ntarget_errors = 3000\nmax_bits = 100000000\nseed = 31\n"
+      "[sweep]\nebno_db = 3, 4\nstop_bit_errors = 3000\nstop_bits = 100000000\nseed = 31\n"
       "[scheme.golay]\nmodulation = bpsk\ncode = block\nblock_code = golay24\n" + extra,
       "block_ber_test.ini", {});
 }
@@ -84,7 +84,7 @@ TEST(BlockBer, FileCodeGivesTheBuiltInCounts) {
   ASSERT_TRUE(WriteBlockCodeFile(dir + "/golay.txt", golay.value()).ok());
   auto built_in = GolayConfig();
   auto file = ParseRunConfig(
-      "[sweep]\nebno_db = 3\ntarget_errors = 300\nmax_bits = 10000000\nseed = 31\n"
+      "[sweep]\nebno_db = 3\nstop_bit_errors = 300\nstop_bits = 10000000\nseed = 31\n"
       "[scheme.golay]\nmodulation = bpsk\ncode = block\nblock_code = file\n"
       "generator_file = golay.txt\n",
       dir + "/cfg.ini", {});

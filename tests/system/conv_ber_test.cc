@@ -47,8 +47,8 @@ TEST(ConvBer, SoftViterbiAtOrBelowUnionBoundAt4And4Point5Db) {
   ASSERT_TRUE(chain.ok()) << chain.status().message();
   SweepConfig sweep;
   sweep.ebno_db = {4.0, 4.5};
-  sweep.target_errors = 600;
-  sweep.max_bits = 400000000;
+  sweep.stop_bit_errors = 600;
+  sweep.stop_bits = 400000000;
   sweep.seed = 11;
   const SchemeResult r = AnalyseScheme(chain.value(), sweep, {});
   ASSERT_FALSE(r.theory.ber_bound.empty());
@@ -74,8 +74,8 @@ TEST(ConvBer, ReachesTargetNear4Point2To4Point5DbWithAboutFiveDbGain) {
   ASSERT_TRUE(chain.ok());
   SweepConfig sweep;
   sweep.ebno_db = {3.5, 4.0, 4.5, 5.0};
-  sweep.target_errors = 300;
-  sweep.max_bits = 400000000;
+  sweep.stop_bit_errors = 300;
+  sweep.stop_bits = 400000000;
   sweep.ber_floor = 1e-6;
   sweep.seed = 12;
   EngineOptions eo;
@@ -95,8 +95,8 @@ TEST(ConvBer, ReachesTargetNear4Point2To4Point5DbWithAboutFiveDbGain) {
 TEST(ConvBer, HardDecisionLosesAboutTwoDb) {
   SweepConfig sweep;
   sweep.ebno_db = {5.0};
-  sweep.target_errors = 400;
-  sweep.max_bits = 400000000;
+  sweep.stop_bit_errors = 400;
+  sweep.stop_bits = 400000000;
   sweep.seed = 13;
   EngineOptions eo;
   eo.threads = 2;
@@ -117,8 +117,8 @@ TEST(ConvBer, HardDecisionLosesAboutTwoDb) {
 TEST(ConvBer, BcjrAtLeastAsGoodAsViterbiWithinInterval) {
   SweepConfig sweep;
   sweep.ebno_db = {3.0};
-  sweep.target_errors = 500;
-  sweep.max_bits = 100000000;
+  sweep.stop_bit_errors = 500;
+  sweep.stop_bits = 100000000;
   sweep.seed = 14;
   EngineOptions eo;
   eo.threads = 2;
@@ -135,8 +135,8 @@ TEST(ConvBer, CountsIdenticalForOneAndTwoThreads) {
   ASSERT_TRUE(chain.ok());
   SweepConfig sweep;
   sweep.ebno_db = {2.0, 3.0};
-  sweep.target_errors = 200;
-  sweep.max_bits = 10000000;
+  sweep.stop_bit_errors = 200;
+  sweep.stop_bits = 10000000;
   sweep.seed = 15;
   EngineOptions one, two;
   one.threads = 1;

@@ -16,11 +16,11 @@
 namespace capgap {
 namespace {
 
-PointResult Simulate(const std::string& keys, double ebno_db, std::uint64_t max_bits,
-                     std::uint64_t target_errors, Chain* chain_out = nullptr) {
+PointResult Simulate(const std::string& keys, double ebno_db, std::uint64_t stop_bits,
+                     std::uint64_t stop_bit_errors, Chain* chain_out = nullptr) {
   const std::string text = "[sweep]\nebno_db = " + std::to_string(ebno_db) +
-                           "\ntarget_errors = " + std::to_string(target_errors) +
-                           "\nmax_bits = " + std::to_string(max_bits) +
+                           "\nstop_bit_errors = " + std::to_string(stop_bit_errors) +
+                           "\nstop_bits = " + std::to_string(stop_bits) +
                            "\nseed = 11\n[scheme.s]\n" + keys;
   auto cfg = ParseRunConfig(text, "fading_ber_test", {});
   EXPECT_TRUE(cfg.ok()) << cfg.status().message();

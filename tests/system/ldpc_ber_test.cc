@@ -41,21 +41,21 @@ SchemeConfig Ldpc(const char* modulation, const char* decoder, const char* sched
   return s;
 }
 
-SweepConfig Sweep(std::uint64_t target_errors, std::uint64_t max_bits) {
+SweepConfig Sweep(std::uint64_t stop_bit_errors, std::uint64_t stop_bits) {
   SweepConfig sweep;
   sweep.ebno_db = {0};
-  sweep.target_errors = target_errors;
-  sweep.max_bits = max_bits;
+  sweep.stop_bit_errors = stop_bit_errors;
+  sweep.stop_bits = stop_bits;
   sweep.ber_floor = 0;
   sweep.seed = 11;
   return sweep;
 }
 
-PointResult RunAt(const Chain& chain, double ebno_db, std::uint64_t target_errors,
-                std::uint64_t max_bits, int threads = 2) {
+PointResult RunAt(const Chain& chain, double ebno_db, std::uint64_t stop_bit_errors,
+                std::uint64_t stop_bits, int threads = 2) {
   EngineOptions eo;
   eo.threads = threads;
-  return RunPoint(chain, Sweep(target_errors, max_bits), 0, ebno_db, eo);
+  return RunPoint(chain, Sweep(stop_bit_errors, stop_bits), 0, ebno_db, eo);
 }
 
 TEST(LdpcChain, CountsAndIterationStatisticsIdenticalForOneTwoAndThreeThreads) {

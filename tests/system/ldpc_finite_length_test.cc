@@ -85,9 +85,9 @@ TEST(LdpcFiniteLength, NoShippedCodeBeatsTheConverseOrTheNormalApproximation) {
 
     SweepConfig sweep;
     sweep.ebno_db = {x};
-    sweep.target_errors = 0;
+    sweep.stop_bit_errors = 0;
     sweep.stop_frame_errors = 200;
-    sweep.max_bits = 2000000ull * c.code().info_bits();
+    sweep.stop_bits = 2000000ull * c.code().info_bits();
     sweep.seed = 7;
     EngineOptions eo;
     eo.threads = 2;

@@ -27,16 +27,16 @@ namespace capgap {
 namespace {
 
 Result<RunConfig> PolarConfig(const std::string& keys, const std::string& points,
-                              std::uint64_t max_bits, const std::string& modulation = "qpsk") {
+                              std::uint64_t stop_bits, const std::string& modulation = "qpsk") {
   return ParseRunConfig("[sweep]\nebno_db = " + points +
-                            "\ntarget_errors = 1000000000\nmax_bits = " +
-                            std::to_string(max_bits) + "\nseed = 5\n[scheme.p]\nmodulation = " +
+                            "\nstop_bit_errors = 1000000000\nstop_bits = " +
+                            std::to_string(stop_bits) + "\nseed = 5\n[scheme.p]\nmodulation = " +
                             modulation + "\ncode = polar\n" + keys,
                         "polar_ber_test.ini", {});
 }
 
-PointResult RunPolarPoint(const std::string& keys, double ebno_db, std::uint64_t max_bits, int threads) {
-  auto cfg = PolarConfig(keys, std::to_string(ebno_db), max_bits);
+PointResult RunPolarPoint(const std::string& keys, double ebno_db, std::uint64_t stop_bits, int threads) {
+  auto cfg = PolarConfig(keys, std::to_string(ebno_db), stop_bits);
   EXPECT_TRUE(cfg.ok()) << cfg.status().message();
   auto chain = Chain::Create(cfg.value().schemes[0], cfg.value().sweep.seed);
   EXPECT_TRUE(chain.ok()) << chain.status().message();

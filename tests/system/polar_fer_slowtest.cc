@@ -23,7 +23,7 @@ namespace {
 PointResult RunPolar(const std::string& keys, double ebno_db, std::uint64_t frames) {
   auto cfg = ParseRunConfig(
       "[sweep]\nebno_db = " + std::to_string(ebno_db) +
-          "\ntarget_errors = 1000000000\nmax_bits = " + std::to_string(512 * frames) +
+          "\nstop_bit_errors = 1000000000\nstop_bits = " + std::to_string(512 * frames) +
           "\nseed = 5\n[scheme.p]\nmodulation = qpsk\ncode = polar\ninfo_bits = 512\n"
           "length = 1024\ndesign_ebno_db = 2\n" + keys,
       "polar_fer_slowtest.ini", {});

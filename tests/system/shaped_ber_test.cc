@@ -39,8 +39,8 @@ SchemeConfig Shaped(const char* modulation, double timing_offset = 0) {
 SweepConfig Sweep(std::vector<double> ebno) {
   SweepConfig sweep;
   sweep.ebno_db = std::move(ebno);
-  sweep.target_errors = 4000;
-  sweep.max_bits = 40000000;
+  sweep.stop_bit_errors = 4000;
+  sweep.stop_bits = 40000000;
   sweep.ber_floor = 0;
   sweep.seed = 77;
   return sweep;
@@ -83,7 +83,7 @@ TEST(ShapedBer, QuarterSymbolTimingOffsetRaisesBer) {
 
 TEST(ShapedBer, CountsIdenticalForOneAndTwoThreads) {
   SweepConfig sweep = Sweep({3, 6});
-  sweep.target_errors = 300;
+  sweep.stop_bit_errors = 300;
   auto chain = Chain::Create(Shaped("16qam"), 77);
   ASSERT_TRUE(chain.ok());
   EngineOptions one, two;

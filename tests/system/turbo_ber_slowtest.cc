@@ -26,7 +26,7 @@ namespace {
 PointResult Run6144(const std::string& decoder, double ebno_db, std::uint64_t frames) {
   auto cfg = ParseRunConfig(
       "[sweep]\nebno_db = " + std::to_string(ebno_db) +
-          "\ntarget_errors = 1000000000\nmax_bits = " + std::to_string(6144 * frames) +
+          "\nstop_bit_errors = 1000000000\nstop_bits = " + std::to_string(6144 * frames) +
           "\nseed = 5\n[scheme.t]\nmodulation = bpsk\ncode = turbo\nframe_bits = 6144\n"
           "max_iterations = 8\ndecoder = " + decoder + "\n",
       "turbo_ber_slowtest.ini", {});

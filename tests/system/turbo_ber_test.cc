@@ -21,7 +21,7 @@ namespace {
 Result<RunConfig> TurboConfig(const std::string& keys, const std::string& points,
                               std::uint64_t max_bits, const std::string& modulation = "qpsk") {
   return ParseRunConfig("[sweep]\nebno_db = " + points +
-                            "\ntarget_errors = 1000000000\nmax_bits = " +
+                            "\nstop_bit_errors = 1000000000\nstop_bits = " +
                             std::to_string(max_bits) + "\nseed = 5\n[scheme.t]\nmodulation = " +
                             modulation + "\ncode = turbo\n" + keys,
                         "turbo_ber_test.ini", {});

@@ -49,8 +49,8 @@ TEST(UncodedBer, EveryModulationWithin99PercentIntervalOfTheory) {
   for (const Case& c : kCases) {
     SweepConfig sweep;
     sweep.ebno_db = c.ebno_db;
-    sweep.target_errors = 4000;
-    sweep.max_bits = 40000000;
+    sweep.stop_bit_errors = 4000;
+    sweep.stop_bits = 40000000;
     sweep.ber_floor = 0;
     sweep.seed = 20261201;
     SchemeConfig scheme;
@@ -90,8 +90,8 @@ TEST(UncodedBer, EveryModulationWithin99PercentIntervalOfTheory) {
 TEST(UncodedBer, WouldDetectATwoTenthsDbScalingError) {
   SweepConfig sweep;
   sweep.ebno_db = {7};
-  sweep.target_errors = 4000;
-  sweep.max_bits = 40000000;
+  sweep.stop_bit_errors = 4000;
+  sweep.stop_bits = 40000000;
   sweep.seed = 20261201;
   SchemeConfig scheme;
   scheme.name = "power_check";

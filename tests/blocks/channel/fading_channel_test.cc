@@ -9,6 +9,8 @@
 #include <vector>
 
 #include "analysis/fading_theory.h"
+#include "blocks/kernels/dispatch.h"
+#include "blocks/kernels/fading_kernels.h"
 #include "blocks/mapping/demapper.h"
 #include "blocks/mapping/mapper.h"
 #include "blocks/mapping/modulation.h"
@@ -231,6 +233,64 @@ TEST(FadingChannel, FastDemapPathMatchesGenericMetric) {
       EXPECT_NEAR(fast[i], slow[i], 1e-4f * std::fabs(slow[i]) + 1e-3f) << i;
     }
   }
+}
+
+// The fused uncoded 16-QAM count (CountQam16Errors, fading_kernels.h) gives
+// exactly the bit errors of the composed path (Apply, the demapper's hard
+// slicer or max-log LLRs with the per-symbol N0, decisions L < 0) and leaves
+// both streams where Apply leaves them, on the dispatched target: lengths
+// around the vector widths (1, 3, 7, 8, 15, 16, 17, 31, 33) and a large odd
+// one, hard and max-log, Rayleigh and Rician, low and high SNR, 20 units each.
+TEST(FadingChannel, FusedQam16CountEqualsComposedPath) {
+  const Modulation mod = ParseModulation("16qam").value();
+  auto mapper = Mapper::Create(mod).value();
+  for (const FadingLaw law : {FadingLaw::kRayleigh, FadingLaw::kRician}) {
+    ChannelSpec spec = Spec(law, 1);
+    spec.rician_k_db = 4;
+    for (const double ebno : {2.0, 14.0}) {
+      auto ch = FadingChannel::Create(Noise(ebno, 4), spec).value();
+      if (!ch.counts_qam16()) GTEST_SKIP() << "no vector target: " << FadingKernelTarget();
+      for (const DemapMethod method : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+        auto dm = Demapper::Create(mapper, method).value();
+        const Qam16Decider d = MakeQam16Decider(mapper.pam_levels().data(),
+                                                dm.kernel_args().level_scale, 1.0f,
+                                                method == DemapMethod::kMaxLog);
+        for (const std::size_t n : {1u, 3u, 7u, 8u, 15u, 16u, 17u, 31u, 33u, 961u}) {
+          for (std::uint32_t u = 0; u < 20; ++u) {
+            std::vector<Bit> bits(4 * n), decided(4 * n);
+            RngStream bs(kKey, 9, u, Substream::kBits);
+            GenerateRandomBits(bits, bs);
+            RngStream n1(kKey, 9, u, Substream::kNoise), p1(kKey, 9, u, Substream::kFading);
+            RngStream n2 = n1, p2 = p1;
+            ChannelProcessState ps1, ps2;
+            std::vector<cf32> y(n), gain(n);
+            std::vector<float> n0(n), llrs(4 * n);
+            mapper.Map(bits, y);
+            ChannelStateView state;
+            ch.Apply(y, 1, n1, p1, ChannelStateStorage{gain, n0, &ps1}, state);
+            if (method == DemapMethod::kHard) {
+              dm.HardDecide(y, decided);
+            } else {
+              dm.Demap(y, state, llrs);
+              LlrToBits(llrs, decided);
+            }
+            std::uint64_t want = 0;
+            for (std::size_t i = 0; i < bits.size(); ++i) want += bits[i] != decided[i] ? 1u : 0u;
+            const std::uint64_t got = ch.CountQam16Errors(
+                bits.data(), n, d, n2, p2, ChannelStateStorage{gain, n0, &ps2});
+            ASSERT_EQ(got, want) << "n " << n << " unit " << u << " ebno " << ebno;
+            ASSERT_EQ(n1.counter(), n2.counter());
+            ASSERT_EQ(p1.counter(), p2.counter());
+          }
+        }
+      }
+    }
+  }
+  // Forced scalar: no fused path (the oracle's noise is double precision).
+  ForceScalarKernels(true);
+  auto ch = FadingChannel::Create(Noise(5, 4), Spec(FadingLaw::kRayleigh, 1)).value();
+  EXPECT_FALSE(ch.counts_qam16());
+  ForceScalarKernels(false);
 }
 
 }  // namespace

@@ -118,12 +118,12 @@ TEST(LdpcLimits, AbsurdHeadersAreRefusedWithoutAllocating) {
   ASSERT_FALSE(base.ok());
   EXPECT_EQ(base.status().message(), "f.txt: ends after 0 of 100000 base rows");
 
-  Result<LdpcCode> h = ReadLdpcMatrix("ldpc-matrix n 2000000000 m 1000000000\n", "f.txt");
+  Result<LdpcCode> h = ReadLdpcMatrix("parity-check columns 2000000000 rows 1000000000\n", "f.txt");
   ASSERT_FALSE(h.ok());
   EXPECT_EQ(h.status().message(),
-            "f.txt:1: n = 2000000000 columns but the check lines list 0 entries; every column "
+            "f.txt:1: columns 2000000000 but the row lines list 0 entries; every column "
             "must be in a check");
-  h = ReadLdpcMatrix("ldpc-matrix n 3 m 1000000000\n2: 0 1\n1: 2\n", "f.txt");
+  h = ReadLdpcMatrix("parity-check columns 3 rows 1000000000\n0 1\n2\n", "f.txt");
   ASSERT_FALSE(h.ok());
   EXPECT_EQ(h.status().message(), "f.txt: ends after 2 of 1000000000 check lines");
 }

@@ -41,11 +41,11 @@ TEST(LdpcMatrixFile, ReadsHandWrittenText) {
   const char* text =
       "# Hamming (7,4) parity checks\n"
       "\n"
-      "ldpc-matrix n 7 m 3   # header\n"
+      "parity-check columns 7 rows 3   # header\n"
       "description hand   written\n"
-      "4: 0 1 3 4\n"
-      "  4: 6 3 2 1   # any order\n"
-      "4:\t0 2 3 5\n";
+      "0 1 3 4\n"
+      "  6 3 2 1   # any order\n"
+      "0\t2 3 5\n";
   Result<LdpcCode> r = ReadLdpcMatrix(text, "h.txt");
   ASSERT_TRUE(r.ok()) << r.status().message();
   const LdpcCode& code = r.value();
@@ -57,22 +57,29 @@ TEST(LdpcMatrixFile, ReadsHandWrittenText) {
 }
 
 TEST(LdpcMatrixFile, DefaultDescriptionNamesTheSource) {
-  Result<LdpcCode> r = ReadLdpcMatrix("ldpc-matrix n 2 m 1\n2: 0 1\n", "x.txt");
+  Result<LdpcCode> r = ReadLdpcMatrix("parity-check columns 2 rows 1\n0 1\n", "x.txt");
   ASSERT_TRUE(r.ok()) << r.status().message();
   EXPECT_EQ(r.value().description(), "read from x.txt");
 }
 
 TEST(LdpcMatrixFile, WriterFormatIsAsDocumented) {
-  LdpcCode code = LdpcCode::FromRows(3, {{0, 2}, {2, 1, 0}}).value();
+  LdpcCode code = LdpcCode::FromRows(3, {{0, 2}, {}, {2, 1, 0}}).value();
   code.set_description("tiny # code\nsecond line");
-  EXPECT_EQ(WriteLdpcMatrix(code),
+  const std::string text = WriteLdpcMatrix(code);
+  EXPECT_EQ(text,
             "# capgap sparse parity-check matrix (format: blocks/fec/ldpc_matrix_file.h).\n"
-            "# Header 'ldpc-matrix n <N> m <M> [lifting <Z>]', optional 'description <text>',\n"
-            "# then one line per check r = 0..M-1: '<degree>: <0-based columns>'.\n"
-            "ldpc-matrix n 3 m 2\n"
+            "# Header 'parity-check columns <N> rows <M> [lifting <Z>]', optional\n"
+            "# 'description <text>', then one line per row r = 0..M-1: its 0-based column\n"
+            "# indices ('-' for an empty row).\n"
+            "parity-check columns 3 rows 3\n"
             "description tiny   code second line\n"
-            "2: 0 2\n"
-            "3: 0 1 2\n");
+            "0 2\n"
+            "-\n"
+            "0 1 2\n");
+  // The empty row reads back.
+  auto back = ReadLdpcMatrix(text, "w.txt");
+  ASSERT_TRUE(back.ok()) << back.status().message();
+  EXPECT_EQ(Rows(back.value()), (std::vector<std::vector<int>>{{0, 2}, {}, {0, 1, 2}}));
 }
 
 TEST(LdpcMatrixFile, PegCodeRoundTrips) {
@@ -91,7 +98,7 @@ TEST(LdpcMatrixFile, LiftedCodeRoundTripsWithItsLifting) {
       ReadBaseMatrixFile(CAPGAP_SOURCE_DIR "/configs/codes/qc_r1-2_24x12.txt").value();
   const LdpcCode code = LiftBaseMatrix(base, 84).value();
   const std::string text = WriteLdpcMatrix(code);
-  EXPECT_NE(text.find("ldpc-matrix n 2016 m 1008 lifting 84\n"), std::string::npos);
+  EXPECT_NE(text.find("parity-check columns 2016 rows 1008 lifting 84\n"), std::string::npos);
   Result<LdpcCode> back = ReadLdpcMatrix(text, "mem");
   ASSERT_TRUE(back.ok()) << back.status().message();
   ExpectSameCode(code, back.value());
@@ -115,29 +122,35 @@ TEST(LdpcMatrixFile, ErrorsNameSourceLineAndValue) {
   auto msg = [](const std::string& text) {
     return ReadLdpcMatrix(text, "f.txt").status().message();
   };
-  EXPECT_EQ(msg("# only a comment\n"), "f.txt: no 'ldpc-matrix' header line");
+  EXPECT_EQ(msg("# only a comment\n"), "f.txt: no 'parity-check' header line");
   EXPECT_EQ(msg("ldpc n 3 m 1\n"),
-            "f.txt:1: header 'ldpc n 3 m 1': expected 'ldpc-matrix n <N> m <M>' or "
-            "'ldpc-matrix n <N> m <M> lifting <Z>'");
-  EXPECT_EQ(msg("ldpc-matrix n x m 1\n"), "f.txt:1: n 'x': must be an integer >= 1");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 0\n"), "f.txt:1: m '0': must be an integer >= 1");
-  EXPECT_EQ(msg("ldpc-matrix n 4 m 2 lifting 3\n"),
-            "f.txt:1: lifting '3': must divide n = 4 and m = 2");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3 0 1 2\n"),
-            "f.txt:2: check 0: '3': expected the row degree '<d>:' with d >= 0");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1\n"),
-            "f.txt:2: check 0 declares 3 columns but lists 2");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 3\n"), "f.txt:2: column '3': must be in [0, 3)");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 -1\n"), "f.txt:2: column '-1': must be in [0, 3)");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 b\n"), "f.txt:2: column 'b': not an integer");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 1\n"), "f.txt:2: column '1': listed twice in check 0");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 2\n3: 0 1 2\n"), "f.txt: ends after 1 of 2 check lines");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n3: 0 1 2\n\n# c\n1: 0\n"),
-            "f.txt:5: text '1: 0' after the 1 check lines");
-  EXPECT_EQ(msg("ldpc-matrix n 3 m 1\n2: 0 2\n"), "f.txt: column 1 is in no check");
+            "f.txt:1: header 'ldpc n 3 m 1': expected 'parity-check columns <N> rows <M>' or "
+            "'parity-check columns <N> rows <M> lifting <Z>'");
+  // The format of earlier versions is refused naming the new one.
+  EXPECT_EQ(msg("# old\nldpc-matrix n 3 m 1\n3: 0 1 2\n"),
+            "f.txt:2: the 'ldpc-matrix' format (rows written '<degree>: <columns>') is no longer "
+            "read; write the header 'parity-check columns <N> rows <M> [lifting <Z>]' and each "
+            "row as its column indices only (the degree is their count, '-' for an empty row); "
+            "README, \"Sparse parity-check files\"");
+  EXPECT_EQ(msg("parity-check columns x rows 1\n"), "f.txt:1: columns 'x': must be an integer >= 1");
+  EXPECT_EQ(msg("parity-check columns 3 rows 0\n"), "f.txt:1: rows '0': must be an integer >= 1");
+  EXPECT_EQ(msg("parity-check columns 4 rows 2 lifting 3\n"),
+            "f.txt:1: lifting '3': must divide columns = 4 and rows = 2");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n3: 0 1 2\n"),
+            "f.txt:2: check 0: '3:': a row lists column indices only (the degree is their count; "
+            "no '<d>:' prefix)");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 1 3\n"), "f.txt:2: column '3': must be in [0, 3)");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 1 -1\n"), "f.txt:2: column '-1': must be in [0, 3)");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 1 b\n"), "f.txt:2: column 'b': not an integer");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n- 1\n"), "f.txt:2: column '-': not an integer");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 1 1\n"), "f.txt:2: column '1': listed twice in check 0");
+  EXPECT_EQ(msg("parity-check columns 3 rows 2\n0 1 2\n"), "f.txt: ends after 1 of 2 check lines");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 1 2\n\n# c\n0\n"),
+            "f.txt:5: text '0' after the 1 check lines");
+  EXPECT_EQ(msg("parity-check columns 3 rows 1\n0 2\n"), "f.txt: column 1 is in no check");
   // Lifting 2: checks 0 and 1 form block row 0 and may not share column 1.
   EXPECT_EQ(
-      msg("ldpc-matrix n 4 m 2 lifting 2\n2: 0 1\n3: 1 2 3\n"),
+      msg("parity-check columns 4 rows 2 lifting 2\n0 1\n1 2 3\n"),
       "f.txt:3: column '1': check 1 shares it with check 0 of the same block row (lifting 2)");
 }
 
@@ -193,7 +206,7 @@ TEST(LdpcMatrixFile, NonFilesAndHugeFilesAreRefusedWithoutReading) {
   EXPECT_EQ(base(fifo), fifo + ": is not a regular file (a FIFO)");
   EXPECT_EQ(base(dir.string()), dir.string() + ": is a directory, not a base matrix file");
   const std::string huge = (dir / "huge.txt").string();
-  { std::ofstream(huge) << "ldpc-matrix n 4 m 2\n"; }
+  { std::ofstream(huge) << "parity-check columns 4 rows 2\n"; }
   std::filesystem::resize_file(huge, kMaxLdpcMatrixFileBytes + 1);  // sparse
   EXPECT_EQ(matrix(huge), huge + ": is " + std::to_string(kMaxLdpcMatrixFileBytes + 1) +
                               " bytes; a matrix file may have at most " +
@@ -211,10 +224,10 @@ TEST(LdpcMatrixFile, AbsurdHeaderSizesAllocateNothing) {
     return r.ok() ? std::string("OK") : r.status().message();
   };
   // 2^31 - 1 columns, two listed: refused before the per-column marks exist.
-  EXPECT_EQ(msg("ldpc-matrix n 2147483647 m 1\n2: 0 1\n"),
-            "f.txt:1: n = 2147483647 columns but the check lines list 2 entries; every column "
+  EXPECT_EQ(msg("parity-check columns 2147483647 rows 1\n0 1\n"),
+            "f.txt:1: columns 2147483647 but the row lines list 2 entries; every column "
             "must be in a check");
-  EXPECT_EQ(msg("ldpc-matrix n 2 m 2147483647\n2: 0 1\n"),
+  EXPECT_EQ(msg("parity-check columns 2 rows 2147483647\n0 1\n"),
             "f.txt: ends after 1 of 2147483647 check lines");
   auto base = [](const std::string& text) {
     auto r = ParseBaseMatrix(text, "b.txt");

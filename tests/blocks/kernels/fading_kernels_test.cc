@@ -26,6 +26,38 @@ void MrcUnderTest(const float* h, const float* r, std::size_t n, std::size_t bra
                   float* z, float* n0_out) {
   FadingCombineMrcKernel(h, r, n, branches, n0, z, n0_out);
 }
+// Fused 16-QAM count and the composed path's noise step (AddComplexNoise's
+// per-target operation on given normals); the Highway scalar target has
+// neither (returns false / the all-ones sentinel).
+bool AddNoiseUnderTest(float* x, const float* z, std::size_t n, float sigma) {
+#if HWY_TARGET == HWY_SCALAR
+  (void)x, (void)z, (void)n, (void)sigma;
+  return false;
+#else
+  const hn::ScalableTag<float> df;
+  const std::size_t lanes = hn::Lanes(df);
+  const auto vs = hn::Set(df, sigma);
+  std::size_t i = 0;
+  for (; i + lanes <= n; i += lanes) {
+    hn::StoreU(awgn_detail::NoisySample(vs, hn::LoadU(df, z + i), hn::LoadU(df, x + i)), df, x + i);
+  }
+  HWY_ALIGN float xb[hn::MaxLanes(hn::ScalableTag<float>())] = {};
+  HWY_ALIGN float zb[hn::MaxLanes(hn::ScalableTag<float>())] = {};
+  for (std::size_t k = 0; i + k < n; ++k) xb[k] = x[i + k], zb[k] = z[i + k];
+  hn::Store(awgn_detail::NoisySample(vs, hn::Load(df, zb), hn::Load(df, xb)), df, xb);
+  for (std::size_t k = 0; i + k < n; ++k) x[i + k] = xb[k];
+  return true;
+#endif
+}
+std::uint64_t Qam16UnderTest(const Bit* bits, const float* g, const float* z, std::size_t n,
+                             float a, float b, float sigma, float n0, const Qam16Decider& d) {
+#if HWY_TARGET == HWY_SCALAR
+  (void)bits, (void)g, (void)z, (void)n, (void)a, (void)b, (void)sigma, (void)n0, (void)d;
+  return ~std::uint64_t{0};
+#else
+  return FadingQam16ErrorsKernel(bits, g, z, n, a, b, sigma, n0, d);
+#endif
+}
 std::size_t LanesUnderTest() { return hwy::HWY_NAMESPACE::Lanes(hwy::HWY_NAMESPACE::ScalableTag<float>()); }
 }  // namespace capgap::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -35,6 +67,8 @@ HWY_AFTER_NAMESPACE();
 
 #include "blocks/kernels/fading_kernels.h"
 #include "blocks/kernels/fading_reference.h"
+#include "blocks/mapping/demapper.h"
+#include "blocks/mapping/mapper.h"
 #include "hwy/tests/hwy_gtest.h"
 
 namespace capgap {
@@ -44,6 +78,8 @@ HWY_EXPORT(MultiplyUnderTest);
 HWY_EXPORT(EqualiseUnderTest);
 HWY_EXPORT(MrcUnderTest);
 HWY_EXPORT(LanesUnderTest);
+HWY_EXPORT(AddNoiseUnderTest);
+HWY_EXPORT(Qam16UnderTest);
 
 constexpr float kGuard = -12345.5f;
 
@@ -110,6 +146,66 @@ TEST_P(FadingKernelPerTarget, MatchesOracleBitForBit) {
         EXPECT_EQ(z_got[off + 2 * n], kGuard) << label;
         EXPECT_EQ(m_got[off + n], kGuard) << label;
         for (std::size_t i = 0; i < off; ++i) EXPECT_EQ(z_got[i], kGuard) << label;
+      }
+    }
+  }
+}
+
+// The fused uncoded 16-QAM count over one-branch fading (FadingQam16Errors)
+// on every vector target against the composed path on the same target: the
+// gain a + b g, the target's MultiplyGain, its noise operation on the same
+// normals, its EqualiseOne, then the demapper's hard slicer or max-log LLRs
+// at N0 = 1 scaled by 1 / (N0 / g), decided as L < 0. Exact counts, lengths
+// 1, 3, 7, N-1, N, N+1 (N = lanes), 1001, Rayleigh (a = 0) and Rician.
+TEST_P(FadingKernelPerTarget, FusedQam16CountEqualsComposedPath) {
+  std::mt19937 rng(777u);
+  const std::size_t lanes = HWY_DYNAMIC_DISPATCH(LanesUnderTest)();
+  const Mapper mapper = Mapper::Create(ParseModulation("16qam").value()).value();
+  std::uniform_int_distribution<int> bit(0, 1);
+  for (const DemapMethod method : {DemapMethod::kHard, DemapMethod::kMaxLog}) {
+    const Demapper dm = Demapper::Create(mapper, method).value();
+    const Qam16Decider d = MakeQam16Decider(mapper.pam_levels().data(),
+                                            dm.kernel_args().level_scale, 1.0f,
+                                            method == DemapMethod::kMaxLog);
+    for (const std::size_t n : {std::size_t{1}, std::size_t{3}, std::size_t{7},
+                                lanes - 1 + (lanes == 1), lanes, lanes + 1, std::size_t{1001}}) {
+      for (const float a : {0.0f, 0.8f}) {
+        for (const float sigma : {0.05f, 0.5f}) {
+          const float b = 0.6f, n0 = 2.0f * sigma * sigma;
+          std::vector<Bit> bits(4 * n), decided(4 * n);
+          for (Bit& x : bits) x = static_cast<Bit>(bit(rng));
+          const std::vector<float> g = Random(2 * n, rng, true), z = Random(2 * n, rng, false);
+          const std::uint64_t got =
+              HWY_DYNAMIC_DISPATCH(Qam16UnderTest)(bits.data(), g.data(), z.data(), n, a, b,
+                                                   sigma, n0, d);
+          if (got == ~std::uint64_t{0}) GTEST_SKIP() << "Highway scalar target: no fused path";
+          std::vector<cf32> x(n);
+          mapper.Map(bits, x);
+          std::vector<float> h(2 * n), y(2 * n), n0s(n), llrs(4 * n);
+          for (std::size_t i = 0; i < n; ++i) {
+            h[2 * i] = a + b * g[2 * i];
+            h[2 * i + 1] = b * g[2 * i + 1];
+          }
+          HWY_DYNAMIC_DISPATCH(MultiplyUnderTest)(h.data(), reinterpret_cast<const float*>(x.data()),
+                                                  y.data(), n);
+          ASSERT_TRUE(HWY_DYNAMIC_DISPATCH(AddNoiseUnderTest)(y.data(), z.data(), 2 * n, sigma));
+          HWY_DYNAMIC_DISPATCH(EqualiseUnderTest)(h.data(), y.data(), n0, n0s.data(), n);
+          const std::span<const cf32> ys(reinterpret_cast<const cf32*>(y.data()), n);
+          if (method == DemapMethod::kHard) {
+            dm.HardDecide(ys, decided);
+          } else {
+            dm.Demap(ys, 1.0f, llrs);
+            for (std::size_t s = 0; s < n; ++s) {
+              const float inv = 1.0f / n0s[s];
+              for (std::size_t k = 0; k < 4; ++k) llrs[4 * s + k] *= inv;
+            }
+            LlrToBits(llrs, decided);
+          }
+          std::uint64_t want = 0;
+          for (std::size_t i = 0; i < 4 * n; ++i) want += bits[i] != decided[i] ? 1u : 0u;
+          EXPECT_EQ(got, want) << "n " << n << " a " << a << " sigma " << sigma << " method "
+                               << static_cast<int>(method);
+        }
       }
     }
   }

@@ -19,7 +19,7 @@ namespace {
 
 RunConfig Config(const std::string& scheme_keys) {
   const std::string text =
-      "[sweep]\nebno_db = 2\ntarget_errors = 1000000000\nmax_bits = 1000000000\nseed = 5\n"
+      "[sweep]\nebno_db = 2\nstop_bit_errors = 1000000000\nstop_bits = 1000000000\nseed = 5\n"
       "[scheme.s]\n" + scheme_keys;
   auto r = ParseRunConfig(text, "chain_stop_test", {});
   EXPECT_TRUE(r.ok()) << r.status().message();

@@ -30,8 +30,8 @@ SchemeConfig Qpsk(PulseShape shaping) {
 SweepConfig Sweep() {
   SweepConfig sweep;
   sweep.ebno_db = {4, 6, 8};
-  sweep.target_errors = 300;
-  sweep.max_bits = 4000000;
+  sweep.stop_bit_errors = 300;
+  sweep.stop_bits = 4000000;
   sweep.ber_floor = 0;
   sweep.target_ber = 1e-3;
   sweep.seed = 3;

@@ -14,7 +14,7 @@ namespace {
 
 constexpr char kBase[] = R"(
 [sweep]
-ebno_db = 0:5:10
+ebno_db = 0 to 10 by 5
 
 [scheme.s]
 modulation = qpsk
@@ -81,9 +81,8 @@ TEST(ConfigChannel, BadValuesNameKeyValueAndRule) {
             "f.ini: scheme.s.doppler = '0.7': must be in (0, 0.5]");
   EXPECT_EQ(ErrorOf({"scheme.s.branches=0"}),
             "f.ini: scheme.s.branches = '0': must be an integer in [1, 64]");
-  EXPECT_EQ(ErrorOf({"scheme.s.channel=nakagami", "scheme.s.fading=doppler"}),
-            "f.ini: scheme.s.fading = 'doppler': doppler needs channel = rayleigh or rician "
-            "(Nakagami-m has no sum-of-sinusoids process); valid with nakagami: fast, block");
+  // Nakagami-m with Doppler: the mapped Rayleigh process (fading_process.h).
+  EXPECT_EQ(ErrorOf({"scheme.s.channel=nakagami", "scheme.s.fading=doppler"}), "OK");
   EXPECT_EQ(ErrorOf({"scheme.s.fading=block"}),
             "f.ini: scheme.s.fading applies only with channel = rayleigh or rician or nakagami (this "
             "scheme has channel = awgn)");
@@ -93,9 +92,11 @@ TEST(ConfigChannel, RefusedCombinations) {
   EXPECT_EQ(ErrorOf({"scheme.s.interleaver=random"}),
             "f.ini: scheme.s.interleaver = 'random': applies to coded schemes only (this scheme "
             "has code = none); use interleaver = none");
-  EXPECT_EQ(ErrorOf({"scheme.s.channel=rayleigh", "scheme.s.shaping=rrc"}),
-            "f.ini: scheme.s.shaping = 'rrc': fading and receive diversity run at one sample per "
-            "symbol; use shaping = none with channel = rayleigh (branches = 1)");
+  EXPECT_EQ(ErrorOf({"scheme.s.channel=rayleigh", "scheme.s.branches=2", "scheme.s.shaping=rrc"}),
+            "f.ini: scheme.s.shaping = 'rrc': receive diversity runs at one sample per symbol; "
+            "use shaping = none with branches = 2, or branches = 1 with shaping");
+  // Shaped chains fade at the symbol rate with one branch.
+  EXPECT_EQ(ErrorOf({"scheme.s.channel=rayleigh", "scheme.s.shaping=rrc"}), "OK");
   EXPECT_EQ(ErrorOf({"scheme.s.code=conv", "scheme.s.interleaver=random",
                      "scheme.s.interleaver_frames=4", "scheme.s.unit_frames=6"}),
             "f.ini: scheme.s.unit_frames = '6': must be a multiple of interleaver_frames = 4 (an "

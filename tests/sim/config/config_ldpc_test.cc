@@ -11,7 +11,7 @@ namespace capgap {
 namespace {
 
 std::string Scheme(const std::string& extra) {
-  return "[sweep]\nebno_db = 0:1:2\n\n[scheme.a]\nmodulation = qpsk\ncode = ldpc\n" + extra;
+  return "[sweep]\nebno_db = 0 to 2 by 1\n\n[scheme.a]\nmodulation = qpsk\ncode = ldpc\n" + extra;
 }
 
 std::string ErrorOf(const std::string& text) {
@@ -108,7 +108,7 @@ TEST(ConfigLdpc, BadValuesNameKeyValueAndRule) {
 // at least one error target per scheme.
 TEST(ConfigLdpc, FrameTargetsHaveSchemeOverridesAndOneErrorTargetIsRequired) {
   const std::string text =
-      "[sweep]\nebno_db = 0:2:10\nstop_frame_errors = 50\ntarget_fer = 1e-3\n"
+      "[sweep]\nebno_db = 0 to 10 by 2\nstop_frame_errors = 50\ntarget_fer = 1e-3\n"
       "[scheme.u]\nmodulation = qpsk\n"
       "[scheme.c]\nmodulation = qpsk\ncode = ldpc\nstop_frame_errors = 200\ntarget_fer = 1e-2\n";
   auto r = ParseRunConfig(text, "t.ini", {});
@@ -117,17 +117,17 @@ TEST(ConfigLdpc, FrameTargetsHaveSchemeOverridesAndOneErrorTargetIsRequired) {
   EXPECT_EQ(r.value().SweepFor(0).target_fer, 1e-3);
   EXPECT_EQ(r.value().SweepFor(1).stop_frame_errors, 200u);
   EXPECT_EQ(r.value().SweepFor(1).target_fer, 1e-2);
-  EXPECT_EQ(r.value().SweepFor(1).target_errors, 100u);  // default kept
+  EXPECT_EQ(r.value().SweepFor(1).stop_bit_errors, 116u);  // default kept
   // Defaults: no frame target, target_fer 1e-4.
   auto d = ParseRunConfig("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\n", "t.ini", {});
   ASSERT_TRUE(d.ok());
   EXPECT_EQ(d.value().SweepFor(0).stop_frame_errors, 0u);
   EXPECT_EQ(d.value().SweepFor(0).target_fer, 1e-4);
-  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\ntarget_errors = 0\n[scheme.a]\nmodulation = qpsk\n"),
-            "dir/test.ini: sweep.target_errors = '0' and no stop_frame_errors for scheme a: a "
-            "point needs an error target (set sweep.target_errors >= 1 or stop_frame_errors in "
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\nstop_bit_errors = 0\n[scheme.a]\nmodulation = qpsk\n"),
+            "dir/test.ini: sweep.stop_bit_errors = '0' and no stop_frame_errors for scheme a: a "
+            "point needs an error target (set sweep.stop_bit_errors >= 1 or stop_frame_errors in "
             "[sweep] or [scheme.a])");
-  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\ntarget_errors = 0\n[scheme.a]\nmodulation = qpsk\n"
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\nstop_bit_errors = 0\n[scheme.a]\nmodulation = qpsk\n"
                     "stop_frame_errors = 10\n"),
             "OK");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\nstop_frame_errors = 0\n[scheme.a]\nmodulation = qpsk\n"),
@@ -141,19 +141,19 @@ TEST(ConfigLdpc, FrameTargetsHaveSchemeOverridesAndOneErrorTargetIsRequired) {
 // sweep's, and the resolved text does not list it.
 TEST(ConfigLdpc, SchemeMaySweepItsOwnPoints) {
   const std::string text =
-      "[sweep]\nebno_db = 0:2:10\n[scheme.u]\nmodulation = qpsk\n"
-      "[scheme.c]\nmodulation = qpsk\ncode = ldpc\nebno_db = 1:0.25:2\n";
+      "[sweep]\nebno_db = 0 to 10 by 2\n[scheme.u]\nmodulation = qpsk\n"
+      "[scheme.c]\nmodulation = qpsk\ncode = ldpc\nebno_db = 1 to 2 by 0.25\n";
   auto r = ParseRunConfig(text, "t.ini", {});
   ASSERT_TRUE(r.ok()) << r.status().message();
   EXPECT_EQ(r.value().schemes[0].ebno_db, (std::vector<double>{0, 2, 4, 6, 8, 10}));
   EXPECT_EQ(r.value().schemes[1].ebno_db, (std::vector<double>{1, 1.25, 1.5, 1.75, 2}));
   EXPECT_EQ(r.value().SweepFor(1).ebno_db, r.value().schemes[1].ebno_db);
-  EXPECT_EQ(r.value().SweepFor(1).target_errors, r.value().sweep.target_errors);
+  EXPECT_EQ(r.value().SweepFor(1).stop_bit_errors, r.value().sweep.stop_bit_errors);
   const std::string resolved = r.value().ResolvedText();
   EXPECT_EQ(resolved.find("[scheme.u]\nmodulation = qpsk\nebno_db"), std::string::npos);
-  EXPECT_NE(resolved.find("ebno_db = 1:0.25:2"), std::string::npos);
-  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\nebno_db = 3:1:2\n"),
-            "dir/test.ini: scheme.a.ebno_db = '3:1:2': STOP must be >= START");
+  EXPECT_NE(resolved.find("ebno_db = 1 to 2 by 0.25"), std::string::npos);
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\nebno_db = 3 to 2 by 1\n"),
+            "dir/test.ini: scheme.a.ebno_db = '3 to 2 by 1': TO must be >= FROM");
 }
 
 }  // namespace

@@ -2,6 +2,7 @@
 // value and the rule (exact message checks), and defaults resolve.
 #include "sim/config/config.h"
 
+#include <boost/math/distributions/beta.hpp>
 #include <gtest/gtest.h>
 
 #include "sim/chain/registry.h"
@@ -13,8 +14,8 @@ namespace {
 
 constexpr char kGood[] = R"(
 [sweep]
-ebno_db = 0:2:8
-target_errors = 200
+ebno_db = 0 to 8 by 2
+stop_bit_errors = 200
 seed = 7
 
 [scheme.qpsk]
@@ -36,9 +37,9 @@ TEST(Config, ParsesSweepAndSchemesInFileOrder) {
   ASSERT_TRUE(r.ok()) << r.status().message();
   const RunConfig& c = r.value();
   EXPECT_EQ(c.sweep.ebno_db, (std::vector<double>{0, 2, 4, 6, 8}));
-  EXPECT_EQ(c.sweep.target_errors, 200u);
+  EXPECT_EQ(c.sweep.stop_bit_errors, 200u);
   EXPECT_EQ(c.sweep.seed, 7u);
-  EXPECT_EQ(c.sweep.max_bits, 100000000u);  // default
+  EXPECT_EQ(c.sweep.stop_bits, 30000000u);  // default
   ASSERT_EQ(c.schemes.size(), 2u);
   EXPECT_EQ(c.schemes[0].name, "qpsk");
   EXPECT_EQ(c.schemes[0].frame_bits, 1000u);
@@ -49,9 +50,9 @@ TEST(Config, ParsesSweepAndSchemesInFileOrder) {
 
 TEST(Config, OverridesApplyBeforeValidation) {
   auto r = ParseRunConfig(kGood, "test.ini",
-                          {"sweep.target_errors=50", "scheme.q16.frame_bits=400"});
+                          {"sweep.stop_bit_errors=50", "scheme.q16.frame_bits=400"});
   ASSERT_TRUE(r.ok()) << r.status().message();
-  EXPECT_EQ(r.value().sweep.target_errors, 50u);
+  EXPECT_EQ(r.value().sweep.stop_bit_errors, 50u);
   EXPECT_EQ(r.value().schemes[1].frame_bits, 400u);
 }
 
@@ -66,15 +67,15 @@ TEST(Config, ResolvedTextRoundTrips) {
 }
 
 TEST(Config, BadValuesNameFileKeyValueAndRule) {
-  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=-3"}),
-            "test.ini: sweep.target_errors = '-3': must be an integer >= 0 (0: no bit-error target)");
-  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=abc"}),
-            "test.ini: sweep.target_errors = 'abc': not an integer; must be an integer >= 0 (0: no bit-error target)");
-  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:0:4"}),
-            "test.ini: sweep.ebno_db = '0:0:4': STEP must be > 0");
-  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0:1"}),
-            "test.ini: sweep.ebno_db = '0:1': expected START:STEP:STOP (numbers, in dB) or a "
-            "comma list");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.stop_bit_errors=-3"}),
+            "test.ini: sweep.stop_bit_errors = '-3': must be an integer >= 0 (0: no bit-error target)");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.stop_bit_errors=abc"}),
+            "test.ini: sweep.stop_bit_errors = 'abc': not an integer; must be an integer >= 0 (0: no bit-error target)");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0 to 4 by 0"}),
+            "test.ini: sweep.ebno_db = '0 to 4 by 0': STEP must be > 0");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.ebno_db=0 to 4"}),
+            "test.ini: sweep.ebno_db = '0 to 4': expected FROM to TO by STEP (numbers, in dB, "
+            "e.g. '0 to 12 by 0.5') or a comma list");
   EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.frame_bits=999"}),
             "test.ini: scheme.qpsk.frame_bits = '999': must be a multiple of 2 (bits per symbol "
             "of qpsk)");
@@ -105,12 +106,12 @@ TEST(Config, UnknownKeysAndSectionsAreRejected) {
             "test.ini: unknown key '--set sweep.targets'; 'capgap run --help' lists the [sweep] "
             "keys");
   EXPECT_EQ(ErrorOf(kGood, {"sweep.seed"}),
-            "--set 'sweep.seed': expected KEY=VALUE, e.g. sweep.target_errors=500");
+            "--set 'sweep.seed': expected KEY=VALUE, e.g. sweep.stop_bit_errors=500");
 }
 
 TEST(Config, MissingRequiredKeysAreNamed) {
   EXPECT_EQ(ErrorOf("[scheme.a]\nmodulation = bpsk\n"),
-            "test.ini: missing required key 'sweep.ebno_db' (START:STEP:STOP (inclusive) or a "
+            "test.ini: missing required key 'sweep.ebno_db' (FROM to TO by STEP (inclusive) or a "
             "comma list, in dB)");
   EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n"),
             "test.ini: no [scheme.NAME] section; at least one scheme is required");
@@ -174,14 +175,115 @@ TEST(Config, DuplicateKeysAreRejected) {
 }
 
 TEST(ParseDbList, AcceptsInclusiveRangesAndLists) {
-  auto r = ParseDbList("0:0.1:0.3", "x");
+  auto r = ParseDbList("0 to 0.3 by 0.1", "x");
   ASSERT_TRUE(r.ok());
   EXPECT_EQ(r.value(), (std::vector<double>{0, 0.1, 0.2, 0.3}));
   auto l = ParseDbList(" 1, 2.5 ,4", "x");
   ASSERT_TRUE(l.ok());
   EXPECT_EQ(l.value(), (std::vector<double>{1, 2.5, 4}));
   EXPECT_EQ(ParseDbList("3,2", "x").status().message(), "x = '3,2': points must increase");
-  EXPECT_EQ(ParseDbList("4:1:2", "x").status().message(), "x = '4:1:2': STOP must be >= START");
+  EXPECT_EQ(ParseDbList("4 to 2 by 1", "x").status().message(), "x = '4 to 2 by 1': TO must be >= FROM");
+}
+
+// TO is included when it lies on the grid although the division that counts
+// the steps is inexact in binary floating point: 1 / 0.1 = 9.999999999999998
+// and 0.3 / 0.1 = 2.9999999999999996 in IEEE 754 double (evaluated in Python).
+TEST(ParseDbList, RangeIncludesItsEndDespiteRounding) {
+  auto a = ParseDbList("0 to 1 by 0.1", "x");
+  ASSERT_TRUE(a.ok());
+  ASSERT_EQ(a.value().size(), 11u);
+  EXPECT_EQ(a.value().back(), 1.0);
+  EXPECT_EQ(a.value()[3], 0.3);
+  auto b = ParseDbList("0 to 12 by 0.5", "x");
+  ASSERT_TRUE(b.ok());
+  ASSERT_EQ(b.value().size(), 25u);
+  EXPECT_EQ(b.value().front(), 0.0);
+  EXPECT_EQ(b.value().back(), 12.0);
+  auto c = ParseDbList("-3 to 0.3 by 0.1", "x");
+  ASSERT_TRUE(c.ok());
+  ASSERT_EQ(c.value().size(), 34u);
+  EXPECT_EQ(c.value().back(), 0.3);
+  // An end off the grid is not reached: 0, 0.4, 0.8 (1.2 > 1).
+  auto d = ParseDbList("0 to 1 by 0.4", "x");
+  ASSERT_TRUE(d.ok());
+  EXPECT_EQ(d.value(), (std::vector<double>{0, 0.4, 0.8}));
+  auto e = ParseDbList("  2   to 2 by 1 ", "x");
+  ASSERT_TRUE(e.ok());
+  EXPECT_EQ(e.value(), (std::vector<double>{2}));
+}
+
+TEST(ParseDbList, MalformedRangesAreRefusedWithTheForm) {
+  const std::string form =
+      ": expected FROM to TO by STEP (numbers, in dB, e.g. '0 to 12 by 0.5') or a comma list";
+  EXPECT_EQ(ParseDbList("0 to 4 step 1", "x").status().message(), "x = '0 to 4 step 1'" + form);
+  EXPECT_EQ(ParseDbList("0 to 4 by", "x").status().message(), "x = '0 to 4 by'" + form);
+  EXPECT_EQ(ParseDbList("a to 4 by 1", "x").status().message(), "x = 'a to 4 by 1'" + form);
+  EXPECT_EQ(ParseDbList("0 to 4 by -1", "x").status().message(),
+            "x = '0 to 4 by -1': STEP must be > 0");
+  EXPECT_EQ(ParseDbList("0 to 1e9 by 1e-3", "x").status().message(),
+            "x = '0 to 1e9 by 1e-3': more than 10000 points");
+}
+
+TEST(ParseDbList, ColonFormIsRefusedShowingTheNewForm) {
+  EXPECT_EQ(ParseDbList("0:0.5:12", "sweep.ebno_db").status().message(),
+            "sweep.ebno_db = '0:0.5:12': the START:STEP:STOP form is no longer accepted; write a "
+            "range as FROM to TO by STEP (inclusive), here '0 to 12 by 0.5', or a comma list");
+  EXPECT_EQ(ParseDbList("0:1", "x").status().message(),
+            "x = '0:1': the START:STEP:STOP form is no longer accepted; write a range as FROM to "
+            "TO by STEP (inclusive), here 'FROM to TO by STEP', or a comma list");
+}
+
+TEST(Config, RenamedKeysAreRefusedNamingTheNewKey) {
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\ntarget_errors = 100\n[scheme.a]\nmodulation = bpsk\n"),
+            "test.ini: key 'sweep.target_errors' was renamed: write 'sweep.stop_bit_errors' (same "
+            "meaning)");
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\nmax_bits = 1000\n[scheme.a]\nmodulation = bpsk\n"),
+            "test.ini: key 'sweep.max_bits' was renamed: write 'sweep.stop_bits' (same meaning)");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.target_errors=500"}),
+            "test.ini: key '--set sweep.target_errors' was renamed: write 'sweep.stop_bit_errors' "
+            "(same meaning)");
+  EXPECT_EQ(ErrorOf(kGood, {"sweep.max_bits=500"}),
+            "test.ini: key '--set sweep.max_bits' was renamed: write 'sweep.stop_bits' (same "
+            "meaning)");
+  // Placed in a scheme section, where neither key ever was, the message
+  // still points at the new [sweep] key.
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 1\n[scheme.a]\nmodulation = bpsk\nmax_bits = 5\n"),
+            "test.ini: key 'scheme.a.max_bits' was renamed: write 'sweep.stop_bits' (same "
+            "meaning)");
+}
+
+// The defaults of the stopping keys follow from the statistics (README,
+// "Stopping a point"); the interval edges are computed here with Boost.Math's
+// beta distribution (Clopper-Pearson: C. J. Clopper and E. S. Pearson,
+// Biometrika 26(4), 1934), independent of sim/engine/stats.
+TEST(ConfigDefaults, StopBitErrorsIsTheFewestErrorsWithin20PercentAt95Percent) {
+  auto cfg = ParseRunConfig("[sweep]\nebno_db = 1\n[scheme.a]\nmodulation = bpsk\n", "d.ini", {});
+  ASSERT_TRUE(cfg.ok()) << cfg.status().message();
+  const double n = 1e9;  // bits; BER k/n is small, as at every point of interest
+  std::uint64_t fewest = 0;
+  for (std::uint64_t k = 1; k < 1000 && fewest == 0; ++k) {
+    const double kd = static_cast<double>(k);
+    const double low = boost::math::quantile(boost::math::beta_distribution<>(kd, n - kd + 1), 0.025);
+    const double high = boost::math::quantile(boost::math::beta_distribution<>(kd + 1, n - kd), 0.975);
+    if (high * n / kd - 1 <= 0.2 && 1 - low * n / kd <= 0.2) fewest = k;
+  }
+  EXPECT_EQ(fewest, 116u);  // the upper edge is the binding one: +21.6 % at 100 errors
+  EXPECT_EQ(cfg.value().sweep.stop_bit_errors, fewest);
+}
+
+TEST(ConfigDefaults, StopBitsWithoutErrorsBoundsTheBerBelowTheFloor) {
+  auto cfg = ParseRunConfig("[sweep]\nebno_db = 1\n[scheme.a]\nmodulation = bpsk\n", "d.ini", {});
+  ASSERT_TRUE(cfg.ok()) << cfg.status().message();
+  const SweepConfig& s = cfg.value().sweep;
+  // One-sided 95 % Clopper-Pearson upper bound with 0 errors in n bits:
+  // 1 - 0.05^(1/n) (about 3/n, the "rule of three", common practice).
+  const auto upper = [](double n) {
+    return boost::math::quantile(boost::math::beta_distribution<>(1, n), 0.95);
+  };
+  const double n = static_cast<double>(s.stop_bits);
+  EXPECT_LE(upper(n), s.ber_floor);
+  EXPECT_GT(upper(0.99 * n), s.ber_floor);  // and not much more than needed
+  EXPECT_EQ(s.ber_floor, 1e-7);
 }
 
 TEST(Config, MissingFileIsReported) {

@@ -46,7 +46,7 @@ class TempDir {
 
 TEST(ParseIni, KeepsSectionsKeysValuesAndLinesInFileOrder) {
   auto r = ParseIni(
-      "# head\n[sweep]\nebno_db = 0:1:4  # comment\n\n[scheme.a]\n  modulation=qpsk\n"
+      "# head\n[sweep]\nebno_db = 0 to 4 by 1  # comment\n\n[scheme.a]\n  modulation=qpsk\n"
       "empty =\n",
       "t.ini");
   ASSERT_TRUE(r.ok()) << r.status().message();
@@ -56,7 +56,7 @@ TEST(ParseIni, KeepsSectionsKeysValuesAndLinesInFileOrder) {
   EXPECT_EQ(s[0].line, 2);
   ASSERT_EQ(s[0].entries.size(), 1u);
   EXPECT_EQ(s[0].entries[0].key, "ebno_db");
-  EXPECT_EQ(s[0].entries[0].value, "0:1:4");
+  EXPECT_EQ(s[0].entries[0].value, "0 to 4 by 1");
   EXPECT_EQ(s[0].entries[0].line, 3);
   EXPECT_EQ(s[1].name, "scheme.a");
   ASSERT_EQ(s[1].entries.size(), 2u);

@@ -143,7 +143,7 @@ TEST(KeyTable, NamesAndHelpComeFromTheSameTables) {
 
 // ------------------------------------------------------- the scheme tables
 
-constexpr char kBase[] = "[sweep]\nebno_db = 0:1:2\n[scheme.q]\nmodulation = qpsk\n";
+constexpr char kBase[] = "[sweep]\nebno_db = 0 to 2 by 1\n[scheme.q]\nmodulation = qpsk\n";
 
 std::string ErrorOf(const std::string& text, const std::vector<std::string>& overrides = {}) {
   auto r = ParseRunConfig(text, "cfg.ini", overrides);
@@ -164,18 +164,18 @@ TEST(SchemeKeys, SeedKeepsEvery64BitIntegerExactly) {
 }
 
 TEST(SchemeKeys, IntegersAreDecimalDigitsAndNumbersDecimalNotation) {
-  EXPECT_EQ(ErrorOf(kBase, {"sweep.target_errors=1e3"}),
-            "cfg.ini: sweep.target_errors = '1e3': not an integer (decimal digits only, no point "
+  EXPECT_EQ(ErrorOf(kBase, {"sweep.stop_bit_errors=1e3"}),
+            "cfg.ini: sweep.stop_bit_errors = '1e3': not an integer (decimal digits only, no point "
             "or exponent); must be an integer >= 0 (0: no bit-error target)");
   EXPECT_EQ(ErrorOf(kBase, {"sweep.ebno_db=0x10"}),
             "cfg.ini: sweep.ebno_db = '0x10': not a decimal number (no hexadecimal); expected "
-            "START:STEP:STOP or a comma list");
+            "FROM to TO by STEP or a comma list");
   EXPECT_EQ(ErrorOf(kBase, {"sweep.ebno_db=1,0x10"}),
             "cfg.ini: sweep.ebno_db = '1,0x10': '0x10' is not a decimal number (no hexadecimal); "
-            "expected START:STEP:STOP or a comma list");
+            "expected FROM to TO by STEP or a comma list");
   EXPECT_EQ(ErrorOf(kBase, {"scheme.q.ebno_db=1,inf"}),
             "cfg.ini: scheme.q.ebno_db = '1,inf': 'inf' is not a finite number; expected "
-            "START:STEP:STOP or a comma list");
+            "FROM to TO by STEP or a comma list");
   EXPECT_EQ(
       ErrorOf(kBase, {"sweep.ber_floor=0x1p-3"}),
       "cfg.ini: sweep.ber_floor = '0x1p-3': not a decimal number (no hexadecimal); must be in "
@@ -204,7 +204,7 @@ TEST(SchemeKeys, HugeAndBinaryValuesAreEchoedShortenedAndEscaped) {
                    ": not a modulation; valid: " + ConstellationChoices());
   const std::string c = ErrorOf(kBase, {"sweep.ebno_db=" + huge});
   EXPECT_EQ(c, "cfg.ini: sweep.ebno_db = '\\x01\\xFF" + tail +
-                   ": not a number; expected START:STEP:STOP or a comma list");
+                   ": not a number; expected FROM to TO by STEP or a comma list");
   EXPECT_LT(c.size(), 300u);
   const std::string d = ErrorOf(kBase, {"scheme.q." + huge + "=1"});
   // The echoed key is shortened and escaped; no key is near it, so the
@@ -240,15 +240,15 @@ TEST(SchemeKeys, ResumeChangeableKeysAreMarkedInTheTables) {
   EXPECT_EQ(rule(SchemeKeyTables(), "frame_bits"), OnResume::kFixed);
   EXPECT_EQ(rule(SchemeKeyTables(), "max_iterations"), OnResume::kFixed);
   EXPECT_EQ(rule(SweepKeyTables(), "threads"), OnResume::kFree);
-  EXPECT_EQ(rule(SweepKeyTables(), "target_errors"), OnResume::kErrorTarget);
+  EXPECT_EQ(rule(SweepKeyTables(), "stop_bit_errors"), OnResume::kErrorTarget);
   EXPECT_EQ(rule(SweepKeyTables(), "stop_frame_errors"), OnResume::kErrorTarget);
   EXPECT_EQ(rule(SchemeKeyTables(), "stop_frame_errors"), OnResume::kErrorTarget);
   EXPECT_EQ(rule(SweepKeyTables(), "target_fer"), OnResume::kFree);
-  EXPECT_EQ(rule(SweepKeyTables(), "max_bits"), OnResume::kMayGrow);
+  EXPECT_EQ(rule(SweepKeyTables(), "stop_bits"), OnResume::kMayGrow);
   EXPECT_EQ(rule(SweepKeyTables(), "seed"), OnResume::kFixed);
   const std::string help = ConfigKeysHelp();
   EXPECT_NE(help.find("larger, in MiB [may change on --resume]\n"), std::string::npos) << help;
-  EXPECT_NE(help.find("information bits that end a point [may only grow on --resume]\n"),
+  EXPECT_NE(help.find("below the default ber_floor 1e-7) [may only grow on --resume]\n"),
             std::string::npos)
       << help;
   EXPECT_NE(help.find("either target is reached [may only grow or be removed on --resume]\n"),

@@ -12,11 +12,11 @@ namespace capgap {
 namespace {
 
 RunConfig MakeConfig(const std::string& modulation, const std::string& demapper,
-                     const std::string& ebno, std::uint64_t target_errors,
-                     std::uint64_t max_bits, const std::string& extra = "") {
+                     const std::string& ebno, std::uint64_t stop_bit_errors,
+                     std::uint64_t stop_bits, const std::string& extra = "") {
   const std::string text = "[sweep]\nebno_db = " + ebno +
-                           "\ntarget_errors = " + std::to_string(target_errors) +
-                           "\nmax_bits = " + std::to_string(max_bits) +
+                           "\nstop_bit_errors = " + std::to_string(stop_bit_errors) +
+                           "\nstop_bits = " + std::to_string(stop_bits) +
                            "\nseed = 42\n[scheme.s]\nmodulation = " + modulation +
                            "\ndemapper = " + demapper + "\nframe_bits = 480\nunit_frames = 4\n" +
                            extra;
@@ -44,7 +44,7 @@ void ExpectSameCounts(const std::vector<PointResult>& a, const std::vector<Point
 
 TEST(Engine, CountsAreIdenticalForOneTwoAndThreeThreads) {
   for (const char* mod : {"bpsk", "16qam", "8psk"}) {
-    const RunConfig cfg = MakeConfig(mod, "maxlog", "2:2:6", 300, 2000000);
+    const RunConfig cfg = MakeConfig(mod, "maxlog", "2 to 6 by 2", 300, 2000000);
     const auto one = RunAll(cfg, 1);
     ExpectSameCounts(one, RunAll(cfg, 2));
     ExpectSameCounts(one, RunAll(cfg, 3));
@@ -63,16 +63,16 @@ TEST(Engine, SameSeedSameCountsDifferentSeedDifferentCounts) {
   EXPECT_NE(a[0].counts.bit_errors, b[0].counts.bit_errors);
 }
 
-// The point stops at the first unit whose prefix reaches target_errors: the
+// The point stops at the first unit whose prefix reaches stop_bit_errors: the
 // prefix without its last unit must still be below the target.
-TEST(Engine, StopsAtFirstPrefixReachingTargetErrors) {
+TEST(Engine, StopsAtFirstPrefixReachingStopBitErrors) {
   const RunConfig cfg = MakeConfig("qpsk", "maxlog", "3", 500, 100000000);
   auto chain = Chain::Create(cfg.schemes[0], cfg.sweep.seed);
   ASSERT_TRUE(chain.ok());
   EngineOptions eo;
   eo.threads = 2;
   const PointResult r = RunPoint(chain.value(), cfg.sweep, 0, 3.0, eo);
-  EXPECT_EQ(r.stop_reason, StopReason::kTargetErrors);
+  EXPECT_EQ(r.stop_reason, StopReason::kStopBitErrors);
   EXPECT_GE(r.counts.bit_errors, 500u);
   // Recompute the prefix serially, unit by unit.
   NoiseSpec spec;
@@ -91,21 +91,21 @@ TEST(Engine, StopsAtFirstPrefixReachingTargetErrors) {
   EXPECT_EQ(r.counts.frames, r.units * 4u);
 }
 
-TEST(Engine, StopsAtMaxBitsAndSweepEndsAfterAnErrorFreePoint) {
+TEST(Engine, StopsAtStopBitsAndSweepEndsAfterAnErrorFreePoint) {
   // QPSK at 20 dB: Q(sqrt(200)) ~ 1e-45 (same formula; arithmetic), so no
   // error in 1e5 bits; the sweep must stop there.
   const RunConfig cfg = MakeConfig("qpsk", "hard", "0,20,25", 1000000, 100000);
   const auto points = RunAll(cfg, 2);
   ASSERT_EQ(points.size(), 2u);
-  EXPECT_EQ(points[0].stop_reason, StopReason::kMaxBits);
-  EXPECT_EQ(points[1].stop_reason, StopReason::kMaxBits);
+  EXPECT_EQ(points[0].stop_reason, StopReason::kStopBits);
+  EXPECT_EQ(points[1].stop_reason, StopReason::kStopBits);
   EXPECT_EQ(points[1].counts.bit_errors, 0u);
   EXPECT_GE(points[1].counts.bits, 100000u);
   EXPECT_LT(points[1].counts.bits, 100000u + 4u * 480u);
 }
 
 TEST(Engine, SweepEndsAfterFirstPointBelowBerFloor) {
-  RunConfig cfg = MakeConfig("bpsk", "hard", "0:2:10", 50, 2000000);
+  RunConfig cfg = MakeConfig("bpsk", "hard", "0 to 10 by 2", 50, 2000000);
   // BPSK Pb = Q(sqrt(2 Eb/N0)): 7.9e-2 at 0 dB, 1.25e-2 at 4 dB, 2.4e-3 at 6 dB
   // (Proakis & Salehi, Digital Communications, 5th ed., ch. 4; evaluated with
   // scipy.special.erfc), so the first point below 1e-2 is 6 dB.
@@ -120,8 +120,8 @@ TEST(Engine, SweepEndsAfterFirstPointBelowBerFloor) {
 // 480-bit frames: Pb = Q(sqrt(2 Eb/N0)) = 7.7e-4 (Proakis & Salehi, 5th ed.,
 // ch. 4; evaluated with scipy.special.erfc), so a frame is in error with
 // probability 1 - (1 - Pb)^480 ~ 0.31 and 150 frame errors take ~480 frames.
-RunConfig FrameTargetConfig(std::uint64_t target_errors, std::uint64_t stop_frame_errors) {
-  return MakeConfig("qpsk", "maxlog", "6,7", target_errors, 100000000,
+RunConfig FrameTargetConfig(std::uint64_t stop_bit_errors, std::uint64_t stop_frame_errors) {
+  return MakeConfig("qpsk", "maxlog", "6,7", stop_bit_errors, 100000000,
                     "stop_frame_errors = " + std::to_string(stop_frame_errors) + "\n");
 }
 
@@ -153,7 +153,7 @@ TEST(Engine, EitherTargetEndsThePointWhicheverComesFirst) {
   // Bit errors first: 40 bit errors come before 10^6 frame errors.
   const RunConfig bits_first = FrameTargetConfig(40, 1000000);
   const PointResult b = RunPoint(chain.value(), bits_first.SweepFor(0), 0, 7.0, eo);
-  EXPECT_EQ(b.stop_reason, StopReason::kTargetErrors);
+  EXPECT_EQ(b.stop_reason, StopReason::kStopBitErrors);
   EXPECT_GE(b.counts.bit_errors, 40u);
   EXPECT_LT(b.counts.frame_errors, 40u);
   // The deciding unit is the first at which either holds: without it, neither.

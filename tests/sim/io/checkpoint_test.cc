@@ -48,7 +48,7 @@ UnitCounts DistinctCounts(std::uint64_t p) {
 }
 
 const char kConfig[] =
-    "[sweep]\nebno_db = 0:1:4\ntarget_errors = 100\nmax_bits = 1000000\nseed = 7\n"
+    "[sweep]\nebno_db = 0 to 4 by 1\nstop_bit_errors = 100\nstop_bits = 1000000\nseed = 7\n"
     "[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n"
     "[scheme.q16]\nmodulation = 16qam\nframe_bits = 960\n";
 
@@ -74,7 +74,7 @@ Checkpoint MakeCheckpoint(std::size_t points_per_scheme = 3) {
       p.units = static_cast<std::uint32_t>(10 * i + 3);
       p.counts = DistinctCounts(i + 1);
       p.finished = i + 1 < points_per_scheme;
-      p.stop_reason = p.finished ? (i % 2 ? StopReason::kMaxBits : StopReason::kTargetErrors)
+      p.stop_reason = p.finished ? (i % 2 ? StopReason::kStopBits : StopReason::kStopBitErrors)
                                  : StopReason::kInterrupted;
       p.seconds = 0.1 * static_cast<double>(i) + 1.0 / 3.0;
       s.points.push_back(p);
@@ -174,11 +174,11 @@ TEST(Checkpoint, DamagedOrForeignFilesAreRefusedWithTheReason) {
   ASSERT_FALSE(r.ok());
   EXPECT_EQ(r.status().message(), "x.ckpt: not a capgap checkpoint (first line is not 'capgap-checkpoint N')");
 
-  std::string v2 = Body(text);
-  v2.replace(0, v2.find('\n'), "capgap-checkpoint 2");
-  r = ParseCheckpoint(WithChecksum(v2), "x.ckpt");
+  std::string v3 = Body(text);
+  v3.replace(0, v3.find('\n'), "capgap-checkpoint 3");
+  r = ParseCheckpoint(WithChecksum(v3), "x.ckpt");
   ASSERT_FALSE(r.ok());
-  EXPECT_EQ(r.status().message(), "x.ckpt: checkpoint version 2 is not supported (this program reads 1)");
+  EXPECT_EQ(r.status().message(), "x.ckpt: checkpoint version 3 is not supported (this program reads 1 and 2)");
 
   // A point line without one of the UnitCounts fields (an older writer).
   std::string old = Body(text);
@@ -350,11 +350,11 @@ const char kFixed[] =
 
 TEST(CheckResumable, ExtensionKeysAreAllowed) {
   EXPECT_EQ(Refusal({}), "");
-  EXPECT_EQ(Refusal({"sweep.target_errors=1000", "sweep.max_bits=5000000", "sweep.ber_floor=0",
+  EXPECT_EQ(Refusal({"sweep.stop_bit_errors=1000", "sweep.stop_bits=5000000", "sweep.ber_floor=0",
                      "sweep.target_ber=1e-4", "sweep.target_fer=1e-3", "sweep.threads=3",
                      "sweep.checkpoint_seconds=5"}),
             "");
-  EXPECT_EQ(Refusal({"sweep.ebno_db=0:1:9"}), "");  // points appended
+  EXPECT_EQ(Refusal({"sweep.ebno_db=0 to 9 by 1"}), "");  // points appended
   EXPECT_EQ(Refusal({"sweep.ebno_db=0,1"}), "");    // fewer points: recorded ones beyond are dropped
   EXPECT_EQ(Refusal({}, "[scheme.extra]\nmodulation = bpsk\n"), "");  // a new scheme runs fresh
 }
@@ -375,11 +375,11 @@ TEST(CheckResumable, ChangesThatAlterRecordedStreamsAreRefusedNamingTheKey) {
   EXPECT_EQ(Refusal({"sweep.ebno_db=0,1.5,2"}),
             "cannot resume from r.ckpt: sweep.ebno_db point 1 (scheme qpsk) changed from 1 dB to "
             "1.5 dB; recorded points keep their Eb/N0 (append new points at the end)");
-  EXPECT_EQ(Refusal({"sweep.target_errors=50"}),
-            "cannot resume from r.ckpt: sweep.target_errors decreased from 100 to 50; a resume may "
+  EXPECT_EQ(Refusal({"sweep.stop_bit_errors=50"}),
+            "cannot resume from r.ckpt: sweep.stop_bit_errors decreased from 100 to 50; a resume may "
             "only raise it (finished points may already hold more than the new value)");
-  EXPECT_EQ(Refusal({"sweep.max_bits=999999"}),
-            "cannot resume from r.ckpt: sweep.max_bits decreased from 1000000 to 999999; a resume "
+  EXPECT_EQ(Refusal({"sweep.stop_bits=999999"}),
+            "cannot resume from r.ckpt: sweep.stop_bits decreased from 1000000 to 999999; a resume "
             "may only raise it (finished points may already hold more than the new value)");
 }
 
@@ -418,20 +418,99 @@ TEST(CheckResumable, FrameErrorTargetMayOnlyGrow) {
             "cannot resume from r.ckpt: stop_frame_errors of scheme qpsk decreased from (none) to "
             "500; a resume may only raise it (finished points may hold more frame errors than the "
             "new target)");
-  // target_errors = 0 (no bit-error target) is a raise to infinity.
-  EXPECT_EQ(refusal({"sweep.target_errors=0", "sweep.stop_frame_errors=50"}, true), "");
+  // stop_bit_errors = 0 (no bit-error target) is a raise to infinity.
+  EXPECT_EQ(refusal({"sweep.stop_bit_errors=0", "sweep.stop_frame_errors=50"}, true), "");
 }
 
 TEST(CheckResumable, RecordedSchemeMissingFromConfigIsRefused) {
   const Checkpoint c = RecordedFor(Config(), 2);
   auto cfg = ParseRunConfig(
-      "[sweep]\nebno_db = 0:1:4\ntarget_errors = 100\nmax_bits = 1000000\nseed = 7\n"
+      "[sweep]\nebno_db = 0 to 4 by 1\nstop_bit_errors = 100\nstop_bits = 1000000\nseed = 7\n"
       "[scheme.qpsk]\nmodulation = qpsk\nframe_bits = 960\n",
       "test.ini", {});
   ASSERT_TRUE(cfg.ok());
   EXPECT_EQ(CheckResumable(c, cfg.value(), "r.ckpt").message(),
             "cannot resume from r.ckpt: scheme 'q16' is recorded in the checkpoint but missing "
             "from the configuration");
+}
+
+}  // namespace
+}  // namespace capgap
+
+namespace capgap {
+namespace {
+
+// A checkpoint written before the rename of the stopping keys (version 1,
+// kept in the fuzz corpus as an earlier build wrote it) is read: its stop
+// words and stored configuration come back in today's spelling, and a config
+// written with the new names resumes from it.
+TEST(CheckpointV1, OldCheckpointIsReadWithTheNewNames) {
+  const std::string path = std::string(CAPGAP_SOURCE_DIR) + "/tests/fuzz/corpus/checkpoint/small_plain.ckpt";
+  std::ifstream in(path, std::ios::binary);
+  ASSERT_TRUE(in.good()) << path;
+  std::stringstream raw;
+  raw << in.rdbuf();
+  // A fuzz input's first byte is the harness's mode (tests/fuzz/fuzz_checkpoint.cc);
+  // the checkpoint file follows it byte for byte.
+  ASSERT_FALSE(raw.str().empty());
+  const std::string bytes = raw.str().substr(1);
+  ASSERT_EQ(bytes.rfind("capgap-checkpoint 1\n", 0), 0u);
+  auto c = ParseCheckpoint(bytes, path);
+  ASSERT_TRUE(c.ok()) << c.status().message();
+  ASSERT_EQ(c.value().schemes.size(), 1u);
+  ASSERT_EQ(c.value().schemes[0].points.size(), 2u);
+  EXPECT_EQ(c.value().schemes[0].points[0].stop_reason, StopReason::kStopBitErrors);
+  const std::string& text = c.value().config_text;
+  EXPECT_NE(text.find("\nebno_db = 0 to 4 by 4\n"), std::string::npos) << text;
+  EXPECT_NE(text.find("\nstop_bit_errors = 10\n"), std::string::npos) << text;
+  EXPECT_NE(text.find("\nstop_bits = 20000\n"), std::string::npos) << text;
+  EXPECT_EQ(text.find("target_errors"), std::string::npos) << text;
+  EXPECT_EQ(text.find("max_bits"), std::string::npos) << text;
+
+  const char kNew[] =
+      "[sweep]\nebno_db = 0 to 4 by 4\nstop_bit_errors = 10\nstop_bits = 20000\nseed = 1\n"
+      "[scheme.q]\nmodulation = qpsk\nframe_bits = 96\ndemapper = maxlog\n";
+  auto cfg = ParseRunConfig(kNew, "new.ini", {});
+  ASSERT_TRUE(cfg.ok()) << cfg.status().message();
+  EXPECT_TRUE(CheckResumable(c.value(), cfg.value(), "old.ckpt").ok());
+  // Lowering the renamed key is refused under its new name.
+  auto lower = ParseRunConfig(kNew, "new.ini", {"sweep.stop_bit_errors=5"});
+  ASSERT_TRUE(lower.ok());
+  const Status s = CheckResumable(c.value(), lower.value(), "old.ckpt");
+  ASSERT_FALSE(s.ok());
+  EXPECT_NE(s.message().find("sweep.stop_bit_errors decreased from 10 to 5"), std::string::npos)
+      << s.message();
+  // Written again, it is a version 2 file with the new words.
+  const std::string again = SerializeCheckpoint(c.value());
+  EXPECT_EQ(again.rfind("capgap-checkpoint 2\n", 0), 0u);
+  EXPECT_NE(again.find(" stop=stop_bit_errors "), std::string::npos);
+}
+
+TEST(CheckpointV1, UpgradeRewritesOnlyTheRenamedKeysAndRanges) {
+  EXPECT_EQ(UpgradeV1ConfigText("[sweep]\nebno_db = -2:0.5:3\ntarget_errors = 7\nmax_bits = 9\n"
+                                "\n[scheme.a]\nebno_db = 1,2\nframe_bits = 8\n"
+                                "[scheme.b]\nebno_db = 0.5:0.25:3\n"),
+            "[sweep]\nebno_db = -2 to 3 by 0.5\nstop_bit_errors = 7\nstop_bits = 9\n"
+            "\n[scheme.a]\nebno_db = 1,2\nframe_bits = 8\n"
+            "[scheme.b]\nebno_db = 0.5 to 3 by 0.25\n");
+  // Both forms give the same points, so recorded points keep their values.
+  EXPECT_EQ(ParseDbList("0.5 to 3 by 0.25", "x").value().size(), 11u);
+}
+
+// A version 2 file must carry the new names: old ones in its stored
+// configuration are not rewritten, and resuming from it names the rename.
+TEST(CheckpointV1, OldNamesInAVersion2FileAreRefusedOnResume) {
+  Checkpoint c;
+  c.seed = 1;
+  c.config_text = "[sweep]\nebno_db = 1\ntarget_errors = 10\nseed = 1\n[scheme.q]\nmodulation = qpsk\n";
+  auto parsed = ParseCheckpoint(SerializeCheckpoint(c), "v2.ckpt");
+  ASSERT_TRUE(parsed.ok()) << parsed.status().message();
+  auto cfg = ParseRunConfig("[sweep]\nebno_db = 1\nseed = 1\n[scheme.q]\nmodulation = qpsk\n", "n.ini", {});
+  ASSERT_TRUE(cfg.ok());
+  const Status s = CheckResumable(parsed.value(), cfg.value(), "v2.ckpt");
+  ASSERT_FALSE(s.ok());
+  EXPECT_NE(s.message().find("was renamed: write 'sweep.stop_bit_errors'"), std::string::npos)
+      << s.message();
 }
 
 }  // namespace

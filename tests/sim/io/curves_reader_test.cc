@@ -87,7 +87,7 @@ void WriteValid(const std::string& path) {
   {
     H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
     const hsize_t dims[1] = {4};
-    const char* stop[4] = {"max_bits", "max_bits", "target_errors", "target_errors"};
+    const char* stop[4] = {"stop_bits", "stop_bits", "stop_bit_errors", "stop_bit_errors"};
     g.createDataSet("stop_reason", type, H5::DataSpace(1, dims)).write(stop, type);
   }
   H5::Group lim = g.createGroup("limits");

@@ -121,7 +121,7 @@ TEST(FadingCurves, NewNamesAppearAndAwgnSchemeKeepsItsDatasets) {
   RunMetadata meta;
   meta.command_line = "sim_io_fading_curves_test (fabricated points)";
   meta.config_text =
-      "[sweep]\nebno_db = 0:5:20\ntarget_ber = 1e-2\nseed = 5\n[scheme.fad]\nmodulation = qpsk\n"
+      "[sweep]\nebno_db = 0 to 20 by 5\ntarget_ber = 1e-2\nseed = 5\n[scheme.fad]\nmodulation = qpsk\n"
       "[scheme.awgn]\nmodulation = qpsk\n";
   meta.threads = 1;
   meta.seed = 5;

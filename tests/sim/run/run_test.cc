@@ -224,11 +224,11 @@ TEST(Run, ResumeRefusesImpossibleCountsAndRewritesNothing) {
 TEST(Run, BadConfigGives1WithOneLineOnTheErrorStreamAndNoFile) {
   const fs::path dir = TempDir("badcfg");
   RunOptions o = Tiny(dir / "bad.h5");
-  o.overrides.push_back("sweep.target_errors=-5");
+  o.overrides.push_back("sweep.stop_bit_errors=-5");
   Outcome r = RunCaptured(o);
   EXPECT_EQ(r.status, kExitFailed);
   EXPECT_EQ(r.err,
-            "capgap: " + TinyConfig() + ": sweep.target_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
+            "capgap: " + TinyConfig() + ": sweep.stop_bit_errors = '-5': must be an integer >= 0 (0: no bit-error target)\n");
   EXPECT_EQ(r.out, "");
   o = Tiny(dir / "bad.h5");
   o.config_path = (dir / "missing.ini").string();
@@ -274,13 +274,13 @@ TEST(Run, RefusedArgumentsHaveOneStatusRuleAndLeavePreviousOutputsIntact) {
        [](const fs::path&) {
          return std::string(
              "capgap: run: --set 'sweep.seed': expected KEY=VALUE, e.g. --set "
-             "sweep.target_errors=500\n");
+             "sweep.stop_bit_errors=500\n");
        }},
       {"--set =5", [](RunOptions& o, const fs::path&) { o.overrides.push_back("=5"); }, kExitUsage,
        [](const fs::path&) {
          return std::string(
              "capgap: run: --set '=5': expected KEY=VALUE, e.g. --set "
-             "sweep.target_errors=500\n");
+             "sweep.stop_bit_errors=500\n");
        }},
       {"-o ''", [](RunOptions& o, const fs::path&) { o.output = ""; }, kExitUsage,
        [](const fs::path&) {

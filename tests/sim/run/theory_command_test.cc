@@ -75,22 +75,22 @@ TEST(Theory, BandwidthNotPositiveOrNotFiniteIsAUsageError) {
 
 TEST(Theory, RateOutsideItsRangeIsAUsageError) {
   const std::string rule = ": must be a number in [1e-06, 1] (code rate)";
-  ExpectUsage(Table("qpsk", "0:1:2", 1e-300), "theory: --rate = 1e-300" + rule);
-  ExpectUsage(Table("qpsk", "0:1:2", 0), "theory: --rate = 0" + rule);
-  ExpectUsage(Table("qpsk", "0:1:2", 1.5), "theory: --rate = 1.5" + rule);
-  ExpectUsage(Table("qpsk", "0:1:2", kNan), "theory: --rate = nan" + rule);
+  ExpectUsage(Table("qpsk", "0 to 2 by 1", 1e-300), "theory: --rate = 1e-300" + rule);
+  ExpectUsage(Table("qpsk", "0 to 2 by 1", 0), "theory: --rate = 0" + rule);
+  ExpectUsage(Table("qpsk", "0 to 2 by 1", 1.5), "theory: --rate = 1.5" + rule);
+  ExpectUsage(Table("qpsk", "0 to 2 by 1", kNan), "theory: --rate = nan" + rule);
 }
 
 TEST(Theory, EbnoPointsOutsideTheRangeOrNotNumbersAreUsageErrors) {
-  ExpectUsage(Table("qpsk", "0:50:150", 1),
-              "theory: --ebno-db = '0:50:150': point 150 dB is outside [-100, 100] dB");
+  ExpectUsage(Table("qpsk", "0 to 150 by 50", 1),
+              "theory: --ebno-db = '0 to 150 by 50': point 150 dB is outside [-100, 100] dB");
   const Outcome r = Theory(Table("qpsk", "nan", 1));
   EXPECT_EQ(r.status, kExitUsage);
   EXPECT_NE(r.err.find("--ebno-db = 'nan'"), std::string::npos) << r.err;
 }
 
 TEST(Theory, ConflictingGroupsAreRefusedNamingBoth) {
-  TheoryOptions o = Table("qpsk", "0:1:2", 0.5);
+  TheoryOptions o = Table("qpsk", "0 to 2 by 1", 0.5);
   o.snr_db = 3;
   const std::string message =
       "theory: --bandwidth/--snr-db (Shannon-Hartley capacity) and "
