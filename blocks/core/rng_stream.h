@@ -56,6 +56,7 @@ inline constexpr std::uint32_t kSpectrumPointIndex = 0xFFFFFFFFu;  // Welch PSD 
 inline constexpr std::uint32_t kDisplayPointIndex = 0xFFFFFFFEu;   // demapper-input capture
 inline constexpr std::uint32_t kEyePointIndex = 0xFFFFFFFDu;       // noise-free eye diagram
 inline constexpr std::uint32_t kInterleaverPointIndex = 0xFFFFFFFCu;  // random interleaver (kCode)
+inline constexpr std::uint32_t kTurboInterleaverPointIndex = 0xFFFFFFFBu;  // S-random (kCode)
 // Every point index from here up is reserved; a sweep must stay below it.
 inline constexpr std::uint32_t kFirstReservedPointIndex = 0xFFFFFFF0u;
 

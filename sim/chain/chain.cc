@@ -41,7 +41,9 @@ Result<Chain> Chain::Create(const SchemeConfig& scheme, std::uint64_t seed,
   if (!family) {
     return Status::Error(p + "code = '" + scheme.code + "': valid: " + CodeFamilyNames());
   }
-  auto code = family->build(scheme, p, context);
+  BuildContext code_context = context;
+  code_context.key = DeriveKey(seed, scheme.name);
+  auto code = family->build(scheme, p, code_context);
   if (!code.ok()) return code.status();
   chain.code_ = std::move(code).value();
   // The family fixes the information bits per frame (LDPC: the code's k).

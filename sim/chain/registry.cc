@@ -12,6 +12,7 @@
 #include "sim/families/ldpc_family.h"
 #include "sim/families/psk_qam_constellation.h"
 #include "sim/families/polar_family.h"
+#include "sim/families/turbo_family.h"
 #include "sim/families/uncoded_family.h"
 
 namespace capgap {
@@ -23,6 +24,7 @@ const CodeFamily* const kCodeFamilies[] = {
     &kLdpcFamily,
     &kBlockFamily,
     &kPolarFamily,
+    &kTurboFamily,
 };
 
 const ChannelFamily* const kChannelFamilies[] = {

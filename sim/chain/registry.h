@@ -16,6 +16,7 @@
 
 #include "blocks/channel/channel.h"
 #include "blocks/core/energy.h"
+#include "blocks/core/rng_stream.h"
 #include "blocks/core/status.h"
 #include "blocks/fec/channel_code.h"
 #include "sim/config/config.h"
@@ -33,6 +34,9 @@ struct BuildContext {
   const std::atomic<bool>* stop = nullptr;
   // Worker threads that will each make a workspace (memory estimates).
   int threads = 1;
+  // The scheme's stream key, DeriveKey(seed, scheme name) (Chain::Create sets
+  // it): a code drawn at random (S-random interleaver) draws from it.
+  PhiloxKey key;
 };
 
 // A code family, named by the scheme's `code` key.

@@ -100,8 +100,8 @@ TEST(ConfigLdpc, BadValuesNameKeyValueAndRule) {
   EXPECT_EQ(ErrorOf(Scheme("arithmetic = int16\n")), "OK");
   EXPECT_EQ(ErrorOf(Scheme("construction = random\n")),
             "dir/test.ini: scheme.a.construction = 'random': valid: peg, qc, file");
-  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\ncode = turbo\n"),
-            "dir/test.ini: scheme.a.code = 'turbo': valid: none, conv, ldpc" + LaterCodeWords());
+  EXPECT_EQ(ErrorOf("[sweep]\nebno_db = 0\n[scheme.a]\nmodulation = qpsk\ncode = fountain\n"),
+            "dir/test.ini: scheme.a.code = 'fountain': valid: none, conv, ldpc" + LaterCodeWords());
 }
 
 // stop_frame_errors and target_fer: sweep keys with per-scheme overrides;

@@ -124,8 +124,8 @@ TEST(Config, CodeKeysApplyOnlyToTheirCode) {
   EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.generators=5,7"}),
             "test.ini: scheme.qpsk.generators applies only with code = conv (this scheme has "
             "code = none)");
-  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=turbo"}),
-            "test.ini: scheme.qpsk.code = 'turbo': valid: none, conv, ldpc" + LaterCodeWords());
+  EXPECT_EQ(ErrorOf(kGood, {"scheme.qpsk.code=fountain"}),
+            "test.ini: scheme.qpsk.code = 'fountain': valid: none, conv, ldpc" + LaterCodeWords());
   auto r = ParseRunConfig(kGood, "test.ini",
                           {"scheme.qpsk.code=conv", "scheme.qpsk.generators=5,7",
                            "scheme.qpsk.constraint_length=3"});
